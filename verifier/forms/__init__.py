@@ -1,0 +1,1 @@
+"""Families of modular forms: each module builds exact q-expansions of one family."""

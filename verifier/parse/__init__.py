@@ -1,0 +1,1 @@
+"""Stage 2: parse the text of one claim with the lark grammar into an AST."""

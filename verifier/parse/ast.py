@@ -1,0 +1,123 @@
+"""The claim AST: small frozen dataclasses, each with its span in the claim text.
+
+Spans are ``(start, end)`` character offsets into the *normalised claim text* the
+parser saw; :class:`verifier.scan.text.MappedText` turns them back into file, line and
+column of the author's source.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+Span = tuple[int, int]
+
+
+@dataclass(frozen=True)
+class Node:
+    """Base of every AST node."""
+
+    span: Span
+
+
+@dataclass(frozen=True)
+class Number(Node):
+    """A non-negative integer literal."""
+
+    value: int
+
+
+@dataclass(frozen=True)
+class Decimal(Node):
+    """A decimal literal such as 0.5: rejected by elaboration (not exact)."""
+
+    text: str
+
+
+@dataclass(frozen=True)
+class Name(Node):
+    """A symbol: ``E_4``, ``\\Delta``, ``j``, ``q`` or a user-defined name.
+
+    ``arg`` is the argument written after it, normalised: ``None`` (none written),
+    ``"tau"``, ``"2tau"`` (a multiple of tau), ``"z"`` or ``"q"``.
+    """
+
+    text: str
+    arg: str | None = None
+
+
+@dataclass(frozen=True)
+class BinOp(Node):
+    """``left op right`` with ``op`` one of ``+ - * /``."""
+
+    op: str
+    left: Node
+    right: Node
+
+
+@dataclass(frozen=True)
+class Neg(Node):
+    """Unary minus."""
+
+    operand: Node
+
+
+@dataclass(frozen=True)
+class Power(Node):
+    """``base^exponent`` with an integer exponent."""
+
+    base: Node
+    exponent: int
+
+
+@dataclass(frozen=True)
+class Dots(Node):
+    """``\\cdots`` in a printed expansion."""
+
+
+@dataclass(frozen=True)
+class BigO(Node):
+    """``O(q^m)`` in a printed expansion; ``inner`` must be a power of q."""
+
+    inner: Node
+
+
+@dataclass(frozen=True)
+class Relation(Node):
+    """``side_0 rel_0 side_1 rel_1 side_2 ...``; ``rels`` are ``"="`` or ``"!="``."""
+
+    sides: tuple[Node, ...]
+    rels: tuple[str, ...]
+
+
+@dataclass(frozen=True)
+class Definition(Node):
+    """``NAME = expr`` or ``NAME(\\tau) = expr`` from a define tag."""
+
+    name: str
+    name_span: Span
+    body: Node
+
+
+def walk(node: Node) -> list[Node]:
+    """All nodes of a tree, parents before children."""
+    out: list[Node] = [node]
+    for child in children(node):
+        out.extend(walk(child))
+    return out
+
+
+def children(node: Node) -> tuple[Node, ...]:
+    """The direct children of ``node``."""
+    if isinstance(node, BinOp):
+        return (node.left, node.right)
+    if isinstance(node, Neg):
+        return (node.operand,)
+    if isinstance(node, Power):
+        return (node.base,)
+    if isinstance(node, BigO):
+        return (node.inner,)
+    if isinstance(node, Relation):
+        return node.sides
+    if isinstance(node, Definition):
+        return (node.body,)
+    return ()

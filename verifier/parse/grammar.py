@@ -1,0 +1,262 @@
+"""Load the claim grammar once and turn claim text into an AST.
+
+The grammar file lives in the repository's ``grammar/`` folder and is shipped in the
+wheel as ``verifier/_grammar/``.  Parsing is LALR(1); syntax errors become a
+:class:`ParseFailure` with an offset, a message and a hint, never an exception.
+"""
+
+from __future__ import annotations
+
+import functools
+from dataclasses import dataclass
+from pathlib import Path
+from typing import Any
+
+from verifier.parse import ast
+
+GRAMMAR_FILE = "claim.lark"
+_OPENERS = {"(": ")", "{": "}", "[": "]"}
+_CLOSERS = {v: k for k, v in _OPENERS.items()}
+
+
+def grammar_path() -> Path:
+    """Where the grammar file is: inside the installed package, or in the source tree."""
+    here = Path(__file__).resolve().parent.parent
+    for candidate in (here / "_grammar" / GRAMMAR_FILE, here.parent / "grammar" / GRAMMAR_FILE):
+        if candidate.is_file():
+            return candidate
+    raise FileNotFoundError(f"grammar file {GRAMMAR_FILE} not found next to {here}")
+
+
+@functools.lru_cache(maxsize=1)
+def _parser() -> Any:
+    from lark import Lark
+
+    return Lark(
+        grammar_path().read_text(encoding="utf-8"),
+        parser="lalr",
+        lexer="contextual",
+        start=["relation", "definition"],
+        propagate_positions=True,
+        maybe_placeholders=False,
+    )
+
+
+@dataclass(frozen=True)
+class ParseFailure:
+    """A syntax error at ``offset`` in the claim text."""
+
+    code: str
+    message: str
+    hint: str
+    offset: int
+
+
+def parse_claim(text: str) -> ast.Relation | ParseFailure:
+    """Parse the body of a claim (``A = B``, ``A \\neq B``, chains)."""
+    result = _parse(text, "relation")
+    assert isinstance(result, ast.Relation | ParseFailure)
+    return result
+
+
+def parse_definition(text: str) -> ast.Definition | ParseFailure:
+    """Parse the body of a define tag (``NAME = expr`` or ``NAME(\\tau) = expr``)."""
+    result = _parse(text, "definition")
+    assert isinstance(result, ast.Definition | ParseFailure)
+    return result
+
+
+def _parse(text: str, start: str) -> ast.Node | ParseFailure:
+    from lark.exceptions import UnexpectedCharacters, UnexpectedEOF, UnexpectedToken
+
+    if not text.strip():
+        return ParseFailure("empty-claim", "the tagged display is empty", "put the identity inside the display", 0)
+    bad = _check_brackets(text)
+    if bad is not None:
+        return bad
+    try:
+        tree = _parser().parse(text, start=start)
+    except UnexpectedCharacters as exc:
+        ch = text[exc.pos_in_stream] if exc.pos_in_stream < len(text) else ""
+        return ParseFailure(
+            "syntax",
+            f"unexpected character {ch!r}",
+            _hint_for_char(ch),
+            exc.pos_in_stream,
+        )
+    except UnexpectedEOF:
+        return _eof_failure(text, start)
+    except UnexpectedToken as exc:
+        if exc.token.type == "$END":
+            return _eof_failure(text, start)
+        pos = exc.token.start_pos if exc.token.start_pos is not None else 0
+        return ParseFailure("syntax", f"unexpected {exc.token.value!r}", _hint_for_token(exc), pos)
+    node = _ToAst().transform(tree)
+    assert isinstance(node, ast.Node)
+    return node
+
+
+def _eof_failure(text: str, start: str) -> ParseFailure:
+    stripped = text.rstrip()
+    if start == "relation" and not any(r in text for r in ("=", "\\ne")):
+        return ParseFailure(
+            "no-relation",
+            "a claim needs '=' or '\\neq' between two sides",
+            "write the identity as LEFT = RIGHT",
+            len(stripped),
+        )
+    return ParseFailure(
+        "incomplete", "the claim ends in the middle of an expression", "complete the last term", len(stripped)
+    )
+
+
+def _check_brackets(text: str) -> ParseFailure | None:
+    """Unbalanced brackets get a message that points at the bracket itself."""
+    stack: list[tuple[str, int]] = []
+    i = 0
+    while i < len(text):
+        ch = text[i]
+        if ch == "\\" and i + 1 < len(text) and text[i + 1] in "{}":
+            i += 2
+            continue
+        if ch in _OPENERS:
+            stack.append((ch, i))
+        elif ch in _CLOSERS:
+            if not stack or stack[-1][0] != _CLOSERS[ch]:
+                return ParseFailure("brackets", f"{ch!r} closes nothing", "remove it or add the matching opening bracket", i)
+            stack.pop()
+        i += 1
+    if stack:
+        ch, pos = stack[-1]
+        return ParseFailure("brackets", f"{ch!r} is never closed", f"add the matching {_OPENERS[ch]!r}", pos)
+    return None
+
+
+def _hint_for_char(ch: str) -> str:
+    if ch == "&":
+        return "'&' is only meaningful inside align-like environments"
+    if ch in "<>":
+        return "only '=' and '\\neq' relations are claims"
+    if ch == "\\":
+        return "a backslash must start a command such as \\frac or \\Delta"
+    return "the claim language has numbers, forms, q, + - \\cdot / ^, \\frac, brackets, \\cdots and O(q^n)"
+
+
+def _hint_for_token(exc: Any) -> str:
+    expected = sorted(exc.expected) if getattr(exc, "expected", None) else []
+    if exc.token.type == "DIGIT" or exc.token.type == "INT":
+        return "a number must follow an operator or start a term"
+    if "RBRACE" in expected or "RPAR" in expected:
+        return "an expression is incomplete before the closing bracket"
+    if exc.token.type in ("PLUS", "MINUS", "SLASH", "CIRCUMFLEX"):
+        return "an operator is missing its operand"
+    return "check the expression around this point"
+
+
+def _span(meta: Any) -> ast.Span:
+    return (meta.start_pos, meta.end_pos)
+
+
+def _tok_span(tok: Any) -> ast.Span:
+    return (tok.start_pos, tok.end_pos)
+
+
+def _normal_arg(arg: str) -> str:
+    inner = arg.strip()[1:-1].replace(" ", "").replace("\\tau", "tau")
+    return inner
+
+
+def _make_transformer() -> Any:
+    from lark import Transformer, v_args
+
+    @v_args(meta=True)
+    class ToAst(Transformer):  # type: ignore[misc]
+        """One method per grammar rule; each returns an AST node with its span."""
+
+        def relation(self, meta: Any, items: list[Any]) -> ast.Relation:
+            sides = tuple(items[0::2])
+            rels = tuple("=" if str(r) == "=" else "!=" for r in items[1::2])
+            return ast.Relation(_span(meta), sides, rels)
+
+        def rel(self, meta: Any, items: list[Any]) -> str:
+            return str(items[0])
+
+        def definition(self, meta: Any, items: list[Any]) -> ast.Definition:
+            name_tok = items[0]
+            return ast.Definition(_span(meta), str(name_tok), _tok_span(name_tok), items[-1])
+
+        def neg(self, meta: Any, items: list[Any]) -> ast.Neg:
+            return ast.Neg(_span(meta), items[0])
+
+        def _bin(self, op: str, meta: Any, left: ast.Node, right: ast.Node) -> ast.BinOp:
+            return ast.BinOp(_span(meta), op, left, right)
+
+        def add(self, meta: Any, items: list[Any]) -> ast.BinOp:
+            return self._bin("+", meta, items[0], items[1])
+
+        def sub(self, meta: Any, items: list[Any]) -> ast.BinOp:
+            return self._bin("-", meta, items[0], items[1])
+
+        def imul(self, meta: Any, items: list[Any]) -> ast.BinOp:
+            return self._bin("*", meta, items[0], items[1])
+
+        def mul(self, meta: Any, items: list[Any]) -> ast.BinOp:
+            return self._bin("*", meta, items[0], items[-1])
+
+        def div(self, meta: Any, items: list[Any]) -> ast.BinOp:
+            return self._bin("/", meta, items[0], items[1])
+
+        def frac(self, meta: Any, items: list[Any]) -> ast.BinOp:
+            return self._bin("/", meta, items[-2], items[-1])
+
+        def pow(self, meta: Any, items: list[Any]) -> ast.Power:
+            return ast.Power(_span(meta), items[0], items[1])
+
+        def pow_arg(self, meta: Any, items: list[Any]) -> ast.Node:
+            # E_4^2(\tau): the argument belongs to the base, the power to the value.
+            base = items[0]
+            if isinstance(base, ast.Name) and base.arg is None:
+                base = ast.Name(base.span, base.text, _normal_arg(str(items[2])))
+            return ast.Power(_span(meta), base, items[1])
+
+        def exp_digit(self, meta: Any, items: list[Any]) -> int:
+            return int(str(items[0]))
+
+        def exp_braced(self, meta: Any, items: list[Any]) -> int:
+            return int(str(items[0]))
+
+        def exp_negative(self, meta: Any, items: list[Any]) -> int:
+            return -int(str(items[0]))
+
+        def integer(self, meta: Any, items: list[Any]) -> ast.Number:
+            return ast.Number(_tok_span(items[0]), int(str(items[0])))
+
+        def decimal(self, meta: Any, items: list[Any]) -> ast.Decimal:
+            return ast.Decimal(_tok_span(items[0]), str(items[0]))
+
+        def name(self, meta: Any, items: list[Any]) -> ast.Name:
+            return ast.Name(_tok_span(items[0]), str(items[0]))
+
+        def name_arg(self, meta: Any, items: list[Any]) -> ast.Name:
+            return ast.Name(_span(meta), str(items[0]), _normal_arg(str(items[1])))
+
+        def dots(self, meta: Any, items: list[Any]) -> ast.Dots:
+            return ast.Dots(_span(meta))
+
+        def big_o(self, meta: Any, items: list[Any]) -> ast.BigO:
+            return ast.BigO(_span(meta), items[-1])
+
+    return ToAst
+
+
+class _ToAst:
+    def __init__(self) -> None:
+        self._impl = _transformer_class()()
+
+    def transform(self, tree: Any) -> Any:
+        return self._impl.transform(tree)
+
+
+@functools.lru_cache(maxsize=1)
+def _transformer_class() -> Any:
+    return _make_transformer()

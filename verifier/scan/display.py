@@ -1,0 +1,125 @@
+"""From the inside of a display-math block to the rows that are claims.
+
+Shared by the LaTeX and Markdown scanners: split align/gather rows, join multline
+rows, pull out ``\\label``, and delete what carries no mathematics (``\\tag``,
+``\\nonumber``, spacing commands, ``\\left``/``\\right`` sizes, ``&``, trailing
+punctuation).  Every step keeps the source position of each character.
+"""
+
+from __future__ import annotations
+
+import re
+from dataclasses import dataclass
+
+from verifier.scan import macros as macro_mod
+from verifier.scan.text import MappedText, matching_brace
+
+# Environments whose rows are separate claims; the others are one equation.
+ROW_ENVIRONMENTS = frozenset({"align", "align*", "gather", "gather*", "flalign", "flalign*"})
+INNER_ROW_ENVIRONMENTS = ("aligned", "gathered", "split")
+INNER_JOIN_ENVIRONMENTS = ("multlined",)
+
+_LABEL = re.compile(r"\\label\s*\{([^{}]*)\}")
+_TAG = re.compile(r"\\tag\*?\s*\{[^{}]*\}")
+_DROP = re.compile(
+    r"\\(nonumber|notag|displaystyle|textstyle|qquad|quad|thinspace|enspace|medspace|thickspace|"
+    r"negthinspace|left|right|middle|[bB]ig{1,2}[lrm]?|big|Big|bigg|Bigg)(?![A-Za-z])"
+    r"|\\[,;:!> ]|~|&"
+)
+_HSPACE = re.compile(r"\\[hv]space\*?\s*\{[^{}]*\}")
+_INNER_ENV = re.compile(r"\\(begin|end)\s*\{(aligned|gathered|split|multlined)\}(\[[a-z]\])?")
+_MATHCAL_O = re.compile(r"\\(mathcal|mathrm|mathit)\s*(\{\s*O\s*\}|O)")
+_FRAC_DIGITS = re.compile(r"\\([dt]?frac)\s*(\d)\s*(\d)")
+_TRAILING = re.compile(r"[.,;]\s*$")
+_ROW_BREAK = re.compile(r"\\\\\*?(\s*\[[^\]]*\])?")
+_INTERTEXT = re.compile(r"\\(intertext|shortintertext)\s*\{")
+
+
+@dataclass(frozen=True)
+class Row:
+    """One claim row of a display, normalised for the parser."""
+
+    text: MappedText
+    label: str | None
+    source_text: str  # the author's text of the row, for reports
+
+
+def rows_of(content: MappedText, env: str) -> list[MappedText]:
+    """Split a display's content into rows (before normalisation)."""
+    content = _drop_intertext(content)
+    has_inner_rows = any(f"\\begin{{{e}}}" in content.text.replace(" ", "") for e in INNER_ROW_ENVIRONMENTS)
+    if env in ROW_ENVIRONMENTS or has_inner_rows:
+        content = content.blank(_INNER_ENV)
+        return [r for r in _split_rows(content) if r.text.strip()]
+    content = content.blank(_INNER_ENV)
+    return [content.blank(_ROW_BREAK)]
+
+
+def _drop_intertext(content: MappedText) -> MappedText:
+    s = content.text
+    m = _INTERTEXT.search(s)
+    while m:
+        close = matching_brace(s, m.end() - 1)
+        if close < 0:
+            break
+        content = MappedText.concat([content.slice(0, m.start()), _spaces(content, m.start(), close + 1),
+                                     content.slice(close + 1)], content.source)
+        s = content.text
+        m = _INTERTEXT.search(s, close + 1)
+    return content
+
+
+def _spaces(text: MappedText, a: int, b: int) -> MappedText:
+    return MappedText(" " * (b - a), text.origins[a:b], text.source)
+
+
+def _split_rows(content: MappedText) -> list[MappedText]:
+    """Split at ``\\\\`` outside braces and nested environments."""
+    s = content.text
+    rows: list[MappedText] = []
+    depth = 0
+    env_depth = 0
+    start = 0
+    i = 0
+    while i < len(s):
+        if s.startswith("\\begin", i):
+            env_depth += 1
+            i += 6
+            continue
+        if s.startswith("\\end", i):
+            env_depth -= 1
+            i += 4
+            continue
+        if s.startswith("\\\\", i) and depth == 0 and env_depth <= 0:
+            rows.append(content.slice(start, i))
+            m = _ROW_BREAK.match(s, i)
+            i = m.end() if m else i + 2
+            start = i
+            continue
+        ch = s[i]
+        if ch == "\\":
+            i += 2
+            continue
+        if ch == "{":
+            depth += 1
+        elif ch == "}":
+            depth -= 1
+        i += 1
+    rows.append(content.slice(start))
+    return rows
+
+
+def normalise_row(row: MappedText, macros: dict[str, macro_mod.Macro]) -> Row:
+    """Expand macros, extract the label, delete non-mathematical commands.
+
+    Raises :class:`verifier.scan.macros.MacroError` when expansion fails.
+    """
+    source_text = " ".join(row.source_slice().split())
+    text = macro_mod.expand(row, macros)
+    label_match = _LABEL.search(text.text)
+    label = label_match.group(1).strip() if label_match else None
+    text = text.blank(_LABEL).blank(_TAG).blank(_HSPACE).blank(_DROP)
+    text = text.sub(_MATHCAL_O, lambda m: "O")
+    text = text.sub(_FRAC_DIGITS, lambda m: f"\\{m.group(1)}{{{m.group(2)}}}{{{m.group(3)}}}")
+    text = text.blank(_TRAILING)
+    return Row(text, label, source_text)

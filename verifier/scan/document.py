@@ -1,0 +1,42 @@
+"""What the scanners produce: tagged blocks and definitions in reading order."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+from verifier.diagnostics import Diagnostic
+from verifier.scan.display import Row
+from verifier.scan.text import Location, MappedText
+
+MAX_FILE_BYTES = 20 * 1024 * 1024
+MAX_FILES = 500
+MAX_INCLUDE_DEPTH = 16
+
+
+@dataclass
+class ClaimBlock:
+    """A ``claim`` tag and the display it tags."""
+
+    tag: Location
+    options: dict[str, str]
+    rows: list[Row]
+    environment: str
+    problems: list[Diagnostic] = field(default_factory=list)
+
+
+@dataclass
+class DefineTag:
+    """A ``define`` tag: the text after the keyword (``NAME = expr``)."""
+
+    tag: Location
+    text: MappedText | None
+    problems: list[Diagnostic] = field(default_factory=list)
+
+
+@dataclass
+class ScannedDocument:
+    """Everything the scanner found, in reading order (across \\input)."""
+
+    items: list[ClaimBlock | DefineTag] = field(default_factory=list)
+    diagnostics: list[Diagnostic] = field(default_factory=list)
+    files: list[str] = field(default_factory=list)

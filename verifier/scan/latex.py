@@ -1,0 +1,200 @@
+"""Scan a LaTeX manuscript for ``%@claim`` and ``%@define`` tags.
+
+A ``%@claim`` comment line tags the next display-math block (``\\[..\\]``, ``$$..$$``,
+``equation``, ``align``, ``gather``, ``multline`` and their starred forms).  Macro
+definitions are collected in reading order and ``\\input``/``\\include`` are followed,
+relative to the main file and never outside its folder.
+"""
+
+from __future__ import annotations
+
+import re
+from pathlib import Path
+
+from verifier.diagnostics import Diagnostic
+from verifier.scan import macros as macro_mod
+from verifier.scan.display import normalise_row, rows_of
+from verifier.scan.document import (
+    MAX_FILE_BYTES,
+    MAX_FILES,
+    MAX_INCLUDE_DEPTH,
+    ClaimBlock,
+    DefineTag,
+    ScannedDocument,
+)
+from verifier.scan.options import parse_options
+from verifier.scan.text import Location, MappedText, SourceFile, blank_comments
+
+ENVIRONMENTS = ("equation", "align", "gather", "multline", "flalign")
+_TAG_LINE = re.compile(r"^[ \t]*%@(?P<kind>claim|define)(?P<rest>(?![A-Za-z]).*)$", re.M)
+_INCLUDE = re.compile(r"\\(?P<cmd>input|include|subfile)(?![A-Za-z])\s*(?:\{(?P<braced>[^{}]*)\}|(?P<bare>[^\s{}\\%]+))")
+_DISPLAY_OPEN = re.compile(r"\\\[|\$\$|\\begin\s*\{(?P<env>(?:" + "|".join(ENVIRONMENTS) + r")\*?)\}")
+
+
+class _Reader:
+    """Walks the main file and its includes, filling a :class:`ScannedDocument`."""
+
+    def __init__(self, root: Path) -> None:
+        self.root = root.resolve()
+        self.doc = ScannedDocument()
+        self.macros: dict[str, macro_mod.Macro] = {}
+        self.active: list[Path] = []
+
+    def read_path(self, path: Path, at: Location | None) -> None:
+        resolved = path.resolve()
+        display = _display_name(resolved, self.root)
+        if len(self.doc.files) >= MAX_FILES:
+            self._problem("unreadable", at, f"more than {MAX_FILES} files; {display} not read", "")
+            return
+        try:
+            data = resolved.read_bytes()
+        except OSError as exc:
+            self._problem("unreadable", at, f"cannot read {display}: {exc.strerror or exc}", "check the path")
+            return
+        if len(data) > MAX_FILE_BYTES:
+            self._problem("unreadable", at, f"{display} is larger than {MAX_FILE_BYTES} bytes", "")
+            return
+        text = data.decode("utf-8", errors="replace")
+        self.active.append(resolved)
+        self.doc.files.append(display)
+        self.read_source(SourceFile(display, text, resolved))
+        self.active.pop()
+
+    def read_source(self, source: SourceFile) -> None:
+        raw = source.text
+        bare = blank_comments(raw)
+        events: list[tuple[int, str, re.Match[str] | tuple[int, object]]] = []
+        for m in _TAG_LINE.finditer(raw):
+            events.append((m.start(), "tag", m))
+        for m in _INCLUDE.finditer(bare):
+            events.append((m.start(), "include", m))
+        for offset, found in macro_mod.find_definitions(bare):
+            events.append((offset, "macro", (offset, found)))
+        events.sort(key=lambda e: e[0])
+        tag_offsets = [e[0] for e in events if e[1] == "tag"]
+        for offset, kind, payload in events:
+            if kind == "macro":
+                assert isinstance(payload, tuple)
+                found = payload[1]
+                if isinstance(found, macro_mod.Macro):
+                    if not (found.name in self.macros and bare.startswith("\\providecommand", offset)):
+                        self.macros[found.name] = found
+                else:
+                    assert isinstance(found, macro_mod.DefinitionProblem)
+                    loc = _loc(source, found.offset)
+                    self.doc.diagnostics.append(Diagnostic("bad-macro", "warning", loc, found.message,
+                                                           "claims using this macro will not parse"))
+            elif kind == "include":
+                assert isinstance(payload, re.Match)
+                self._include(source, payload)
+            else:
+                assert isinstance(payload, re.Match)
+                self._tag(source, bare, payload, tag_offsets)
+
+    def _include(self, source: SourceFile, m: re.Match[str]) -> None:
+        at = _loc(source, m.start())
+        name = (m.group("braced") or m.group("bare") or "").strip()
+        if not name:
+            return
+        if len(self.active) >= MAX_INCLUDE_DEPTH:
+            self._problem("include-cycle", at, f"\\{m.group('cmd')} nested deeper than {MAX_INCLUDE_DEPTH}", "")
+            return
+        base = source.path.parent if source.path else self.root
+        target = (base / name).resolve()
+        if target.suffix != ".tex" and not target.is_file():
+            target = target.with_name(target.name + ".tex")
+        if not target.is_relative_to(self.root):
+            self._problem("include-outside", at, f"{name} lies outside the manuscript's folder; not read",
+                          "keep all parts of the manuscript under the main file's folder")
+            return
+        if not target.is_file():
+            self._problem("include-missing", at, f"{name} not found", "check the file name")
+            return
+        if target in self.active:
+            self._problem("include-cycle", at, f"{name} is already being read", "remove the circular \\input")
+            return
+        self.read_path(target, at)
+
+    def _tag(self, source: SourceFile, bare: str, m: re.Match[str], tag_offsets: list[int]) -> None:
+        loc = _loc(source, m.start("kind") - 2)
+        rest_start = m.start("rest")
+        rest = m.group("rest")
+        if m.group("kind") == "define":
+            text = MappedText(rest, list(range(rest_start, rest_start + len(rest))), source)
+            define = DefineTag(loc, None)
+            try:
+                define.text = macro_mod.expand(text, self.macros)
+            except macro_mod.MacroError as exc:
+                define.problems.append(Diagnostic("macro-expansion", "error", text.location(exc.index), str(exc), ""))
+            self.doc.items.append(define)
+            return
+        options, option_problems = parse_options(rest)
+        block = ClaimBlock(loc, options, [], "")
+        for p in option_problems:
+            block.problems.append(Diagnostic(p.code, "error", _loc(source, rest_start + p.offset), p.message, p.hint))
+        self.doc.items.append(block)
+        after = m.end()
+        i = after
+        while i < len(bare) and bare[i] in " \t\r\n":
+            i += 1
+        opener = _DISPLAY_OPEN.match(bare, i)
+        next_tag = next((t for t in tag_offsets if t > m.start()), None)
+        if opener is None or (next_tag is not None and next_tag < i):
+            block.problems.append(Diagnostic("orphan-tag", "error", loc, "this claim tag is not followed by display math",
+                                             "put \\[ ... \\], $$ ... $$ or an equation/align environment right after the tag"))
+            return
+        env = opener.group("env") or ("\\[" if opener.group(0) == "\\[" else "$$")
+        closer = {"\\[": "\\]", "$$": "$$"}.get(env, f"\\end{{{env}}}")
+        close = _find_closer(bare, opener.end(), closer, env)
+        if close < 0:
+            block.problems.append(Diagnostic("unclosed-display", "error", _loc(source, opener.start()),
+                                             f"{opener.group(0)} is never closed", f"add {closer}"))
+            return
+        block.environment = env
+        content = MappedText(bare[opener.end() : close], list(range(opener.end(), close)), source)
+        for row in rows_of(content, env):
+            try:
+                block.rows.append(normalise_row(row, self.macros))
+            except macro_mod.MacroError as exc:
+                block.problems.append(Diagnostic("macro-expansion", "error", row.location(exc.index), str(exc),
+                                                 "check the definition of the macro"))
+
+    def _problem(self, code: str, at: Location | None, message: str, hint: str) -> None:
+        where = at or Location(str(self.root), 1, 1)
+        self.doc.diagnostics.append(Diagnostic(code, "error", where, message, hint))
+
+
+def _find_closer(text: str, start: int, closer: str, env: str) -> int:
+    if not env.startswith(("\\", "$")):
+        # Same-name nesting is not legal LaTeX for these environments; take the first end.
+        pattern = re.compile(r"\\end\s*\{" + re.escape(env) + r"\}")
+        m = pattern.search(text, start)
+        return m.start() if m else -1
+    return text.find(closer, start)
+
+
+def _loc(source: SourceFile, offset: int) -> Location:
+    line, col = source.line_col(offset)
+    return Location(source.display, line, col)
+
+
+def _display_name(path: Path, root: Path) -> str:
+    try:
+        return str(path.relative_to(Path.cwd()))
+    except ValueError:
+        return str(path)
+
+
+def scan_latex_path(path: Path) -> ScannedDocument:
+    """Scan a LaTeX file and everything it includes."""
+    reader = _Reader(path.resolve().parent)
+    reader.read_path(path, None)
+    return reader.doc
+
+
+def scan_latex_text(text: str, display: str = "<text>") -> ScannedDocument:
+    """Scan LaTeX given as a string (includes are resolved against the current folder)."""
+    reader = _Reader(Path.cwd())
+    reader.doc.files.append(display)
+    reader.read_source(SourceFile(display, text))
+    return reader.doc

@@ -1,0 +1,112 @@
+"""Scan a Markdown note for ``<!-- @claim ... -->`` and ``<!-- @define ... -->`` tags.
+
+A claim tag applies to the next ``$$ ... $$`` block or fenced block of language
+``math``.  Macro definitions written anywhere in the note (typically inside a math
+block, as MathJax and KaTeX allow) are expanded in later claims.
+"""
+
+from __future__ import annotations
+
+import re
+from pathlib import Path
+
+from verifier.diagnostics import Diagnostic
+from verifier.scan import macros as macro_mod
+from verifier.scan.display import normalise_row, rows_of
+from verifier.scan.document import MAX_FILE_BYTES, ClaimBlock, DefineTag, ScannedDocument
+from verifier.scan.options import parse_options
+from verifier.scan.text import Location, MappedText, SourceFile
+
+_TAG = re.compile(r"<!--\s*@(?P<kind>claim|define)(?![A-Za-z])(?P<rest>.*?)-->", re.S)
+_FENCE_OPEN = re.compile(r"(?P<fence>`{3,}|~{3,})[ \t]*math[ \t]*\n")
+
+
+def scan_markdown_source(source: SourceFile) -> ScannedDocument:
+    """Scan one Markdown source."""
+    doc = ScannedDocument(files=[source.display])
+    text = source.text
+    events: list[tuple[int, object]] = [(m.start(), m) for m in _TAG.finditer(text)]
+    events.extend(macro_mod.find_definitions(text))
+    events.sort(key=lambda e: e[0])
+    macros: dict[str, macro_mod.Macro] = {}
+    for offset, payload in events:
+        if isinstance(payload, macro_mod.Macro):
+            macros[payload.name] = payload
+        elif isinstance(payload, macro_mod.DefinitionProblem):
+            doc.diagnostics.append(Diagnostic("bad-macro", "warning", _loc(source, offset), payload.message, ""))
+        else:
+            assert isinstance(payload, re.Match)
+            _tag(source, payload, macros, doc)
+    return doc
+
+
+def _tag(source: SourceFile, m: re.Match[str], macros: dict[str, macro_mod.Macro], doc: ScannedDocument) -> None:
+    text = source.text
+    loc = _loc(source, m.start())
+    rest_start = m.start("rest")
+    rest = m.group("rest")
+    if m.group("kind") == "define":
+        mapped = MappedText(rest, list(range(rest_start, rest_start + len(rest))), source)
+        define = DefineTag(loc, None)
+        try:
+            define.text = macro_mod.expand(mapped, macros)
+        except macro_mod.MacroError as exc:
+            define.problems.append(Diagnostic("macro-expansion", "error", mapped.location(exc.index), str(exc), ""))
+        doc.items.append(define)
+        return
+    options, problems = parse_options(rest.replace("\n", " "))
+    block = ClaimBlock(loc, options, [], "")
+    for p in problems:
+        block.problems.append(Diagnostic(p.code, "error", _loc(source, rest_start + p.offset), p.message, p.hint))
+    doc.items.append(block)
+    i = m.end()
+    while i < len(text) and text[i] in " \t\r\n":
+        i += 1
+    if text.startswith("$$", i):
+        start = i + 2
+        close = text.find("$$", start)
+        opener = "$$"
+    else:
+        fence = _FENCE_OPEN.match(text, i)
+        if fence is None:
+            block.problems.append(Diagnostic("orphan-tag", "error", loc, "this claim tag is not followed by a math block",
+                                             "put a $$ ... $$ block or a ```math fence right after the tag"))
+            return
+        start = fence.end()
+        closing = re.compile(r"^[ \t]*" + re.escape(fence.group("fence")) + r"[ \t]*$", re.M)
+        found = closing.search(text, start)
+        close = found.start() if found else -1
+        opener = fence.group("fence") + "math"
+    if close < 0:
+        block.problems.append(Diagnostic("unclosed-display", "error", _loc(source, i), f"{opener} is never closed",
+                                         "close the math block"))
+        return
+    block.environment = opener
+    content = MappedText(text[start:close], list(range(start, close)), source)
+    for row in rows_of(content, opener):
+        try:
+            block.rows.append(normalise_row(row, macros))
+        except macro_mod.MacroError as exc:
+            block.problems.append(Diagnostic("macro-expansion", "error", row.location(exc.index), str(exc), ""))
+
+
+def _loc(source: SourceFile, offset: int) -> Location:
+    line, col = source.line_col(offset)
+    return Location(source.display, line, col)
+
+
+def scan_markdown_path(path: Path, display: str) -> ScannedDocument:
+    """Scan a Markdown file."""
+    try:
+        data = path.read_bytes()
+    except OSError as exc:
+        doc = ScannedDocument()
+        doc.diagnostics.append(Diagnostic("unreadable", "error", Location(display, 1, 1),
+                                          f"cannot read {display}: {exc.strerror or exc}", "check the path"))
+        return doc
+    if len(data) > MAX_FILE_BYTES:
+        doc = ScannedDocument()
+        doc.diagnostics.append(Diagnostic("unreadable", "error", Location(display, 1, 1),
+                                          f"{display} is larger than {MAX_FILE_BYTES} bytes", ""))
+        return doc
+    return scan_markdown_source(SourceFile(display, data.decode("utf-8", errors="replace"), path))
