@@ -10,7 +10,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 from typing import Any
 
-from verifier.scan.text import Location
+from verifier.location import Location
 
 # code -> (stage, one-line documentation)
 CODES: dict[str, tuple[str, str]] = {

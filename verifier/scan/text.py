@@ -15,6 +15,8 @@ from collections.abc import Callable
 from dataclasses import dataclass, field
 from pathlib import Path
 
+from verifier.location import Location
+
 
 @dataclass
 class SourceFile:
@@ -33,18 +35,6 @@ class SourceFile:
         offset = max(0, min(offset, len(self.text)))
         line = bisect.bisect_right(self._line_starts, offset) - 1
         return line + 1, offset - self._line_starts[line] + 1
-
-
-@dataclass(frozen=True)
-class Location:
-    """A position in the author's source: file, line, column (all 1-based)."""
-
-    file: str
-    line: int
-    column: int
-
-    def __str__(self) -> str:
-        return f"{self.file}:{self.line}:{self.column}"
 
 
 class MappedText:
@@ -89,13 +79,18 @@ class MappedText:
         return Location(self.source.display, line, col)
 
     def source_slice(self, start: int = 0, end: int | None = None) -> str:
-        """The author's original text covering characters ``[start, end)``."""
+        """The author's original text covering characters ``[start, end)``.
+
+        Characters produced by a macro map to the start of the call, so the slice runs
+        up to where the next character of this text comes from (the end of the call).
+        """
         end = len(self.text) if end is None else end
         if start >= end or not self.origins:
             return ""
         a = self.origin(start)
-        b = max(self.origins[start:end]) + 1
-        return self.source.text[a:b]
+        last = max(self.origins[start:end]) + 1
+        b = self.origins[end] if end < len(self.origins) else last
+        return self.source.text[a : max(b, last)].rstrip()
 
     def strip(self) -> MappedText:
         """Without leading and trailing white space."""

@@ -1,0 +1,7 @@
+"""``python -m verifier`` runs the qreferee command."""
+
+import sys
+
+from verifier.cli import main
+
+sys.exit(main())

@@ -1,0 +1,269 @@
+"""The library API: check a manuscript (path or text) and get one result per claim.
+
+``check_path`` and ``check_text`` run the whole pipeline: scan -> parse -> elaborate ->
+prove.  The command line only wraps them.
+"""
+
+from __future__ import annotations
+
+import time
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import Any
+
+from verifier import __version__
+from verifier.diagnostics import Diagnostic
+from verifier.elaborate import ir
+from verifier.elaborate.elaborator import Elaborator, Problem
+from verifier.options import parse_group, parse_weight
+from verifier.parse import ast
+from verifier.parse.grammar import ParseFailure, parse_claim, parse_definition
+from verifier.prove.evaluate import AtomTable
+from verifier.prove.prover import DEFAULT_MAX_TERMS, Outcome, Prover, claim_level
+from verifier.scan import ScannedDocument, scan_path, scan_text
+from verifier.scan.display import Row
+from verifier.scan.document import ClaimBlock, DefineTag
+from verifier.scan.text import Location, MappedText
+
+VERDICTS = ("proved", "refuted", "unproven", "error")
+
+
+@dataclass
+class ClaimResult:
+    """The verdict on one claim, where it is, and its certificate or witness."""
+
+    location: Location
+    end: Location
+    name: str | None
+    label: str | None
+    source: str
+    outcome: Outcome
+    seconds: float = 0.0
+
+    @property
+    def verdict(self) -> str:
+        """``proved``, ``refuted``, ``unproven`` or ``error``."""
+        return self.outcome.verdict
+
+    def to_dict(self) -> dict[str, Any]:
+        """The JSON contract of one claim (fields are only ever added, never removed)."""
+        o = self.outcome
+        return {
+            "file": self.location.file,
+            "line": self.location.line,
+            "column": self.location.column,
+            "name": self.name,
+            "label": self.label,
+            "source": self.source,
+            "kind": o.kind,
+            "verdict": o.verdict,
+            "message": o.message,
+            "space": o.space,
+            "method": o.method,
+            "bound": o.bound,
+            "terms_compared": o.terms_compared,
+            "first_difference": o.first_difference,
+            "seconds": round(self.seconds, 6),
+            "end_line": self.end.line,
+            "end_column": self.end.column,
+            "code": o.code,
+            "hint": o.hint,
+            "components": o.components,
+        }
+
+
+@dataclass
+class Report:
+    """All results of one run."""
+
+    claims: list[ClaimResult] = field(default_factory=list)
+    diagnostics: list[Diagnostic] = field(default_factory=list)
+    files: list[str] = field(default_factory=list)
+
+    @property
+    def summary(self) -> dict[str, int]:
+        """How many claims got each verdict."""
+        counts = dict.fromkeys(VERDICTS, 0)
+        for c in self.claims:
+            counts[c.verdict] += 1
+        return counts
+
+    @property
+    def exit_code(self) -> int:
+        """0 all proved, 1 some refuted/unproven, 2 some error or unreadable input."""
+        s = self.summary
+        if s["error"] or any(d.severity == "error" for d in self.diagnostics):
+            return 2
+        if s["refuted"] or s["unproven"]:
+            return 1
+        return 0
+
+    def to_dict(self) -> dict[str, Any]:
+        """The JSON contract of a run."""
+        return {
+            "tool": "qreferee",
+            "version": __version__,
+            "claims": [c.to_dict() for c in self.claims],
+            "summary": self.summary,
+            "diagnostics": [d.to_dict() for d in self.diagnostics],
+            "files": self.files,
+        }
+
+
+def check_path(path: str | Path, max_terms: int = DEFAULT_MAX_TERMS) -> Report:
+    """Check every tagged claim of the manuscript at ``path`` (LaTeX, or Markdown by suffix)."""
+    doc = scan_path(Path(path))
+    return check_document(doc, max_terms=max_terms)
+
+
+def check_text(
+    text: str, filename: str = "<text>", markdown: bool | None = None, max_terms: int = DEFAULT_MAX_TERMS
+) -> Report:
+    """Check a manuscript given as a string."""
+    return check_document(scan_text(text, filename, markdown), max_terms=max_terms)
+
+
+@dataclass
+class _Pending:
+    result: ClaimResult
+    left: ir.Side
+    right: ir.Side
+    rel: str
+
+
+def check_document(doc: ScannedDocument, max_terms: int = DEFAULT_MAX_TERMS) -> Report:
+    """Parse, elaborate and decide everything a scan found."""
+    report = Report(diagnostics=list(doc.diagnostics), files=list(doc.files))
+    elaborator = Elaborator()
+    prover = Prover(AtomTable(), max_terms=max_terms)
+    pending: list[_Pending] = []
+    for item in doc.items:
+        if isinstance(item, DefineTag):
+            _define(item, elaborator, report)
+        else:
+            _block(item, elaborator, prover, report, pending)
+    for p in pending:
+        prover.table.plan(min(prover.precision_needed(p.left, p.right), max_terms))
+    for p in pending:
+        start = time.perf_counter()
+        p.result.outcome = prover.decide(p.left, p.right, p.rel)
+        p.result.seconds = time.perf_counter() - start
+    return report
+
+
+def _define(item: DefineTag, elaborator: Elaborator, report: Report) -> None:
+    report.diagnostics.extend(item.problems)
+    if item.text is None:
+        return
+    text = item.text
+    parsed = parse_definition(text.text)
+    if isinstance(parsed, ParseFailure):
+        report.diagnostics.append(Diagnostic("bad-define", "error", text.location(parsed.offset),
+                                             f"cannot read this definition: {parsed.message}",
+                                             "write NAME = expression"))
+        return
+    name = parsed.name.replace(" ", "")
+    problem = elaborator.define(name, parsed.body, text.text)
+    if problem is not None:
+        report.diagnostics.append(Diagnostic(problem.code if problem.code != "syntax" else "bad-define", "error",
+                                             text.location(problem.span[0]), problem.message, problem.hint))
+
+
+def _error(loc: Location, code: str, message: str, hint: str, source: str = "", name: str | None = None,
+           label: str | None = None, kind: str = "equality") -> ClaimResult:
+    return ClaimResult(loc, loc, name, label, source, Outcome("error", kind, message, code=code, hint=hint))
+
+
+def _block(block: ClaimBlock, elaborator: Elaborator, prover: Prover, report: Report,
+           pending: list[_Pending]) -> None:
+    name = block.options.get("name")
+    fatal = [p for p in block.problems if p.code != "macro-expansion"]
+    for p in block.problems:
+        report.claims.append(_error(p.location, p.code, p.message, p.hint, name=name))
+    if fatal:
+        return
+    count = 0
+    previous_side: MappedText | None = None
+    for row in block.rows:
+        text = row.text
+        stripped = text.text.lstrip()
+        continuation = stripped.startswith(("=", "\\ne", "\\not="))
+        offset = 0
+        if continuation and previous_side is not None:
+            offset = len(previous_side) + 1
+            text = MappedText.concat([previous_side, MappedText(" ", [previous_side.origin(len(previous_side))],
+                                                               text.source), text], text.source)
+        parsed = parse_claim(text.text)
+        if isinstance(parsed, ParseFailure):
+            report.claims.append(_error(text.location(parsed.offset), parsed.code, parsed.message, parsed.hint,
+                                        row.source_text, name, row.label))
+            previous_side = None
+            continue
+        for i, rel in enumerate(parsed.rels):
+            count += 1
+            claim_name = name if (name is None or count == 1) else f"{name}.{count}"
+            left_node, right_node = parsed.sides[i], parsed.sides[i + 1]
+            start = left_node.span[0]
+            if continuation and i == 0 and previous_side is not None:
+                start = offset + (len(text.text) - offset - len(stripped))
+            pending_claim = _claim(text, left_node, right_node, rel, start, row, claim_name, block, elaborator, prover)
+            if isinstance(pending_claim, ClaimResult):
+                report.claims.append(pending_claim)
+            else:
+                report.claims.append(pending_claim.result)
+                pending.append(pending_claim)
+        last = parsed.sides[-1]
+        previous_side = text.slice(last.span[0], last.span[1])
+
+
+def _claim(text: MappedText, left_node: ast.Node, right_node: ast.Node, rel: str, start: int, row: Row,
+           name: str | None, block: ClaimBlock, elaborator: Elaborator, prover: Prover) -> _Pending | ClaimResult:
+    loc = text.location(start)
+    end = text.location(right_node.span[1] - 1)
+    source = " ".join(text.source_slice(left_node.span[0], right_node.span[1]).replace("&", " ").split())
+    kind = "equality" if rel == "=" else "inequality"
+    sides: list[ir.Side] = []
+    for node in (left_node, right_node):
+        side = elaborator.side(node, text.text)
+        if isinstance(side, Problem):
+            return ClaimResult(text.location(side.span[0]), end, name, row.label, source,
+                               Outcome("error", kind, side.message, code=side.code, hint=side.hint))
+        sides.append(side)
+    left, right = sides
+    if left.printed or right.printed:
+        kind = "prefix"
+    problem = _check_options(block.options, left, right)
+    if problem is not None:
+        code, message, hint = problem
+        return ClaimResult(block.tag, end, name, row.label, source, Outcome("error", kind, message, code=code, hint=hint))
+    result = ClaimResult(loc, end, name, row.label, source, Outcome("error", kind, "not decided"))
+    return _Pending(result, left, right, rel)
+
+
+def _check_options(options: dict[str, str], left: ir.Side, right: ir.Side) -> tuple[str, str, str] | None:
+    if "weight" in options:
+        stated = parse_weight(options["weight"])
+        if stated is None:
+            return ("bad-option", f"cannot read weight={options['weight']}", "write weight=8 or weight=1/2")
+        for side, which in ((left, "left"), (right, "right")):
+            w = side.expr.typ.weight
+            if not side.printed and w is not None and w != stated:
+                return ("weight-mismatch", f"the tag states weight {stated}, but the {which} side "
+                        f"({_short(side.expr.text)}) has weight {w}", "correct the tag or the claim")
+    if "group" in options:
+        group = parse_group(options["group"])
+        if group is None:
+            return ("bad-group", f"cannot read group={options['group']}",
+                    "write SL2(Z), \\Gamma_0(N) or \\Gamma_1(N)")
+        level = claim_level(left, right)
+        if group[1] % level:
+            atoms = [a for s in (left, right) for a in ir.atoms_of(s.expr) if group[1] % a.typ.level]
+            culprit = f" ({atoms[0].text} needs level {atoms[0].typ.level})" if atoms else ""
+            return ("group-mismatch", f"the tag states level {group[1]}, but the claim needs level {level}{culprit}",
+                    "state a group the forms live on")
+    return None
+
+
+def _short(text: str) -> str:
+    text = " ".join(text.split())
+    return text if len(text) <= 40 else text[:37] + "..."

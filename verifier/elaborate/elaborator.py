@@ -1,0 +1,335 @@
+"""Elaboration: AST -> typed expressions, with weight inference and its diagnostics.
+
+Rules (level one and ``f(d tau)``):
+* ``E_k`` (k even >= 4) has weight k, ``\\Delta`` weight 12, ``E_2`` weight 2 and
+  E_2-depth 1, ``j = E_4^3/\\Delta`` weight 0 with a pole at infinity; ``f(d\\tau)``
+  keeps the weight and multiplies the level by d; constants have weight 0 and the
+  constant 0 every weight.
+* Products add weights, quotients subtract them, integer powers multiply them.
+* A sum must have one weight; otherwise the ``mixed-weight`` diagnostic names both
+  weights and the terms they come from.
+* ``q`` belongs to printed expansions; ``\\cdots`` and ``O(q^m)`` may only be summands of
+  a side, and they fix where the printed side stops.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+from fractions import Fraction
+
+from verifier.elaborate import ir
+from verifier.forms.registry import AtomInfo, Unknown, lookup
+from verifier.parse import ast
+
+MAX_EXPONENT = 10_000
+MAX_WEIGHT = Fraction(20_000)
+MAX_LEVEL = 10_000
+
+
+@dataclass(frozen=True)
+class Problem:
+    """An elaboration diagnostic at ``span`` of the claim text."""
+
+    code: str
+    message: str
+    hint: str
+    span: ast.Span
+
+
+class ElaborationError(Exception):
+    """Raised internally; carries the :class:`Problem`."""
+
+    def __init__(self, problem: Problem) -> None:
+        super().__init__(problem.message)
+        self.problem = problem
+
+
+def _fmt_weight(w: Fraction | None) -> str:
+    return "any" if w is None else str(w)
+
+
+class Elaborator:
+    """Elaborates sides of claims in the context of the document's definitions."""
+
+    def __init__(self, definitions: dict[str, ir.Expr] | None = None) -> None:
+        self.definitions: dict[str, ir.Expr] = dict(definitions or {})
+
+    # -- public -------------------------------------------------------------------
+    def side(self, node: ast.Node, text: str) -> ir.Side | Problem:
+        """Elaborate one side of a claim; ``text`` is the claim text the spans index."""
+        try:
+            terms = _summands(node)
+            trunc: int | None = None
+            dots = False
+            kept: list[tuple[int, ast.Node]] = []
+            for sign, term in terms:
+                if isinstance(term, ast.Dots):
+                    if sign < 0:
+                        raise _err("bad-expansion", "'- \\cdots' is not a printed expansion", "write + \\cdots", term)
+                    dots = True
+                elif isinstance(term, ast.BigO):
+                    m = _big_o_exponent(term)
+                    trunc = m if trunc is None else min(trunc, m)
+                else:
+                    kept.append((sign, term))
+            if not kept:
+                raise _err("bad-expansion", "this side has only \\cdots or O(...)", "write the printed terms", node)
+            expr = self._sum_of(kept, text)
+            printed = expr.typ.printed or dots or trunc is not None
+            if dots and trunc is None:
+                trunc = _degree(expr) + 1
+            return ir.Side(expr, trunc, printed)
+        except ElaborationError as exc:
+            return exc.problem
+
+    def define(self, name: str, node: ast.Node, text: str) -> Problem | None:
+        """Record ``name := node``; returns a problem if the body does not elaborate."""
+        result = self.side(node, text)
+        if isinstance(result, Problem):
+            return result
+        if result.truncation is not None:
+            return Problem("bad-define", "a definition cannot be a truncated expansion", "define a form", node.span)
+        self.definitions[name] = result.expr
+        return None
+
+    # -- expressions ----------------------------------------------------------------
+    def _sum_of(self, terms: list[tuple[int, ast.Node]], text: str) -> ir.Expr:
+        acc: ir.Expr | None = None
+        for sign, node in terms:
+            e = self.expr(node, text)
+            if acc is None:
+                acc = e if sign > 0 else _neg(e, text, node)
+            else:
+                acc = _add(acc, e, sign, text, node)
+        assert acc is not None
+        return acc
+
+    def expr(self, node: ast.Node, text: str) -> ir.Expr:
+        """Elaborate an expression node (raises :class:`ElaborationError`)."""
+        src = text[node.span[0] : node.span[1]]
+        if isinstance(node, ast.Number):
+            return ir.Const(ir.Typ(Fraction(0) if node.value else None), src, Fraction(node.value))
+        if isinstance(node, ast.Decimal):
+            raise _err("not-exact", f"decimal number {node.text} is not exact", "write it as a fraction \\frac{a}{b}", node)
+        if isinstance(node, ast.Name):
+            return self._name(node, src)
+        if isinstance(node, ast.Neg):
+            return _neg(self.expr(node.operand, text), text, node)
+        if isinstance(node, ast.BinOp):
+            if node.op in "+-":
+                return self._sum_of(_summands(node), text)
+            left = self.expr(node.left, text)
+            right = self.expr(node.right, text)
+            if node.op == "*":
+                return _mul(left, right, src)
+            return _div(left, right, src, node)
+        if isinstance(node, ast.Power):
+            return _pow(self.expr(node.base, text), node.exponent, src, node)
+        if isinstance(node, ast.Dots | ast.BigO):
+            raise _err("bad-expansion", "\\cdots and O(...) may only be added at the end of a side",
+                       "write them as the last summands, e.g. 1 + 240q + \\cdots", node)
+        raise _err("syntax", "this construction has no meaning here", "", node)
+
+    def _name(self, node: ast.Name, src: str) -> ir.Expr:
+        name = node.text.replace(" ", "")
+        scale = 1
+        if node.arg not in (None, "tau", "z", "q"):
+            digits = node.arg.removesuffix("tau") if node.arg else ""
+            if not digits.isdigit() or int(digits) < 1:
+                raise _err("syntax", f"cannot read the argument of {name}", "write (\\tau) or (d\\tau)", node)
+            scale = int(digits)
+        if name == "q":
+            if node.arg is not None:
+                raise _err("syntax", "q takes no argument", "", node)
+            return ir.QPower(ir.Typ(None, printed=True), src, 1)
+        if name in self.definitions and name != "j":
+            if scale != 1:
+                raise _err("unsupported", f"{name}({scale}\\tau) of a defined form is not supported yet",
+                           "define the rescaled form directly", node)
+            return self.definitions[name]
+        if name == "j":
+            if "j" in self.definitions:
+                return self.definitions["j"]
+            e4 = _atom(AtomInfo("E4", Fraction(4), 0), scale, "E_4")
+            delta = _atom(AtomInfo("Delta", Fraction(12), 0), scale, "\\Delta")
+            return _div(_pow(e4, 3, "E_4^3", node), delta, src, node)
+        found = lookup(name)
+        if isinstance(found, AtomInfo):
+            return _atom(found, scale, src)
+        if isinstance(found, Unknown):
+            raise _err("unknown-symbol", found.message, found.hint, node)
+        hint = "known forms: E_2, E_4, E_6, ..., \\Delta, j; or name a form with a define tag"
+        if len(name) > 1 and name[1:2] == "_" and not name.endswith("}"):
+            hint += f"; note that in LaTeX {name}2 reads as {name} followed by 2 (write {name[:2]}{{..}})"
+        raise _err("unknown-symbol", f"unknown symbol {name}", hint, node)
+
+
+def _atom(info: AtomInfo, scale: int, src: str) -> ir.Atom:
+    if scale > MAX_LEVEL:
+        raise ElaborationError(Problem("too-large", f"level {scale} exceeds the limit {MAX_LEVEL}", "", (0, 0)))
+    return ir.Atom(ir.Typ(info.weight, info.depth, scale), src, info.key, scale)
+
+
+def _summands(node: ast.Node) -> list[tuple[int, ast.Node]]:
+    """Flatten a chain of + and - into signed terms."""
+    if isinstance(node, ast.BinOp) and node.op in "+-":
+        left = _summands(node.left)
+        right = _summands(node.right)
+        if node.op == "-":
+            right = [(-s, t) for s, t in right]
+        return left + right
+    if isinstance(node, ast.Neg):
+        return [(-s, t) for s, t in _summands(node.operand)]
+    return [(1, node)]
+
+
+def _big_o_exponent(node: ast.BigO) -> int:
+    inner = node.inner
+    if isinstance(inner, ast.Name) and inner.text == "q":
+        return 1
+    if isinstance(inner, ast.Power) and isinstance(inner.base, ast.Name) and inner.base.text == "q":
+        return inner.exponent
+    raise _err("bad-expansion", "O(...) must contain a power of q", "write O(q^{m})", node)
+
+
+def _err(code: str, message: str, hint: str, node: ast.Node) -> ElaborationError:
+    return ElaborationError(Problem(code, message, hint, node.span))
+
+
+def _lcm(a: int, b: int) -> int:
+    return a * b // math.gcd(a, b)
+
+
+def _check_size(typ: ir.Typ, node: ast.Node | None) -> ir.Typ:
+    if typ.weight is not None and abs(typ.weight) > MAX_WEIGHT:
+        raise ElaborationError(Problem("too-large", f"weight {typ.weight} exceeds the limit {MAX_WEIGHT}",
+                                       "split the claim", node.span if node else (0, 0)))
+    if typ.level > MAX_LEVEL:
+        raise ElaborationError(Problem("too-large", f"level {typ.level} exceeds the limit {MAX_LEVEL}", "",
+                                       node.span if node else (0, 0)))
+    return typ
+
+
+def _neg(e: ir.Expr, text: str, node: ast.Node) -> ir.Expr:
+    return ir.Product(e.typ, "-" + e.text, ir.Const(ir.Typ(Fraction(0)), "-1", Fraction(-1)), e)
+
+
+def _add(a: ir.Expr, b: ir.Expr, sign: int, text: str, node: ast.Node) -> ir.Expr:
+    ta, tb = a.typ, b.typ
+    if ta.printed or tb.printed:
+        weight = None
+    elif ta.weight is None:
+        weight = tb.weight
+    elif tb.weight is None or ta.weight == tb.weight:
+        weight = ta.weight
+    else:
+        raise ElaborationError(
+            Problem(
+                "mixed-weight",
+                f"this sum adds weight {ta.weight} ({_short(a.text)}) and weight {tb.weight} ({_short(b.text)})",
+                "every term of a sum must have the same weight; check exponents and factors",
+                node.span,
+            )
+        )
+    typ = ir.Typ(
+        weight,
+        max(ta.depth, tb.depth),
+        _lcm(ta.level, tb.level),
+        ta.den_weight + tb.den_weight,
+        ta.printed or tb.printed,
+        ta.has_pole or tb.has_pole,
+    )
+    op = "+" if sign > 0 else "-"
+    return ir.Sum(typ, f"{a.text} {op} {b.text}", a, b, sign)
+
+
+def _short(text: str) -> str:
+    text = " ".join(text.split())
+    return text if len(text) <= 40 else text[:37] + "..."
+
+
+def _mul(a: ir.Expr, b: ir.Expr, src: str) -> ir.Expr:
+    ta, tb = a.typ, b.typ
+    printed = ta.printed or tb.printed
+    if printed:
+        weight = None
+    elif _is_zero(a) or _is_zero(b):
+        weight = None
+    else:
+        assert ta.weight is not None and tb.weight is not None
+        weight = ta.weight + tb.weight
+    typ = ir.Typ(weight, ta.depth + tb.depth, _lcm(ta.level, tb.level), ta.den_weight + tb.den_weight,
+                 printed, ta.has_pole or tb.has_pole)
+    return ir.Product(_check_size(typ, None), src, a, b)
+
+
+def _is_zero(e: ir.Expr) -> bool:
+    return isinstance(e, ir.Const) and e.value == 0
+
+
+def _div(a: ir.Expr, b: ir.Expr, src: str, node: ast.Node) -> ir.Expr:
+    ta, tb = a.typ, b.typ
+    if _is_zero(b):
+        raise _err("zero-division", "division by 0", "", node)
+    if tb.printed:
+        raise _err("unsupported", "dividing by a printed expansion is not supported", "", node)
+    printed = ta.printed
+    if printed:
+        weight = None
+    elif _is_zero(a):
+        weight = None
+    else:
+        assert ta.weight is not None and tb.weight is not None
+        weight = ta.weight - tb.weight
+    den = tb.weight if tb.weight is not None and not isinstance(b, ir.Const) else Fraction(0)
+    typ = ir.Typ(weight, ta.depth + tb.depth, _lcm(ta.level, tb.level), ta.den_weight + tb.den_weight + den,
+                 printed, ta.has_pole or not isinstance(b, ir.Const) or tb.has_pole)
+    if isinstance(a, ir.Const) and isinstance(b, ir.Const):
+        return ir.Const(typ, src, a.value / b.value)
+    return ir.Quotient(_check_size(typ, node), src, a, b)
+
+
+def _pow(base: ir.Expr, e: int, src: str, node: ast.Node) -> ir.Expr:
+    if abs(e) > MAX_EXPONENT:
+        raise _err("too-large", f"exponent {e} exceeds the limit {MAX_EXPONENT}", "", node)
+    tb = base.typ
+    if isinstance(base, ir.Const):
+        if base.value == 0 and e < 0:
+            raise _err("zero-division", "0 to a negative power", "", node)
+        if abs(e) * max(abs(base.value.numerator), abs(base.value.denominator)).bit_length() > 200_000:
+            raise _err("too-large", "this constant is too large", "", node)
+        value = base.value**e
+        return ir.Const(ir.Typ(None if value == 0 else Fraction(0)), src, value)
+    if isinstance(base, ir.QPower):
+        return ir.QPower(tb, src, base.exponent * e)
+    weight = None if tb.weight is None else tb.weight * e
+    if e >= 0:
+        typ = ir.Typ(weight, tb.depth * e, tb.level, tb.den_weight * e, tb.printed, tb.has_pole)
+    else:
+        if tb.printed:
+            raise _err("unsupported", "negative powers of a printed expansion are not supported", "", node)
+        den = (tb.weight or Fraction(0)) * (-e) + tb.den_weight * (-e)
+        typ = ir.Typ(weight, tb.depth * (-e), tb.level, den, False, True)
+    return ir.Power(_check_size(typ, node), src, base, e)
+
+
+def _degree(expr: ir.Expr) -> int:
+    """Highest power of q printed in ``expr`` (forms count as degree 0)."""
+    if isinstance(expr, ir.QPower):
+        return expr.exponent
+    if isinstance(expr, ir.Const | ir.Atom):
+        return 0
+    if isinstance(expr, ir.Sum):
+        assert expr.left is not None and expr.right is not None
+        return max(_degree(expr.left), _degree(expr.right))
+    if isinstance(expr, ir.Product):
+        assert expr.left is not None and expr.right is not None
+        return _degree(expr.left) + _degree(expr.right)
+    if isinstance(expr, ir.Quotient):
+        assert expr.left is not None
+        return _degree(expr.left)
+    if isinstance(expr, ir.Power):
+        assert expr.base is not None
+        return _degree(expr.base) * max(expr.exponent, 0)
+    return 0

@@ -1,0 +1,35 @@
+"""Meaning of the tag options ``weight=`` and ``group=`` (their syntax is in scan.options)."""
+
+from __future__ import annotations
+
+import re
+from fractions import Fraction
+
+_WEIGHT = re.compile(r"^\s*(-?\d+)\s*(?:/\s*(\d+))?\s*$")
+_FRAC = re.compile(r"^\s*\\[dt]?frac\s*\{\s*(-?\d+)\s*\}\s*\{\s*(\d+)\s*\}\s*$")
+_SL2 = re.compile(r"^(SL_?2|SL_?\{2\})\((Z)\)$", re.I)
+_GAMMA = re.compile(r"^\\?Gamma_?\{?([01])\}?\((\d+)\)$")
+
+
+def parse_weight(value: str) -> Fraction | None:
+    """``8``, ``1/2``, ``\\frac{1}{2}``; None if unreadable."""
+    m = _WEIGHT.match(value) or _FRAC.match(value)
+    if not m:
+        return None
+    den = int(m.group(2)) if m.group(2) else 1
+    return None if den == 0 else Fraction(int(m.group(1)), den)
+
+
+def parse_group(value: str) -> tuple[str, int] | None:
+    """``SL_2(\\mathbb Z)``, ``SL2(Z)``, ``\\Gamma_0(4)``, ``\\Gamma_1(5)`` -> (kind, N)."""
+    v = re.sub(r"\\(mathrm|mathbb|operatorname|text|mathbf|rm|bf)\b", "", value)
+    v = v.replace(" ", "").replace("{", "").replace("}", "").replace("\\left", "").replace("\\right", "")
+    v = re.sub(r"\(\\?Z\)", "(Z)", v)
+    if _SL2.match(v):
+        return ("Gamma0", 1)
+    m = _GAMMA.match(v)
+    if m and int(m.group(2)) >= 1:
+        return ("Gamma" + m.group(1), int(m.group(2)))
+    if v in ("\\Gamma(1)", "Gamma(1)"):
+        return ("Gamma0", 1)
+    return None

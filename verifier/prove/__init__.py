@@ -1,0 +1,1 @@
+"""Stage 4: compute exact q-expansions and decide each claim."""

@@ -1,0 +1,214 @@
+"""Evaluate typed expressions to exact q-expansions, in two ways.
+
+* :func:`laurent` gives the plain Laurent series of a side (E_2 substituted, quotients
+  divided out, poles kept): what the author's two sides *are*, coefficient by
+  coefficient.  Used for printed expansions and for the witness of a refutation.
+* :func:`graded_fraction` gives a side as numerator/denominator, each a polynomial in a
+  formal symbol E_2 whose coefficients are holomorphic modular forms, graded by weight:
+  ``{(w, j): f}`` stands for ``sum f * E_2^j`` with ``f`` in M_{w-2j}(Gamma_0(N)).
+  Nothing is divided, so every coefficient series is holomorphic at infinity, and
+  proofs apply the Sturm bound to each ``(w, j)`` piece (MATH.md §7.3).
+
+Atom series are computed once per precision by an :class:`AtomTable` and reused.
+"""
+
+from __future__ import annotations
+
+from fractions import Fraction
+
+from verifier.elaborate import ir
+from verifier.forms.registry import build_series
+from verifier.series.qseries import QSeries
+
+Key = tuple[Fraction, int]  # (total weight, power of E_2)
+Graded = dict[Key, QSeries]
+
+
+class AtomTable:
+    """Exact series of atoms, each computed once at the largest precision asked for."""
+
+    def __init__(self) -> None:
+        self._series: dict[str, QSeries] = {}
+        self._planned = 0
+        self.computed = 0  # how many atom expansions were built (for tests and bench)
+
+    def plan(self, prec: int) -> None:
+        """Announce a precision that will be needed, so the first build is large enough."""
+        self._planned = max(self._planned, prec)
+
+    def base(self, key: str, prec: int) -> QSeries:
+        """The series of atom ``key`` at tau, to at least ``prec``."""
+        have = self._series.get(key)
+        if have is None or have.prec < prec:
+            have = build_series(key, max(prec, self._planned))
+            self.computed += 1
+            self._series[key] = have
+        return have.truncate(prec)
+
+    def atom(self, key: str, scale: int, prec: int) -> QSeries:
+        """The series of ``key(scale * tau)`` to precision ``prec``."""
+        if scale == 1:
+            return self.base(key, prec)
+        return self.base(key, -(-prec // scale)).inflate(scale).truncate(prec)
+
+
+# -- plain Laurent series --------------------------------------------------------------
+def laurent(expr: ir.Expr, prec: int, table: AtomTable) -> QSeries:
+    """The q-expansion of ``expr``, exact for exponents below the returned ``.prec``.
+
+    The result may be known to less than ``prec`` when denominators have zeros at
+    infinity; callers raise ``prec`` and retry.
+    """
+    if isinstance(expr, ir.Const):
+        return QSeries.constant(expr.value, prec)
+    if isinstance(expr, ir.QPower):
+        return QSeries.monomial(expr.exponent, max(prec, expr.exponent + 1))
+    if isinstance(expr, ir.Atom):
+        return table.atom(expr.key, expr.scale, prec)
+    if isinstance(expr, ir.Sum):
+        assert expr.left is not None and expr.right is not None
+        a = laurent(expr.left, prec, table)
+        b = laurent(expr.right, prec, table)
+        return a + b if expr.sign > 0 else a - b
+    if isinstance(expr, ir.Product):
+        assert expr.left is not None and expr.right is not None
+        left, right = expr.left, expr.right
+        if isinstance(left, ir.Const):
+            return laurent(right, prec, table).scale(left.value)
+        a = laurent(left, prec, table)
+        b = laurent(right, prec - min(a.valuation, 0), table)
+        return a * b
+    if isinstance(expr, ir.Quotient):
+        assert expr.left is not None and expr.right is not None
+        if isinstance(expr.right, ir.Const):
+            return laurent(expr.left, prec, table).scale(1 / expr.right.value)
+        den = laurent(expr.right, prec, table)
+        # Dividing by a series of valuation v loses v terms: ask for them up front.
+        den = laurent(expr.right, prec + 2 * max(den.valuation, 0), table)
+        num = laurent(expr.left, prec + max(den.valuation, 0), table)
+        return num / den
+    if isinstance(expr, ir.Power):
+        assert expr.base is not None
+        base = laurent(expr.base, prec, table)
+        if expr.exponent < 0:
+            base = laurent(expr.base, prec + 2 * max(base.valuation, 0) * (-expr.exponent), table)
+        elif base.valuation < 0:
+            base = laurent(expr.base, prec - base.valuation * (expr.exponent - 1), table)
+        return base**expr.exponent
+    raise TypeError(type(expr).__name__)
+
+
+def laurent_to(expr: ir.Expr, prec: int, table: AtomTable, limit: int) -> QSeries:
+    """:func:`laurent`, raising the working precision until ``prec`` is reached."""
+    work = prec
+    for _ in range(6):
+        s = laurent(expr, work, table)
+        if s.prec >= prec:
+            return s.truncate(prec)
+        work += prec - s.prec
+        if work > limit:
+            break
+    raise BudgetExceeded(work)
+
+
+class BudgetExceeded(Exception):
+    """More coefficients would be needed than the budget allows."""
+
+    def __init__(self, needed: int) -> None:
+        super().__init__(f"needs {needed} coefficients")
+        self.needed = needed
+
+
+# -- graded fractions -----------------------------------------------------------------
+def graded_add(a: Graded, b: Graded, sign: int = 1) -> Graded:
+    """``a + sign * b``."""
+    out = dict(a)
+    for k, s in b.items():
+        t = s if sign > 0 else -s
+        out[k] = out[k] + t if k in out else t
+    return out
+
+
+def graded_mul(a: Graded, b: Graded) -> Graded:
+    """``a * b`` (weights and E_2-powers add)."""
+    out: Graded = {}
+    for (wa, ja), sa in a.items():
+        for (wb, jb), sb in b.items():
+            k = (wa + wb, ja + jb)
+            p = sa * sb
+            out[k] = out[k] + p if k in out else p
+    return out
+
+
+def _g_pow(a: Graded, e: int, prec: int) -> Graded:
+    result: Graded = {(Fraction(0), 0): QSeries.constant(1, prec)}
+    base = a
+    while e:
+        if e & 1:
+            result = graded_mul(result, base)
+        e >>= 1
+        if e:
+            base = graded_mul(base, base)
+    return result
+
+
+def _is_one(g: Graded) -> bool:
+    if len(g) != 1 or (Fraction(0), 0) not in g:
+        return False
+    s = g[(Fraction(0), 0)]
+    return s.offset == 0 and s.poly.degree() == 0 and s.poly[0] == 1
+
+
+def _g_const(c: Fraction, prec: int) -> Graded:
+    return {} if c == 0 else {(Fraction(0), 0): QSeries.constant(c, prec)}
+
+
+Fraction2 = tuple[Graded, Graded]
+
+
+def graded_fraction(expr: ir.Expr, prec: int, table: AtomTable) -> Fraction2:
+    """``expr`` as (numerator, denominator) graded polynomials in E_2, to ``prec`` terms."""
+    one = _g_const(Fraction(1), prec)
+    if isinstance(expr, ir.Const):
+        return _g_const(expr.value, prec), one
+    if isinstance(expr, ir.Atom):
+        return _graded_atom(expr, prec, table), one
+    if isinstance(expr, ir.Sum):
+        assert expr.left is not None and expr.right is not None
+        an, ad = graded_fraction(expr.left, prec, table)
+        bn, bd = graded_fraction(expr.right, prec, table)
+        if _is_one(ad) and _is_one(bd):
+            return graded_add(an, bn, expr.sign), one
+        return graded_add(graded_mul(an, bd), graded_mul(bn, ad), expr.sign), graded_mul(ad, bd)
+    if isinstance(expr, ir.Product):
+        assert expr.left is not None and expr.right is not None
+        an, ad = graded_fraction(expr.left, prec, table)
+        bn, bd = graded_fraction(expr.right, prec, table)
+        return graded_mul(an, bn), graded_mul(ad, bd)
+    if isinstance(expr, ir.Quotient):
+        assert expr.left is not None and expr.right is not None
+        an, ad = graded_fraction(expr.left, prec, table)
+        bn, bd = graded_fraction(expr.right, prec, table)
+        return graded_mul(an, bd), graded_mul(ad, bn)
+    if isinstance(expr, ir.Power):
+        assert expr.base is not None
+        n, d = graded_fraction(expr.base, prec, table)
+        e = expr.exponent
+        if e < 0:
+            n, d, e = d, n, -e
+        return _g_pow(n, e, prec), _g_pow(d, e, prec)
+    raise TypeError(f"{type(expr).__name__} has no modular meaning")
+
+
+def _graded_atom(atom: ir.Atom, prec: int, table: AtomTable) -> Graded:
+    w = atom.typ.weight
+    assert w is not None
+    if atom.key != "E2":
+        return {(w, 0): table.atom(atom.key, atom.scale, prec)}
+    if atom.scale == 1:
+        return {(w, 1): QSeries.constant(1, prec)}
+    # E_2(d tau) = E_2(tau)/d + g_d with g_d = E_2(d tau) - E_2(tau)/d in M_2(Gamma_0(d))
+    # (MATH.md §1.3, §7.2).
+    d = atom.scale
+    g = table.atom("E2", d, prec) - table.atom("E2", 1, prec).scale(Fraction(1, d))
+    return {(w, 1): QSeries.constant(Fraction(1, d), prec), (w, 0): g}

@@ -1,0 +1,1 @@
+"""Stage 5: formatters over the results (text for terminals and editors, JSON)."""

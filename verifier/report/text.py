@@ -1,0 +1,37 @@
+"""``file:line:col: severity: verdict: message`` lines, the shape editors and CI parse."""
+
+from __future__ import annotations
+
+from verifier.api import ClaimResult, Report
+
+SEVERITY = {"proved": "note", "refuted": "error", "unproven": "warning", "error": "error"}
+
+
+def claim_line(c: ClaimResult) -> str:
+    """One line for one claim."""
+    o = c.outcome
+    label = f" [{c.name}]" if c.name else (f" ({c.label})" if c.label else "")
+    code = f" [{o.code}]" if o.code else ""
+    hint = f" (hint: {o.hint})" if o.hint else ""
+    return f"{c.location}: {SEVERITY[o.verdict]}: {o.verdict}{label}: {o.message}{code}{hint}"
+
+
+def render(report: Report, verbose: bool = False) -> str:
+    """The whole terminal report: diagnostics, one line per claim, a summary."""
+    lines: list[str] = []
+    for d in report.diagnostics:
+        hint = f" (hint: {d.hint})" if d.hint else ""
+        lines.append(f"{d.location}: {d.severity}: {d.message} [{d.code}]{hint}")
+    for c in report.claims:
+        lines.append(claim_line(c))
+        if verbose:
+            lines.append(f"    claim: {c.source}")
+    s = report.summary
+    total = sum(s.values())
+    lines.append(
+        f"qreferee: {total} claim{'s' if total != 1 else ''}: {s['proved']} proved, {s['refuted']} refuted, "
+        f"{s['unproven']} unproven, {s['error']} error{'s' if s['error'] != 1 else ''}"
+    )
+    if report.claims:
+        lines.append("'proved' certifies each claim as read above, with q = e^{2 pi i tau} and E_k normalised to constant term 1.")
+    return "\n".join(lines) + "\n"
