@@ -15,6 +15,7 @@ from verifier import __version__
 from verifier.diagnostics import Diagnostic
 from verifier.elaborate import ir
 from verifier.elaborate.elaborator import Elaborator, Problem
+from verifier.location import Location
 from verifier.options import parse_group, parse_weight
 from verifier.parse import ast
 from verifier.parse.grammar import ParseFailure, parse_claim, parse_definition
@@ -23,7 +24,7 @@ from verifier.prove.prover import DEFAULT_MAX_TERMS, Outcome, Prover, claim_leve
 from verifier.scan import ScannedDocument, scan_path, scan_text
 from verifier.scan.display import Row
 from verifier.scan.document import ClaimBlock, DefineTag
-from verifier.scan.text import Location, MappedText
+from verifier.scan.text import MappedText
 
 VERDICTS = ("proved", "refuted", "unproven", "error")
 
@@ -117,7 +118,10 @@ def check_path(path: str | Path, max_terms: int = DEFAULT_MAX_TERMS) -> Report:
 
 
 def check_text(
-    text: str, filename: str = "<text>", markdown: bool | None = None, max_terms: int = DEFAULT_MAX_TERMS
+    text: str,
+    filename: str = "<text>",
+    markdown: bool | None = None,
+    max_terms: int = DEFAULT_MAX_TERMS,
 ) -> Report:
     """Check a manuscript given as a string."""
     return check_document(scan_text(text, filename, markdown), max_terms=max_terms)
@@ -158,24 +162,50 @@ def _define(item: DefineTag, elaborator: Elaborator, report: Report) -> None:
     text = item.text
     parsed = parse_definition(text.text)
     if isinstance(parsed, ParseFailure):
-        report.diagnostics.append(Diagnostic("bad-define", "error", text.location(parsed.offset),
-                                             f"cannot read this definition: {parsed.message}",
-                                             "write NAME = expression"))
+        report.diagnostics.append(
+            Diagnostic(
+                "bad-define",
+                "error",
+                text.location(parsed.offset),
+                f"cannot read this definition: {parsed.message}",
+                "write NAME = expression",
+            )
+        )
         return
     name = parsed.name.replace(" ", "")
     problem = elaborator.define(name, parsed.body, text.text)
     if problem is not None:
-        report.diagnostics.append(Diagnostic(problem.code if problem.code != "syntax" else "bad-define", "error",
-                                             text.location(problem.span[0]), problem.message, problem.hint))
+        report.diagnostics.append(
+            Diagnostic(
+                problem.code if problem.code != "syntax" else "bad-define",
+                "error",
+                text.location(problem.span[0]),
+                problem.message,
+                problem.hint,
+            )
+        )
 
 
-def _error(loc: Location, code: str, message: str, hint: str, source: str = "", name: str | None = None,
-           label: str | None = None, kind: str = "equality") -> ClaimResult:
+def _error(
+    loc: Location,
+    code: str,
+    message: str,
+    hint: str,
+    source: str = "",
+    name: str | None = None,
+    label: str | None = None,
+    kind: str = "equality",
+) -> ClaimResult:
     return ClaimResult(loc, loc, name, label, source, Outcome("error", kind, message, code=code, hint=hint))
 
 
-def _block(block: ClaimBlock, elaborator: Elaborator, prover: Prover, report: Report,
-           pending: list[_Pending]) -> None:
+def _block(
+    block: ClaimBlock,
+    elaborator: Elaborator,
+    prover: Prover,
+    report: Report,
+    pending: list[_Pending],
+) -> None:
     name = block.options.get("name")
     fatal = [p for p in block.problems if p.code != "macro-expansion"]
     for p in block.problems:
@@ -191,12 +221,27 @@ def _block(block: ClaimBlock, elaborator: Elaborator, prover: Prover, report: Re
         offset = 0
         if continuation and previous_side is not None:
             offset = len(previous_side) + 1
-            text = MappedText.concat([previous_side, MappedText(" ", [previous_side.origin(len(previous_side))],
-                                                               text.source), text], text.source)
+            text = MappedText.concat(
+                [
+                    previous_side,
+                    MappedText(" ", [previous_side.origin(len(previous_side))], text.source),
+                    text,
+                ],
+                text.source,
+            )
         parsed = parse_claim(text.text)
         if isinstance(parsed, ParseFailure):
-            report.claims.append(_error(text.location(parsed.offset), parsed.code, parsed.message, parsed.hint,
-                                        row.source_text, name, row.label))
+            report.claims.append(
+                _error(
+                    text.location(parsed.offset),
+                    parsed.code,
+                    parsed.message,
+                    parsed.hint,
+                    row.source_text,
+                    name,
+                    row.label,
+                )
+            )
             previous_side = None
             continue
         for i, rel in enumerate(parsed.rels):
@@ -216,8 +261,18 @@ def _block(block: ClaimBlock, elaborator: Elaborator, prover: Prover, report: Re
         previous_side = text.slice(last.span[0], last.span[1])
 
 
-def _claim(text: MappedText, left_node: ast.Node, right_node: ast.Node, rel: str, start: int, row: Row,
-           name: str | None, block: ClaimBlock, elaborator: Elaborator, prover: Prover) -> _Pending | ClaimResult:
+def _claim(
+    text: MappedText,
+    left_node: ast.Node,
+    right_node: ast.Node,
+    rel: str,
+    start: int,
+    row: Row,
+    name: str | None,
+    block: ClaimBlock,
+    elaborator: Elaborator,
+    prover: Prover,
+) -> _Pending | ClaimResult:
     loc = text.location(start)
     end = text.location(right_node.span[1] - 1)
     source = " ".join(text.source_slice(left_node.span[0], right_node.span[1]).replace("&", " ").split())
@@ -226,8 +281,14 @@ def _claim(text: MappedText, left_node: ast.Node, right_node: ast.Node, rel: str
     for node in (left_node, right_node):
         side = elaborator.side(node, text.text)
         if isinstance(side, Problem):
-            return ClaimResult(text.location(side.span[0]), end, name, row.label, source,
-                               Outcome("error", kind, side.message, code=side.code, hint=side.hint))
+            return ClaimResult(
+                text.location(side.span[0]),
+                end,
+                name,
+                row.label,
+                source,
+                Outcome("error", kind, side.message, code=side.code, hint=side.hint),
+            )
         sides.append(side)
     left, right = sides
     if left.printed or right.printed:
@@ -235,7 +296,14 @@ def _claim(text: MappedText, left_node: ast.Node, right_node: ast.Node, rel: str
     problem = _check_options(block.options, left, right)
     if problem is not None:
         code, message, hint = problem
-        return ClaimResult(block.tag, end, name, row.label, source, Outcome("error", kind, message, code=code, hint=hint))
+        return ClaimResult(
+            block.tag,
+            end,
+            name,
+            row.label,
+            source,
+            Outcome("error", kind, message, code=code, hint=hint),
+        )
     result = ClaimResult(loc, end, name, row.label, source, Outcome("error", kind, "not decided"))
     return _Pending(result, left, right, rel)
 
@@ -244,23 +312,36 @@ def _check_options(options: dict[str, str], left: ir.Side, right: ir.Side) -> tu
     if "weight" in options:
         stated = parse_weight(options["weight"])
         if stated is None:
-            return ("bad-option", f"cannot read weight={options['weight']}", "write weight=8 or weight=1/2")
+            return (
+                "bad-option",
+                f"cannot read weight={options['weight']}",
+                "write weight=8 or weight=1/2",
+            )
         for side, which in ((left, "left"), (right, "right")):
             w = side.expr.typ.weight
             if not side.printed and w is not None and w != stated:
-                return ("weight-mismatch", f"the tag states weight {stated}, but the {which} side "
-                        f"({_short(side.expr.text)}) has weight {w}", "correct the tag or the claim")
+                return (
+                    "weight-mismatch",
+                    f"the tag states weight {stated}, but the {which} side ({_short(side.expr.text)}) has weight {w}",
+                    "correct the tag or the claim",
+                )
     if "group" in options:
         group = parse_group(options["group"])
         if group is None:
-            return ("bad-group", f"cannot read group={options['group']}",
-                    "write SL2(Z), \\Gamma_0(N) or \\Gamma_1(N)")
+            return (
+                "bad-group",
+                f"cannot read group={options['group']}",
+                "write SL2(Z), \\Gamma_0(N) or \\Gamma_1(N)",
+            )
         level = claim_level(left, right)
         if group[1] % level:
             atoms = [a for s in (left, right) for a in ir.atoms_of(s.expr) if group[1] % a.typ.level]
             culprit = f" ({atoms[0].text} needs level {atoms[0].typ.level})" if atoms else ""
-            return ("group-mismatch", f"the tag states level {group[1]}, but the claim needs level {level}{culprit}",
-                    "state a group the forms live on")
+            return (
+                "group-mismatch",
+                f"the tag states level {group[1]}, but the claim needs level {level}{culprit}",
+                "state a group the forms live on",
+            )
     return None
 
 

@@ -39,17 +39,32 @@ def build_parser() -> argparse.ArgumentParser:
     from verifier import __version__
 
     parser = argparse.ArgumentParser(
-        prog="qreferee", description=DESCRIPTION, epilog=EPILOG, formatter_class=argparse.RawDescriptionHelpFormatter
+        prog="qreferee",
+        description=DESCRIPTION,
+        epilog=EPILOG,
+        formatter_class=argparse.RawDescriptionHelpFormatter,
     )
     parser.add_argument("--version", action="version", version=f"qreferee {__version__}")
     sub = parser.add_subparsers(dest="command", metavar="COMMAND")
-    check = sub.add_parser("check", help="check the tagged claims of one or more manuscripts",
-                           description="Check every tagged claim; \\input/\\include are followed.")
+    check = sub.add_parser(
+        "check",
+        help="check the tagged claims of one or more manuscripts",
+        description="Check every tagged claim; \\input/\\include are followed.",
+    )
     check.add_argument("files", nargs="+", metavar="FILE", help="a .tex (or other LaTeX) or .md file")
-    check.add_argument("--format", choices=("text", "json"), default="text",
-                       help="text: one 'file:line:col: severity: verdict: message' line per claim; json: the full report")
-    check.add_argument("--max-terms", type=int, default=None, metavar="N",
-                       help="most coefficients one claim may compute (default 50000); over it the claim is an error")
+    check.add_argument(
+        "--format",
+        choices=("text", "json"),
+        default="text",
+        help="text: one 'file:line:col: severity: verdict: message' line per claim; json: the full report",
+    )
+    check.add_argument(
+        "--max-terms",
+        type=int,
+        default=None,
+        metavar="N",
+        help="most coefficients one claim may compute (default 50000); over it the claim is an error",
+    )
     check.add_argument("-v", "--verbose", action="store_true", help="also print each claim as it was read")
     explain = sub.add_parser("explain", help="describe a diagnostic code")
     explain.add_argument("code", nargs="?", help="a code such as mixed-weight; none lists all codes")

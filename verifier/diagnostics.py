@@ -15,8 +15,14 @@ from verifier.location import Location
 # code -> (stage, one-line documentation)
 CODES: dict[str, tuple[str, str]] = {
     # scan
-    "unreadable": ("scan", "A file of the manuscript cannot be read (missing, not text, too large)."),
-    "include-outside": ("scan", "An \\input/\\include points outside the main file's folder; it is not followed."),
+    "unreadable": (
+        "scan",
+        "A file of the manuscript cannot be read (missing, not text, too large).",
+    ),
+    "include-outside": (
+        "scan",
+        "An \\input/\\include points outside the main file's folder; it is not followed.",
+    ),
     "include-missing": ("scan", "An \\input/\\include names a file that does not exist."),
     "include-cycle": ("scan", "An \\input/\\include would read a file that is already being read."),
     "orphan-tag": ("scan", "A claim tag is not followed by a display-math block."),
@@ -24,7 +30,10 @@ CODES: dict[str, tuple[str, str]] = {
     "bad-option": ("scan", "A tag option cannot be read (no value, unclosed brace, given twice)."),
     "unknown-option": ("scan", "A tag option has a name the tool does not know."),
     "bad-macro": ("scan", "A macro definition cannot be read, so it is not expanded."),
-    "macro-expansion": ("scan", "Expanding the author's macros failed (too deep, too large, missing argument)."),
+    "macro-expansion": (
+        "scan",
+        "Expanding the author's macros failed (too deep, too large, missing argument).",
+    ),
     # parse
     "syntax": ("parse", "The claim is not in the claim language at this point."),
     "brackets": ("parse", "A bracket or brace is unbalanced."),
@@ -36,12 +45,24 @@ CODES: dict[str, tuple[str, str]] = {
     "unknown-symbol": ("elaborate", "A name is neither a known form nor defined in the document."),
     "mixed-weight": ("elaborate", "A sum adds forms of different weights."),
     "not-exact": ("elaborate", "A decimal number appears; claims are checked in exact arithmetic."),
-    "bad-expansion": ("elaborate", "A printed q-expansion is malformed (O(...) of something other than q^n, dots inside a product)."),
-    "weight-mismatch": ("elaborate", "The weight stated in the tag differs from the weight inferred."),
-    "group-mismatch": ("elaborate", "The group stated in the tag is not one the claim's forms live on."),
+    "bad-expansion": (
+        "elaborate",
+        "A printed q-expansion is malformed (O(...) of something other than q^n, dots inside a product).",
+    ),
+    "weight-mismatch": (
+        "elaborate",
+        "The weight stated in the tag differs from the weight inferred.",
+    ),
+    "group-mismatch": (
+        "elaborate",
+        "The group stated in the tag is not one the claim's forms live on.",
+    ),
     "bad-group": ("elaborate", "The group= option cannot be read."),
     "unsupported": ("elaborate", "The claim uses a construction this version does not prove."),
-    "too-large": ("elaborate", "The claim exceeds a size limit (exponent, weight, coefficient budget)."),
+    "too-large": (
+        "elaborate",
+        "The claim exceeds a size limit (exponent, weight, coefficient budget).",
+    ),
     # prove
     "zero-division": ("prove", "A side divides by a form that is identically zero."),
     "budget": ("prove", "Proving the claim needs more coefficients than the budget allows."),

@@ -66,7 +66,12 @@ class Elaborator:
             for sign, term in terms:
                 if isinstance(term, ast.Dots):
                     if sign < 0:
-                        raise _err("bad-expansion", "'- \\cdots' is not a printed expansion", "write + \\cdots", term)
+                        raise _err(
+                            "bad-expansion",
+                            "'- \\cdots' is not a printed expansion",
+                            "write + \\cdots",
+                            term,
+                        )
                     dots = True
                 elif isinstance(term, ast.BigO):
                     m = _big_o_exponent(term)
@@ -74,7 +79,12 @@ class Elaborator:
                 else:
                     kept.append((sign, term))
             if not kept:
-                raise _err("bad-expansion", "this side has only \\cdots or O(...)", "write the printed terms", node)
+                raise _err(
+                    "bad-expansion",
+                    "this side has only \\cdots or O(...)",
+                    "write the printed terms",
+                    node,
+                )
             expr = self._sum_of(kept, text)
             printed = expr.typ.printed or dots or trunc is not None
             if dots and trunc is None:
@@ -89,7 +99,12 @@ class Elaborator:
         if isinstance(result, Problem):
             return result
         if result.truncation is not None:
-            return Problem("bad-define", "a definition cannot be a truncated expansion", "define a form", node.span)
+            return Problem(
+                "bad-define",
+                "a definition cannot be a truncated expansion",
+                "define a form",
+                node.span,
+            )
         self.definitions[name] = result.expr
         return None
 
@@ -98,10 +113,10 @@ class Elaborator:
         acc: ir.Expr | None = None
         for sign, node in terms:
             e = self.expr(node, text)
-            if acc is None:
-                acc = e if sign > 0 else _neg(e, text, node)
-            else:
+            if acc is not None:
                 acc = _add(acc, e, sign, text, node)
+            else:
+                acc = e if sign > 0 else _neg(e, text, node)
         assert acc is not None
         return acc
 
@@ -111,7 +126,12 @@ class Elaborator:
         if isinstance(node, ast.Number):
             return ir.Const(ir.Typ(Fraction(0) if node.value else None), src, Fraction(node.value))
         if isinstance(node, ast.Decimal):
-            raise _err("not-exact", f"decimal number {node.text} is not exact", "write it as a fraction \\frac{a}{b}", node)
+            raise _err(
+                "not-exact",
+                f"decimal number {node.text} is not exact",
+                "write it as a fraction \\frac{a}{b}",
+                node,
+            )
         if isinstance(node, ast.Name):
             return self._name(node, src)
         if isinstance(node, ast.Neg):
@@ -127,8 +147,12 @@ class Elaborator:
         if isinstance(node, ast.Power):
             return _pow(self.expr(node.base, text), node.exponent, src, node)
         if isinstance(node, ast.Dots | ast.BigO):
-            raise _err("bad-expansion", "\\cdots and O(...) may only be added at the end of a side",
-                       "write them as the last summands, e.g. 1 + 240q + \\cdots", node)
+            raise _err(
+                "bad-expansion",
+                "\\cdots and O(...) may only be added at the end of a side",
+                "write them as the last summands, e.g. 1 + 240q + \\cdots",
+                node,
+            )
         raise _err("syntax", "this construction has no meaning here", "", node)
 
     def _name(self, node: ast.Name, src: str) -> ir.Expr:
@@ -137,7 +161,12 @@ class Elaborator:
         if node.arg not in (None, "tau", "z", "q"):
             digits = node.arg.removesuffix("tau") if node.arg else ""
             if not digits.isdigit() or int(digits) < 1:
-                raise _err("syntax", f"cannot read the argument of {name}", "write (\\tau) or (d\\tau)", node)
+                raise _err(
+                    "syntax",
+                    f"cannot read the argument of {name}",
+                    "write (\\tau) or (d\\tau)",
+                    node,
+                )
             scale = int(digits)
         if name == "q":
             if node.arg is not None:
@@ -145,8 +174,12 @@ class Elaborator:
             return ir.QPower(ir.Typ(None, printed=True), src, 1)
         if name in self.definitions and name != "j":
             if scale != 1:
-                raise _err("unsupported", f"{name}({scale}\\tau) of a defined form is not supported yet",
-                           "define the rescaled form directly", node)
+                raise _err(
+                    "unsupported",
+                    f"{name}({scale}\\tau) of a defined form is not supported yet",
+                    "define the rescaled form directly",
+                    node,
+                )
             return self.definitions[name]
         if name == "j":
             if "j" in self.definitions:
@@ -203,11 +236,23 @@ def _lcm(a: int, b: int) -> int:
 
 def _check_size(typ: ir.Typ, node: ast.Node | None) -> ir.Typ:
     if typ.weight is not None and abs(typ.weight) > MAX_WEIGHT:
-        raise ElaborationError(Problem("too-large", f"weight {typ.weight} exceeds the limit {MAX_WEIGHT}",
-                                       "split the claim", node.span if node else (0, 0)))
+        raise ElaborationError(
+            Problem(
+                "too-large",
+                f"weight {typ.weight} exceeds the limit {MAX_WEIGHT}",
+                "split the claim",
+                node.span if node else (0, 0),
+            )
+        )
     if typ.level > MAX_LEVEL:
-        raise ElaborationError(Problem("too-large", f"level {typ.level} exceeds the limit {MAX_LEVEL}", "",
-                                       node.span if node else (0, 0)))
+        raise ElaborationError(
+            Problem(
+                "too-large",
+                f"level {typ.level} exceeds the limit {MAX_LEVEL}",
+                "",
+                node.span if node else (0, 0),
+            )
+        )
     return typ
 
 
@@ -252,15 +297,19 @@ def _short(text: str) -> str:
 def _mul(a: ir.Expr, b: ir.Expr, src: str) -> ir.Expr:
     ta, tb = a.typ, b.typ
     printed = ta.printed or tb.printed
-    if printed:
-        weight = None
-    elif _is_zero(a) or _is_zero(b):
+    if printed or _is_zero(a) or _is_zero(b):
         weight = None
     else:
         assert ta.weight is not None and tb.weight is not None
         weight = ta.weight + tb.weight
-    typ = ir.Typ(weight, ta.depth + tb.depth, _lcm(ta.level, tb.level), ta.den_weight + tb.den_weight,
-                 printed, ta.has_pole or tb.has_pole)
+    typ = ir.Typ(
+        weight,
+        ta.depth + tb.depth,
+        _lcm(ta.level, tb.level),
+        ta.den_weight + tb.den_weight,
+        printed,
+        ta.has_pole or tb.has_pole,
+    )
     return ir.Product(_check_size(typ, None), src, a, b)
 
 
@@ -275,16 +324,20 @@ def _div(a: ir.Expr, b: ir.Expr, src: str, node: ast.Node) -> ir.Expr:
     if tb.printed:
         raise _err("unsupported", "dividing by a printed expansion is not supported", "", node)
     printed = ta.printed
-    if printed:
-        weight = None
-    elif _is_zero(a):
+    if printed or _is_zero(a):
         weight = None
     else:
         assert ta.weight is not None and tb.weight is not None
         weight = ta.weight - tb.weight
     den = tb.weight if tb.weight is not None and not isinstance(b, ir.Const) else Fraction(0)
-    typ = ir.Typ(weight, ta.depth + tb.depth, _lcm(ta.level, tb.level), ta.den_weight + tb.den_weight + den,
-                 printed, ta.has_pole or not isinstance(b, ir.Const) or tb.has_pole)
+    typ = ir.Typ(
+        weight,
+        ta.depth + tb.depth,
+        _lcm(ta.level, tb.level),
+        ta.den_weight + tb.den_weight + den,
+        printed,
+        ta.has_pole or not isinstance(b, ir.Const) or tb.has_pole,
+    )
     if isinstance(a, ir.Const) and isinstance(b, ir.Const):
         return ir.Const(typ, src, a.value / b.value)
     return ir.Quotient(_check_size(typ, node), src, a, b)

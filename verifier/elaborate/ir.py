@@ -110,7 +110,11 @@ def atoms_of(expr: Expr) -> list[Atom]:
     if isinstance(expr, Atom):
         return [expr]
     out: list[Atom] = []
-    for child in (getattr(expr, "left", None), getattr(expr, "right", None), getattr(expr, "base", None)):
+    for child in (
+        getattr(expr, "left", None),
+        getattr(expr, "right", None),
+        getattr(expr, "base", None),
+    ):
         if isinstance(child, Expr):
             out.extend(atoms_of(child))
     return out

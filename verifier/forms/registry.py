@@ -41,8 +41,10 @@ def lookup(name: str) -> AtomInfo | Unknown | None:
     if m:
         k = int(m.group(1) or m.group(2))
         if k < 2 or k % 2:
-            return Unknown(f"E_{k} is not defined: Eisenstein series E_k have even weight k >= 2 at level one",
-                           "write E_2, E_4, E_6, ...")
+            return Unknown(
+                f"E_{k} is not defined: Eisenstein series E_k have even weight k >= 2 at level one",
+                "write E_2, E_4, E_6, ...",
+            )
         if k > MAX_EISENSTEIN_WEIGHT:
             return Unknown(f"E_{k} exceeds the weight limit {MAX_EISENSTEIN_WEIGHT}", "")
         return AtomInfo(f"E{k}", Fraction(k), 1 if k == 2 else 0)

@@ -77,13 +77,9 @@ def _parse(text: str, start: str) -> ast.Node | ParseFailure:
     try:
         tree = _parser().parse(text, start=start)
     except UnexpectedCharacters as exc:
-        ch = text[exc.pos_in_stream] if exc.pos_in_stream < len(text) else ""
-        return ParseFailure(
-            "syntax",
-            f"unexpected character {ch!r}",
-            _hint_for_char(ch),
-            exc.pos_in_stream,
-        )
+        pos = int(exc.pos_in_stream or 0)
+        ch = text[pos] if pos < len(text) else ""
+        return ParseFailure("syntax", f"unexpected character {ch!r}", _hint_for_char(ch), pos)
     except UnexpectedEOF:
         return _eof_failure(text, start)
     except UnexpectedToken as exc:
@@ -106,7 +102,10 @@ def _eof_failure(text: str, start: str) -> ParseFailure:
             len(stripped),
         )
     return ParseFailure(
-        "incomplete", "the claim ends in the middle of an expression", "complete the last term", len(stripped)
+        "incomplete",
+        "the claim ends in the middle of an expression",
+        "complete the last term",
+        len(stripped),
     )
 
 
@@ -123,7 +122,12 @@ def _check_brackets(text: str) -> ParseFailure | None:
             stack.append((ch, i))
         elif ch in _CLOSERS:
             if not stack or stack[-1][0] != _CLOSERS[ch]:
-                return ParseFailure("brackets", f"{ch!r} closes nothing", "remove it or add the matching opening bracket", i)
+                return ParseFailure(
+                    "brackets",
+                    f"{ch!r} closes nothing",
+                    "remove it or add the matching opening bracket",
+                    i,
+                )
             stack.pop()
         i += 1
     if stack:
@@ -170,7 +174,7 @@ def _make_transformer() -> Any:
     from lark import Transformer, v_args
 
     @v_args(meta=True)
-    class ToAst(Transformer):  # type: ignore[misc]
+    class ToAst(Transformer):  # type: ignore[type-arg]
         """One method per grammar rule; each returns an AST node with its span."""
 
         def relation(self, meta: Any, items: list[Any]) -> ast.Relation:

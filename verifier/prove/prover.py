@@ -112,8 +112,13 @@ class Prover:
             return self._forms(left, right, rel)
         except BudgetExceeded as exc:
             kind = "prefix" if (left.printed or right.printed) else ("equality" if rel == "=" else "inequality")
-            return Outcome("error", kind, f"deciding this claim needs {exc.needed} coefficients, over the budget of "
-                           f"{self.max_terms}", code="budget", hint="raise --max-terms if this is intended")
+            return Outcome(
+                "error",
+                kind,
+                f"deciding this claim needs {exc.needed} coefficients, over the budget of {self.max_terms}",
+                code="budget",
+                hint="raise --max-terms if this is intended",
+            )
         except ZeroDivisionError as exc:
             return Outcome("error", "equality", f"division by a zero series: {exc}", code="zero-division")
 
@@ -128,8 +133,13 @@ class Prover:
         nr, dr = graded_fraction(right.expr, prec, self.table)
         for den, side in ((dl, left), (dr, right)):
             if _graded_zero(den, level) is None:
-                return Outcome("error", kind, f"{side.expr.text} divides by a form that is identically zero",
-                               code="zero-division", hint="check the denominator")
+                return Outcome(
+                    "error",
+                    kind,
+                    f"{side.expr.text} divides by a form that is identically zero",
+                    code="zero-division",
+                    hint="check the denominator",
+                )
         p = graded_add(graded_mul(nl, dr), graded_mul(nr, dl), -1)
         components: list[dict[str, Any]] = []
         differing: list[tuple[Fraction, int, int]] = []
@@ -140,8 +150,12 @@ class Prover:
             b = groups.sturm_bound(wt, level)
             n = _first_nonzero(series, b + 1)
             terms += b + 1
-            comp = {"weight": _frac_str(wt), "e2_power": j, "bound": b,
-                    "dimension": groups.dim_modular(int(wt), level) if wt.denominator == 1 else None}
+            comp = {
+                "weight": _frac_str(wt),
+                "e2_power": j,
+                "bound": b,
+                "dimension": groups.dim_modular(int(wt), level) if wt.denominator == 1 else None,
+            }
             components.append(comp)
             if n is not None:
                 differing.append((wt, j, n))
@@ -154,10 +168,26 @@ class Prover:
         how = _how(components, cleared, level)
         if not differing:
             if kind == "equality":
-                return Outcome("proved", kind, f"equal in {_space_text(space)}: {how}", space, "sturm", bound, terms,
-                               components=components)
-            return Outcome("refuted", kind, f"the two sides are equal in {_space_text(space)}: {how}", space, "sturm",
-                           bound, terms, components=components)
+                return Outcome(
+                    "proved",
+                    kind,
+                    f"equal in {_space_text(space)}: {how}",
+                    space,
+                    "sturm",
+                    bound,
+                    terms,
+                    components=components,
+                )
+            return Outcome(
+                "refuted",
+                kind,
+                f"the two sides are equal in {_space_text(space)}: {how}",
+                space,
+                "sturm",
+                bound,
+                terms,
+                components=components,
+            )
         witness = self._witness(left, right, prec)
         weights_note = ""
         if wl is not None and wr is not None and wl != wr:
@@ -168,9 +198,9 @@ class Prover:
             msg = f"the sides differ ({detail}; the first differing coefficient lies beyond q^{self.max_terms})"
             fd = None
         else:
-            n, a, b = witness
-            msg = f"coefficients of q^{n} differ: left {_frac_str(a)}, right {_frac_str(b)}{weights_note}"
-            fd = {"n": n, "left": _frac_str(a), "right": _frac_str(b)}
+            n_w, left_c, right_c = witness
+            msg = f"coefficients of q^{n_w} differ: left {_frac_str(left_c)}, right {_frac_str(right_c)}{weights_note}"
+            fd = {"n": n_w, "left": _frac_str(left_c), "right": _frac_str(right_c)}
         verdict = "refuted" if kind == "equality" else "proved"
         method = "sturm" if kind == "equality" else "witness"
         if kind == "inequality":
@@ -181,8 +211,11 @@ class Prover:
         """First exponent where the two sides' Laurent series differ, searching up to the budget."""
         stop = max(prec, 8)
         while True:
-            a = laurent_to(left.expr, stop, self.table, self.max_terms * 2)
-            b = laurent_to(right.expr, stop, self.table, self.max_terms * 2)
+            try:
+                a = laurent_to(left.expr, stop, self.table, self.max_terms * 2)
+                b = laurent_to(right.expr, stop, self.table, self.max_terms * 2)
+            except BudgetExceeded:
+                return None
             start = min(0, a.valuation, b.valuation)
             n = a.first_difference(b, start, stop)
             if n is not None:
@@ -210,16 +243,42 @@ class Prover:
             msg = f"coefficients of q^{n} differ: left {fd['left']}, right {fd['right']}"
             if rel == "=":
                 return Outcome("refuted", "prefix", msg, space, "expansion", None, terms, fd)
-            return Outcome("proved", "prefix", "the expansions differ: " + msg, space, "expansion", None, terms, fd)
+            return Outcome(
+                "proved",
+                "prefix",
+                "the expansions differ: " + msg,
+                space,
+                "expansion",
+                None,
+                terms,
+                fd,
+            )
         if not exact_range:
             # A printed polynomial with no \cdots and no O(...): it claims every coefficient.
-            msg = (f"the sides agree on {rng}, but the printed side ends without \\cdots or O(q^n), "
-                   "so it claims all coefficients; no proof of that is attempted")
-            return Outcome("unproven", "prefix", msg, space, "expansion", None, terms,
-                           hint="add + \\cdots or + O(q^n) if only the printed terms are meant")
+            msg = (
+                f"the sides agree on {rng}, but the printed side ends without \\cdots or O(q^n), "
+                "so it claims all coefficients; no proof of that is attempted"
+            )
+            return Outcome(
+                "unproven",
+                "prefix",
+                msg,
+                space,
+                "expansion",
+                None,
+                terms,
+                hint="add + \\cdots or + O(q^n) if only the printed terms are meant",
+            )
         if rel == "=":
-            return Outcome("proved", "prefix", f"the printed coefficients {rng} are exact", space, "expansion", None,
-                           terms)
+            return Outcome(
+                "proved",
+                "prefix",
+                f"the printed coefficients {rng} are exact",
+                space,
+                "expansion",
+                None,
+                terms,
+            )
         return Outcome("refuted", "prefix", f"the expansions agree on {rng}", space, "expansion", None, terms)
 
 

@@ -4,6 +4,14 @@ from __future__ import annotations
 
 from verifier.api import ClaimResult, Report
 
+CAUTION = (
+    "'proved' certifies each claim as qreferee read it, with q = e^{2 pi i tau} and E_k normalised "
+    "to constant term 1; check that reading."
+)
+CAUTION = (
+    "'proved' certifies each claim as qreferee read it, with q = e^{2 pi i tau} and E_k normalised "
+    "to constant term 1; check that reading."
+)
 SEVERITY = {"proved": "note", "refuted": "error", "unproven": "warning", "error": "error"}
 
 
@@ -33,5 +41,5 @@ def render(report: Report, verbose: bool = False) -> str:
         f"{s['unproven']} unproven, {s['error']} error{'s' if s['error'] != 1 else ''}"
     )
     if report.claims:
-        lines.append("'proved' certifies each claim as read above, with q = e^{2 pi i tau} and E_k normalised to constant term 1.")
+        lines.append(CAUTION)
     return "\n".join(lines) + "\n"

@@ -62,8 +62,14 @@ def _drop_intertext(content: MappedText) -> MappedText:
         close = matching_brace(s, m.end() - 1)
         if close < 0:
             break
-        content = MappedText.concat([content.slice(0, m.start()), _spaces(content, m.start(), close + 1),
-                                     content.slice(close + 1)], content.source)
+        content = MappedText.concat(
+            [
+                content.slice(0, m.start()),
+                _spaces(content, m.start(), close + 1),
+                content.slice(close + 1),
+            ],
+            content.source,
+        )
         s = content.text
         m = _INTERTEXT.search(s, close + 1)
     return content

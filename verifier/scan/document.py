@@ -5,8 +5,9 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 
 from verifier.diagnostics import Diagnostic
+from verifier.location import Location
 from verifier.scan.display import Row
-from verifier.scan.text import Location, MappedText
+from verifier.scan.text import MappedText
 
 MAX_FILE_BYTES = 20 * 1024 * 1024
 MAX_FILES = 500

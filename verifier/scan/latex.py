@@ -12,6 +12,7 @@ import re
 from pathlib import Path
 
 from verifier.diagnostics import Diagnostic
+from verifier.location import Location
 from verifier.scan import macros as macro_mod
 from verifier.scan.display import normalise_row, rows_of
 from verifier.scan.document import (
@@ -23,11 +24,13 @@ from verifier.scan.document import (
     ScannedDocument,
 )
 from verifier.scan.options import parse_options
-from verifier.scan.text import Location, MappedText, SourceFile, blank_comments
+from verifier.scan.text import MappedText, SourceFile, blank_comments
 
 ENVIRONMENTS = ("equation", "align", "gather", "multline", "flalign")
 _TAG_LINE = re.compile(r"^[ \t]*%@(?P<kind>claim|define)(?P<rest>(?![A-Za-z]).*)$", re.M)
-_INCLUDE = re.compile(r"\\(?P<cmd>input|include|subfile)(?![A-Za-z])\s*(?:\{(?P<braced>[^{}]*)\}|(?P<bare>[^\s{}\\%]+))")
+_INCLUDE = re.compile(
+    r"\\(?P<cmd>input|include|subfile)(?![A-Za-z])\s*(?:\{(?P<braced>[^{}]*)\}|(?P<bare>[^\s{}\\%]+))"
+)
 _DISPLAY_OPEN = re.compile(r"\\\[|\$\$|\\begin\s*\{(?P<env>(?:" + "|".join(ENVIRONMENTS) + r")\*?)\}")
 
 
@@ -63,7 +66,7 @@ class _Reader:
     def read_source(self, source: SourceFile) -> None:
         raw = source.text
         bare = blank_comments(raw)
-        events: list[tuple[int, str, re.Match[str] | tuple[int, object]]] = []
+        events: list[tuple[int, str, re.Match[str] | tuple[int, macro_mod.Macro | macro_mod.DefinitionProblem]]] = []
         for m in _TAG_LINE.finditer(raw):
             events.append((m.start(), "tag", m))
         for m in _INCLUDE.finditer(bare):
@@ -82,8 +85,15 @@ class _Reader:
                 else:
                     assert isinstance(found, macro_mod.DefinitionProblem)
                     loc = _loc(source, found.offset)
-                    self.doc.diagnostics.append(Diagnostic("bad-macro", "warning", loc, found.message,
-                                                           "claims using this macro will not parse"))
+                    self.doc.diagnostics.append(
+                        Diagnostic(
+                            "bad-macro",
+                            "warning",
+                            loc,
+                            found.message,
+                            "claims using this macro will not parse",
+                        )
+                    )
             elif kind == "include":
                 assert isinstance(payload, re.Match)
                 self._include(source, payload)
@@ -97,15 +107,24 @@ class _Reader:
         if not name:
             return
         if len(self.active) >= MAX_INCLUDE_DEPTH:
-            self._problem("include-cycle", at, f"\\{m.group('cmd')} nested deeper than {MAX_INCLUDE_DEPTH}", "")
+            self._problem(
+                "include-cycle",
+                at,
+                f"\\{m.group('cmd')} nested deeper than {MAX_INCLUDE_DEPTH}",
+                "",
+            )
             return
         base = source.path.parent if source.path else self.root
         target = (base / name).resolve()
         if target.suffix != ".tex" and not target.is_file():
             target = target.with_name(target.name + ".tex")
         if not target.is_relative_to(self.root):
-            self._problem("include-outside", at, f"{name} lies outside the manuscript's folder; not read",
-                          "keep all parts of the manuscript under the main file's folder")
+            self._problem(
+                "include-outside",
+                at,
+                f"{name} lies outside the manuscript's folder; not read",
+                "keep all parts of the manuscript under the main file's folder",
+            )
             return
         if not target.is_file():
             self._problem("include-missing", at, f"{name} not found", "check the file name")
@@ -140,15 +159,29 @@ class _Reader:
         opener = _DISPLAY_OPEN.match(bare, i)
         next_tag = next((t for t in tag_offsets if t > m.start()), None)
         if opener is None or (next_tag is not None and next_tag < i):
-            block.problems.append(Diagnostic("orphan-tag", "error", loc, "this claim tag is not followed by display math",
-                                             "put \\[ ... \\], $$ ... $$ or an equation/align environment right after the tag"))
+            block.problems.append(
+                Diagnostic(
+                    "orphan-tag",
+                    "error",
+                    loc,
+                    "this claim tag is not followed by display math",
+                    "put \\[ ... \\], $$ ... $$ or an equation/align environment right after the tag",
+                )
+            )
             return
         env = opener.group("env") or ("\\[" if opener.group(0) == "\\[" else "$$")
         closer = {"\\[": "\\]", "$$": "$$"}.get(env, f"\\end{{{env}}}")
         close = _find_closer(bare, opener.end(), closer, env)
         if close < 0:
-            block.problems.append(Diagnostic("unclosed-display", "error", _loc(source, opener.start()),
-                                             f"{opener.group(0)} is never closed", f"add {closer}"))
+            block.problems.append(
+                Diagnostic(
+                    "unclosed-display",
+                    "error",
+                    _loc(source, opener.start()),
+                    f"{opener.group(0)} is never closed",
+                    f"add {closer}",
+                )
+            )
             return
         block.environment = env
         content = MappedText(bare[opener.end() : close], list(range(opener.end(), close)), source)
@@ -156,8 +189,15 @@ class _Reader:
             try:
                 block.rows.append(normalise_row(row, self.macros))
             except macro_mod.MacroError as exc:
-                block.problems.append(Diagnostic("macro-expansion", "error", row.location(exc.index), str(exc),
-                                                 "check the definition of the macro"))
+                block.problems.append(
+                    Diagnostic(
+                        "macro-expansion",
+                        "error",
+                        row.location(exc.index),
+                        str(exc),
+                        "check the definition of the macro",
+                    )
+                )
 
     def _problem(self, code: str, at: Location | None, message: str, hint: str) -> None:
         where = at or Location(str(self.root), 1, 1)

@@ -188,7 +188,8 @@ def _expand(text: MappedText, macros: dict[str, Macro], depth: int, budget: list
             continue
         if depth >= MAX_DEPTH:
             raise MacroError(
-                f"macro expansion deeper than {MAX_DEPTH} levels at {macro.name} (is it defined in terms of itself?)", i
+                f"macro expansion deeper than {MAX_DEPTH} levels at {macro.name} (is it defined in terms of itself?)",
+                i,
             )
         args, end = _read_args(text, m.end(), macro)
         body = _substitute(macro, args, text, i)

@@ -11,11 +11,12 @@ import re
 from pathlib import Path
 
 from verifier.diagnostics import Diagnostic
+from verifier.location import Location
 from verifier.scan import macros as macro_mod
 from verifier.scan.display import normalise_row, rows_of
 from verifier.scan.document import MAX_FILE_BYTES, ClaimBlock, DefineTag, ScannedDocument
 from verifier.scan.options import parse_options
-from verifier.scan.text import Location, MappedText, SourceFile
+from verifier.scan.text import MappedText, SourceFile
 
 _TAG = re.compile(r"<!--\s*@(?P<kind>claim|define)(?![A-Za-z])(?P<rest>.*?)-->", re.S)
 _FENCE_OPEN = re.compile(r"(?P<fence>`{3,}|~{3,})[ \t]*math[ \t]*\n")
@@ -69,8 +70,15 @@ def _tag(source: SourceFile, m: re.Match[str], macros: dict[str, macro_mod.Macro
     else:
         fence = _FENCE_OPEN.match(text, i)
         if fence is None:
-            block.problems.append(Diagnostic("orphan-tag", "error", loc, "this claim tag is not followed by a math block",
-                                             "put a $$ ... $$ block or a ```math fence right after the tag"))
+            block.problems.append(
+                Diagnostic(
+                    "orphan-tag",
+                    "error",
+                    loc,
+                    "this claim tag is not followed by a math block",
+                    "put a $$ ... $$ block or a ```math fence right after the tag",
+                )
+            )
             return
         start = fence.end()
         closing = re.compile(r"^[ \t]*" + re.escape(fence.group("fence")) + r"[ \t]*$", re.M)
@@ -78,8 +86,15 @@ def _tag(source: SourceFile, m: re.Match[str], macros: dict[str, macro_mod.Macro
         close = found.start() if found else -1
         opener = fence.group("fence") + "math"
     if close < 0:
-        block.problems.append(Diagnostic("unclosed-display", "error", _loc(source, i), f"{opener} is never closed",
-                                         "close the math block"))
+        block.problems.append(
+            Diagnostic(
+                "unclosed-display",
+                "error",
+                _loc(source, i),
+                f"{opener} is never closed",
+                "close the math block",
+            )
+        )
         return
     block.environment = opener
     content = MappedText(text[start:close], list(range(start, close)), source)
@@ -101,12 +116,26 @@ def scan_markdown_path(path: Path, display: str) -> ScannedDocument:
         data = path.read_bytes()
     except OSError as exc:
         doc = ScannedDocument()
-        doc.diagnostics.append(Diagnostic("unreadable", "error", Location(display, 1, 1),
-                                          f"cannot read {display}: {exc.strerror or exc}", "check the path"))
+        doc.diagnostics.append(
+            Diagnostic(
+                "unreadable",
+                "error",
+                Location(display, 1, 1),
+                f"cannot read {display}: {exc.strerror or exc}",
+                "check the path",
+            )
+        )
         return doc
     if len(data) > MAX_FILE_BYTES:
         doc = ScannedDocument()
-        doc.diagnostics.append(Diagnostic("unreadable", "error", Location(display, 1, 1),
-                                          f"{display} is larger than {MAX_FILE_BYTES} bytes", ""))
+        doc.diagnostics.append(
+            Diagnostic(
+                "unreadable",
+                "error",
+                Location(display, 1, 1),
+                f"{display} is larger than {MAX_FILE_BYTES} bytes",
+                "",
+            )
+        )
         return doc
     return scan_markdown_source(SourceFile(display, data.decode("utf-8", errors="replace"), path))

@@ -40,8 +40,14 @@ def parse_options(text: str) -> tuple[dict[str, str], list[OptionProblem]]:
             i += 1
         key = text[start:i]
         if not key:
-            problems.append(OptionProblem(start, "bad-option", f"cannot read an option at {text[start:start + 10]!r}",
-                                          "write options as key=value"))
+            problems.append(
+                OptionProblem(
+                    start,
+                    "bad-option",
+                    f"cannot read an option at {text[start : start + 10]!r}",
+                    "write options as key=value",
+                )
+            )
             break
         if i >= n or text[i] != "=":
             problems.append(OptionProblem(start, "bad-option", f"option {key!r} has no value", f"write {key}=VALUE"))
@@ -52,8 +58,14 @@ def parse_options(text: str) -> tuple[dict[str, str], list[OptionProblem]]:
         if i < n and text[i] == "{":
             close = matching_brace(text, i)
             if close < 0:
-                problems.append(OptionProblem(i, "bad-option", f"the value of {key!r} has an unclosed brace",
-                                              "close the brace"))
+                problems.append(
+                    OptionProblem(
+                        i,
+                        "bad-option",
+                        f"the value of {key!r} has an unclosed brace",
+                        "close the brace",
+                    )
+                )
                 break
             value = text[i + 1 : close]
             i = close + 1
