@@ -518,7 +518,7 @@ def _expansion(k: int, terms: int, tail: str, rng: random.Random) -> str:
         parts.append(f"{'-' if c < 0 else '+'} {abs(c)}q" + (f"^{m}" if m < 10 and m > 1 else
                                                            f"^{{{m}}}" if m >= 10 else ""))
     macro = rng.random() < 0.3
-    name = f"\\Eis{{{k}}}" if macro else f"E_{k}"
+    name = f"\\Eis{{{k}}}" if macro else (f"E_{k}" if k < 10 else f"E_{{{k}}}")
     end = r"\cdots" if tail == "dots" else f"O(q^{{{terms}}})"
     return f"{name} = {' '.join(parts)} + {end}"
 

@@ -15,12 +15,12 @@ from pathlib import Path
 from typing import Any
 
 import pytest
-
 from verifier.diagnostics import CODES
+from verifier.location import Location
 from verifier.scan import is_markdown, scan_path, scan_text
-from verifier.scan.document import ClaimBlock, DefineTag, ScannedDocument
 from verifier.scan.display import Row
-from verifier.scan.text import Location, MappedText, SourceFile
+from verifier.scan.document import ClaimBlock, DefineTag, ScannedDocument
+from verifier.scan.text import MappedText, SourceFile
 
 DATA = Path(__file__).parent / "data" / "scan"
 
@@ -331,9 +331,7 @@ def test_trailing_empty_row_of_align_is_dropped() -> None:
 
 
 def test_intertext_is_not_a_row() -> None:
-    block = only_claim(
-        scan_text("%@claim\n\\begin{align}\na &= b \\\\\n\\intertext{and also}\nc &= d\n\\end{align}\n")
-    )
+    block = only_claim(scan_text("%@claim\n\\begin{align}\na &= b \\\\\n\\intertext{and also}\nc &= d\n\\end{align}\n"))
     assert rows_summary(block) == [("a = b", None, "3:1"), ("c = d", None, "5:1")]
 
 

@@ -87,7 +87,7 @@ def _parse(text: str, start: str) -> ast.Node | ParseFailure:
             return _eof_failure(text, start)
         pos = exc.token.start_pos if exc.token.start_pos is not None else 0
         return ParseFailure("syntax", f"unexpected {exc.token.value!r}", _hint_for_token(exc), pos)
-    node = _ToAst().transform(tree)
+    node = _ToAst(text).transform(tree)
     assert isinstance(node, ast.Node)
     return node
 
@@ -201,8 +201,18 @@ def _make_transformer() -> Any:
         def sub(self, meta: Any, items: list[Any]) -> ast.BinOp:
             return self._bin("-", meta, items[0], items[1])
 
-        def imul(self, meta: Any, items: list[Any]) -> ast.BinOp:
-            return self._bin("*", meta, items[0], items[1])
+        text: str = ""
+
+        def imul(self, meta: Any, items: list[Any]) -> ast.Node:
+            left, right = items
+            if (
+                isinstance(left, ast.Number)
+                and isinstance(right, ast.Number)
+                and not self.text[left.span[1] : right.span[0]].strip()
+            ):
+                # In math mode TeX ignores spaces: '196 884' and '196\,884' print one number.
+                return ast.Number((left.span[0], right.span[1]), int(f"{left.value}{right.value}"))
+            return self._bin("*", meta, left, right)
 
         def mul(self, meta: Any, items: list[Any]) -> ast.BinOp:
             return self._bin("*", meta, items[0], items[-1])
@@ -254,8 +264,9 @@ def _make_transformer() -> Any:
 
 
 class _ToAst:
-    def __init__(self) -> None:
+    def __init__(self, text: str) -> None:
         self._impl = _transformer_class()()
+        self._impl.text = text
 
     def transform(self, tree: Any) -> Any:
         return self._impl.transform(tree)

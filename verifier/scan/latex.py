@@ -114,10 +114,11 @@ class _Reader:
                 "",
             )
             return
-        base = source.path.parent if source.path else self.root
-        target = (base / name).resolve()
+        # TeX resolves every \input against the folder it runs in: the main file's.
+        target = self.root / name
         if target.suffix != ".tex" and not target.is_file():
             target = target.with_name(target.name + ".tex")
+        target = target.resolve()
         if not target.is_relative_to(self.root):
             self._problem(
                 "include-outside",
@@ -144,7 +145,7 @@ class _Reader:
             try:
                 define.text = macro_mod.expand(text, self.macros)
             except macro_mod.MacroError as exc:
-                define.problems.append(Diagnostic("macro-expansion", "error", text.location(exc.index), str(exc), ""))
+                define.problems.append(Diagnostic("macro-expansion", "error", _loc(source, exc.origin), str(exc), ""))
             self.doc.items.append(define)
             return
         options, option_problems = parse_options(rest)
@@ -193,7 +194,7 @@ class _Reader:
                     Diagnostic(
                         "macro-expansion",
                         "error",
-                        row.location(exc.index),
+                        _loc(source, exc.origin),
                         str(exc),
                         "check the definition of the macro",
                     )

@@ -38,9 +38,9 @@ class Macro:
 class MacroError(Exception):
     """Expansion failed (too deep, too large, missing argument)."""
 
-    def __init__(self, message: str, index: int) -> None:
+    def __init__(self, message: str, origin: int) -> None:
         super().__init__(message)
-        self.index = index
+        self.origin = origin  # offset in the source file (of the macro call)
 
 
 @dataclass(frozen=True)
@@ -189,13 +189,13 @@ def _expand(text: MappedText, macros: dict[str, Macro], depth: int, budget: list
         if depth >= MAX_DEPTH:
             raise MacroError(
                 f"macro expansion deeper than {MAX_DEPTH} levels at {macro.name} (is it defined in terms of itself?)",
-                i,
+                text.origin(i),
             )
         args, end = _read_args(text, m.end(), macro)
         body = _substitute(macro, args, text, i)
         budget[0] -= len(body)
         if budget[0] < 0:
-            raise MacroError(f"macro expansion grows beyond {MAX_EXPANDED} characters at {macro.name}", i)
+            raise MacroError(f"macro expansion grows beyond {MAX_EXPANDED} characters at {macro.name}", text.origin(i))
         pieces.append(text.slice(pos, i))
         pieces.append(_expand(body, macros, depth + 1, budget))
         pos = i = end
@@ -212,7 +212,7 @@ def _read_args(text: MappedText, i: int, macro: Macro) -> tuple[list[MappedText]
         if j < len(s) and s[j] == "[":
             close = _matching_bracket(s, j)
             if close < 0:
-                raise MacroError(f"unclosed optional argument of {macro.name}", j)
+                raise MacroError(f"unclosed optional argument of {macro.name}", text.origin(j))
             args.append(text.slice(j + 1, close))
             i = close + 1
         else:
@@ -221,11 +221,11 @@ def _read_args(text: MappedText, i: int, macro: Macro) -> tuple[list[MappedText]
     for _ in range(need):
         j = _skip_ws(s, i)
         if j >= len(s):
-            raise MacroError(f"{macro.name} expects {macro.nargs} argument(s)", i)
+            raise MacroError(f"{macro.name} expects {macro.nargs} argument(s)", text.origin(i))
         if s[j] == "{":
             close = matching_brace(s, j)
             if close < 0:
-                raise MacroError(f"unclosed argument of {macro.name}", j)
+                raise MacroError(f"unclosed argument of {macro.name}", text.origin(j))
             args.append(text.slice(j + 1, close))
             i = close + 1
         else:

@@ -52,7 +52,7 @@ def _tag(source: SourceFile, m: re.Match[str], macros: dict[str, macro_mod.Macro
         try:
             define.text = macro_mod.expand(mapped, macros)
         except macro_mod.MacroError as exc:
-            define.problems.append(Diagnostic("macro-expansion", "error", mapped.location(exc.index), str(exc), ""))
+            define.problems.append(Diagnostic("macro-expansion", "error", _loc(source, exc.origin), str(exc), ""))
         doc.items.append(define)
         return
     options, problems = parse_options(rest.replace("\n", " "))
@@ -102,7 +102,7 @@ def _tag(source: SourceFile, m: re.Match[str], macros: dict[str, macro_mod.Macro
         try:
             block.rows.append(normalise_row(row, macros))
         except macro_mod.MacroError as exc:
-            block.problems.append(Diagnostic("macro-expansion", "error", row.location(exc.index), str(exc), ""))
+            block.problems.append(Diagnostic("macro-expansion", "error", _loc(source, exc.origin), str(exc), ""))
 
 
 def _loc(source: SourceFile, offset: int) -> Location:

@@ -31,7 +31,7 @@ def parse_options(text: str) -> tuple[dict[str, str], list[OptionProblem]]:
     i = 0
     n = len(text)
     while i < n:
-        while i < n and text[i] in " \t,":
+        while i < n and text[i] in " \t\r\n,":
             i += 1
         if i >= n:
             break
@@ -51,7 +51,7 @@ def parse_options(text: str) -> tuple[dict[str, str], list[OptionProblem]]:
             break
         if i >= n or text[i] != "=":
             problems.append(OptionProblem(start, "bad-option", f"option {key!r} has no value", f"write {key}=VALUE"))
-            while i < n and text[i] not in " \t,":
+            while i < n and text[i] not in " \t\r\n,":
                 i += 1
             continue
         i += 1
@@ -72,7 +72,7 @@ def parse_options(text: str) -> tuple[dict[str, str], list[OptionProblem]]:
         else:
             vstart = i
             depth = 0
-            while i < n and (depth > 0 or text[i] not in " \t,"):
+            while i < n and (depth > 0 or text[i] not in " \t\r\n,"):
                 if text[i] in "({[":
                     depth += 1
                 elif text[i] in ")}]":
