@@ -408,44 +408,83 @@ def test_scanner_rewritten_frac_parses() -> None:
 
 
 # ---------------------------------------------------------------------------
-# Known bugs (reported; see the reasons)
+# Regressions: \not=, digit groups, keywords in operand position
 # ---------------------------------------------------------------------------
 
 
-@pytest.mark.xfail(
-    strict=True,
-    reason="bug: the contextual lexer reads \\not as a NAME before it can match the '\\not=' "
-    "relation, so 'A \\not= B' parses as the equality (A*\\not) = B",
-)
 def test_not_equals_relation() -> None:
     assert sx(ok("A \\not= B")) == ("A", "!=", "B")
+    assert sx(ok("A = B \\not= C")) == ("A", "=", "B", "!=", "C")
 
 
-@pytest.mark.xfail(
-    strict=True,
-    reason="bug: digits separated by white space (TeX prints '196 884' and '196\\,884' as one "
-    "number) are read as an implicit product 196*884",
-)
-def test_digit_groups_are_one_number() -> None:
-    assert sx(ok("j = 196 884 q")) == ("j", "=", ("*", 196884, "q"))
-
-
-@pytest.mark.xfail(
-    strict=True,
-    reason="bug: thin-space digit grouping 196\\,884 is blanked by the scanner and then parsed as the product 196*884",
-)
-def test_thin_space_digit_grouping_after_scanning() -> None:
-    doc = scan_text("%@claim\n\\[ j = q^{-1} + 744 + 196\\,884q \\]\n")
+def test_not_equals_with_space_is_normalised_by_the_scanner() -> None:
+    doc = scan_text("%@claim\n\\[ a \\not = b \\]\n")
     row = doc.items[0].rows[0]  # type: ignore[union-attr]
-    assert sx(ok(row.text.text)) == ("j", "=", ("+", ("+", ("^", "q", -1), 744), ("*", 196884, "q")))
+    assert sx(ok(row.text.text)) == ("a", "!=", "b")
 
 
-@pytest.mark.xfail(
-    strict=True,
-    reason="bug: a keyword where an operand is expected (\\cdot, \\neq after '=') is lexed as a NAME "
-    "and accepted, instead of being a syntax error at that offset",
+@pytest.mark.parametrize(
+    ("text", "expected"),
+    [
+        ("j = 196 884 q", ("j", "=", ("*", 196884, "q"))),
+        ("x = 1 2 3", ("x", "=", 123)),
+        ("x = 12 34 56", ("x", "=", 123456)),
+        ("x = 2 E_4 3", ("x", "=", ("*", ("*", 2, "E_4"), 3))),  # only digits next to digits join
+        ("x = 2 \\cdot 3", ("x", "=", ("*", 2, 3))),  # an explicit product stays a product
+        ("x = q^2 3", ("x", "=", ("*", ("^", "q", 2), 3))),  # an exponent does not join
+    ],
 )
-@pytest.mark.parametrize(("text", "offset"), [("x = \\cdot E_6", 4), ("x = \\neq 1", 4)])
+def test_digit_groups_are_one_number(text: str, expected: Any) -> None:
+    assert sx(ok(text)) == expected
+
+
+def test_digit_group_span_covers_both_groups() -> None:
+    text = "j = 196 884 q"
+    num = ok(text).sides[1]
+    assert isinstance(num, ast.BinOp)
+    assert text[slice(*num.left.span)] == "196 884"
+
+
+@pytest.mark.parametrize(
+    ("text", "value"),
+    [
+        ("x = 1 000", 1000),
+        ("x = 196 084", 196084),
+        ("x = 1 000 000", 1000000),
+        ("x = 20 000", 20000),
+    ],
+)
+def test_digit_group_keeps_leading_zeros(text: str, value: int) -> None:
+    assert sx(ok(text)) == ("x", "=", value)
+
+
+def test_thin_space_digit_grouping_after_scanning() -> None:
+    doc = scan_text("%@claim\n\\[ j = q^{-1} + 744 + 196\\,884q + 21\\,493\\,760 q^2 \\]\n")
+    row = doc.items[0].rows[0]  # type: ignore[union-attr]
+    assert sx(ok(row.text.text)) == (
+        "j",
+        "=",
+        ("+", ("+", ("+", ("^", "q", -1), 744), ("*", 196884, "q")), ("*", 21493760, ("^", "q", 2))),
+    )
+
+
+@pytest.mark.parametrize(
+    ("text", "offset"),
+    [
+        ("x = \\cdot E_6", 4),
+        ("x = \\neq 1", 4),
+        ("x = \\times_3", 4),
+        ("x = a \\cdot \\cdot b", 12),
+    ],
+)
 def test_operator_keyword_in_operand_position(text: str, offset: int) -> None:
     f = fail(text)
     assert (f.code, f.offset) == ("syntax", offset)
+
+
+def test_control_words_that_merely_start_like_keywords_are_names() -> None:
+    assert sx(ok("x = \\nu + \\notin + \\timesx + \\fracture")) == (
+        "x",
+        "=",
+        ("+", ("+", ("+", "\\nu", "\\notin"), "\\timesx"), "\\fracture"),
+    )

@@ -591,7 +591,7 @@ def test_recursive_macro_is_a_diagnostic_not_a_hang(preamble: str) -> None:
     doc = run_bounded(lambda: scan_text(text))
     block = only_claim(doc)
     assert problem_codes(block) == ["macro-expansion"]
-    assert block.problems[0].location.line == 3
+    assert short(block.problems[0].location) == "3:4"  # the \\R the author typed
     assert block.rows == []
 
 
@@ -605,14 +605,14 @@ def test_exploding_macro_is_a_diagnostic_not_a_hang() -> None:
     assert time.perf_counter() - start < 5
     block = only_claim(doc)
     assert problem_codes(block) == ["macro-expansion"]
-    assert block.problems[0].location.line == 3
+    assert short(block.problems[0].location) == "3:4"
 
 
 def test_recursive_macro_in_define_tag() -> None:
     doc = run_bounded(lambda: scan_text("\\def\\a{\\a}\n%@define F = \\a\n"))
     d = defines(doc)[0]
     assert problem_codes(d) == ["macro-expansion"]
-    assert d.problems[0].location.line == 2
+    assert short(d.problems[0].location) == "2:14"
 
 
 def test_macro_missing_argument() -> None:
@@ -629,11 +629,6 @@ def test_one_bad_row_does_not_lose_the_others() -> None:
     assert [squash(r.text.text) for r in block.rows] == ["a = b", "d = e"]
 
 
-@pytest.mark.xfail(
-    strict=True,
-    reason="bug: MacroError.index is an index into the intermediate expansion, but the scanner "
-    "reads it as an index into the row, so a too-deep/too-large expansion is reported at the wrong column",
-)
 def test_recursive_macro_diagnostic_points_at_the_call() -> None:
     doc = scan_text("\\def\\R{\\R}\n%@claim\n\\[ a + b = \\R \\]\n")
     block = only_claim(doc)
@@ -785,11 +780,6 @@ def test_include_symlink_leaving_folder_refused(paper: Path) -> None:
     assert doc.items == []
 
 
-@pytest.mark.xfail(
-    strict=True,
-    reason="bug: when .tex is implied, the name with .tex appended is not resolved again, "
-    "so a symlink paper/link.tex -> ../secret.tex passes the inside-the-folder check",
-)
 def test_include_symlink_leaving_folder_refused_without_suffix(paper: Path) -> None:
     secret = write(paper.parent, "secret.tex", "%@claim\n\\[ x = y \\]\n")
     _symlink(paper / "link.tex", secret)
@@ -825,11 +815,6 @@ def test_same_file_input_twice_is_not_a_cycle(paper: Path) -> None:
     assert len(claims(doc)) == 2
 
 
-@pytest.mark.xfail(
-    strict=True,
-    reason="bug: nested \\input is resolved against the including file's folder; "
-    "LaTeX (and the spec) resolve every \\input against the main file's folder",
-)
 def test_nested_input_is_relative_to_the_main_file(paper: Path) -> None:
     write(paper, "main.tex", "\\input{sections/intro}\n")
     write(paper, "sections/intro.tex", "\\input{sections/table}\n")
@@ -837,6 +822,16 @@ def test_nested_input_is_relative_to_the_main_file(paper: Path) -> None:
     doc = scan_path(paper / "main.tex")
     assert all_codes(doc) == []
     assert only_claim(doc).tag.file == os.path.join("sections", "table.tex")
+
+
+def test_nested_input_is_not_relative_to_the_including_file(paper: Path) -> None:
+    write(paper, "main.tex", "\\input{sections/intro}\n")
+    write(paper, "sections/intro.tex", "text\n\\input{table}\n")
+    write(paper, "sections/table.tex", "%@claim\n\\[ a = b \\]\n")
+    doc = scan_path(paper / "main.tex")
+    assert [d.code for d in doc.diagnostics] == ["include-missing"]
+    assert doc.diagnostics[0].location == Location(os.path.join("sections", "intro.tex"), 2, 1)
+    assert doc.items == []
 
 
 def test_missing_main_file_is_unreadable(paper: Path) -> None:
@@ -946,7 +941,9 @@ def test_markdown_unclosed(text: str, where: str) -> None:
 
 def test_markdown_recursive_macro() -> None:
     doc = run_bounded(lambda: scan_text("$$\\def\\R{\\R}$$\n<!-- @claim -->\n$$ \\R = 1 $$\n", "n.md"))
-    assert problem_codes(only_claim(doc)) == ["macro-expansion"]
+    block = only_claim(doc)
+    assert problem_codes(block) == ["macro-expansion"]
+    assert block.problems[0].location == Location("n.md", 3, 4)
 
 
 def test_markdown_bad_macro() -> None:
@@ -963,11 +960,10 @@ def test_markdown_define_position() -> None:
 
 
 # ---------------------------------------------------------------------------
-# Known bugs (reported; see the reasons)
+# Regressions: CRLF line endings, ASCII dots
 # ---------------------------------------------------------------------------
 
 
-@pytest.mark.xfail(strict=True, reason="bug: a CR of a CRLF line ending is read as an option -> bad-option")
 def test_crlf_line_endings_latex() -> None:
     doc = scan_text("%@claim\r\n\\[ a = b \\]\r\n")
     block = only_claim(doc)
@@ -975,7 +971,6 @@ def test_crlf_line_endings_latex() -> None:
     assert block.options == {}
 
 
-@pytest.mark.xfail(strict=True, reason="bug: a CR of a CRLF line ending is read as an option -> bad-option")
 def test_crlf_line_endings_markdown() -> None:
     doc = scan_text("<!-- @claim\r\n-->\r\n$$ a = b $$\r\n", "n.md")
     assert only_claim(doc).problems == []
@@ -989,10 +984,6 @@ def test_crlf_positions_and_named_option() -> None:
     assert rows_summary(block) == [("a = b", None, "3:2"), ("c = d", None, "4:2")]
 
 
-@pytest.mark.xfail(
-    strict=True,
-    reason="bug: trailing-punctuation removal eats the last dot of '...', leaving '..' (a syntax error)",
-)
 def test_trailing_ascii_dots_survive() -> None:
     block = only_claim(scan_text("%@claim\n\\[ E_4 = 1 + 240q + ... \\]\n"))
     assert squash(block.rows[0].text.text) == "E_4 = 1 + 240q + ..."

@@ -211,7 +211,8 @@ def _make_transformer() -> Any:
                 and not self.text[left.span[1] : right.span[0]].strip()
             ):
                 # In math mode TeX ignores spaces: '196 884' and '196\,884' print one number.
-                return ast.Number((left.span[0], right.span[1]), int(f"{left.value}{right.value}"))
+                digits = "".join(self.text[left.span[0] : right.span[1]].split())
+                return ast.Number((left.span[0], right.span[1]), int(digits))
             return self._bin("*", meta, left, right)
 
         def mul(self, meta: Any, items: list[Any]) -> ast.BinOp:
