@@ -60,6 +60,7 @@ class OverBudget(Exception):
 # Timing helpers
 # ---------------------------------------------------------------------------------
 
+
 def run_once(fn: Callable[[], Any]) -> tuple[Any, float]:
     """Run ``fn`` once with the garbage collector off; return (result, seconds)."""
     gc.collect()
@@ -87,8 +88,9 @@ def best_time(fn: Callable[[], Any], first: float, min_total: float, max_runs: i
     return best
 
 
-def best_pair(fa: Callable[[], Any], first_a: float, fb: Callable[[], Any], first_b: float,
-              min_total: float, max_runs: int) -> tuple[float, float]:
+def best_pair(
+    fa: Callable[[], Any], first_a: float, fb: Callable[[], Any], first_b: float, min_total: float, max_runs: int
+) -> tuple[float, float]:
     """Like :func:`best_time` for two functions, alternating their runs so that a change
     in machine load during the measurement affects both alike."""
     best_a, best_b, total, runs = first_a, first_b, first_a + first_b, 1
@@ -180,23 +182,30 @@ def compare(name: str, size: int, windows: dict[str, dict[str, Any]]) -> None:
 
 # -- engine --------------------------------------------------------------------------
 
+
 def engine_build(n: int) -> dict[str, QSeries]:
-    return {"E4": eisenstein_series(4, n), "E6": eisenstein_series(6, n),
-            "E12": eisenstein_series(12, n), "D": delta_series(n)}
+    return {
+        "E4": eisenstein_series(4, n),
+        "E6": eisenstein_series(6, n),
+        "E12": eisenstein_series(12, n),
+        "D": delta_series(n),
+    }
 
 
 def engine_eisenstein(x: dict[str, QSeries]) -> dict[str, QSeries]:
     e43 = x["E4"] ** 3
     e62 = x["E6"] ** 2
     diff = e43 - e62
-    return {"E4^3-E6^2": diff,
-            "E4^3-E6^2-1728D": diff - x["D"].scale(1728),
-            "441E4^3+250E6^2-691E12": e43.scale(441) + e62.scale(250) - x["E12"].scale(691)}
+    return {
+        "E4^3-E6^2": diff,
+        "E4^3-E6^2-1728D": diff - x["D"].scale(1728),
+        "441E4^3+250E6^2-691E12": e43.scale(441) + e62.scale(250) - x["E12"].scale(691),
+    }
 
 
 def engine_delta(x: dict[str, QSeries]) -> dict[str, QSeries]:
     d = x["D"]
-    return {"D^2": d ** 2, "D^3": d ** 3, "E4*D": x["E4"] * d}
+    return {"D^2": d**2, "D^3": d**3, "E4*D": x["E4"] * d}
 
 
 def engine_j(x: dict[str, QSeries]) -> dict[str, QSeries]:
@@ -204,6 +213,7 @@ def engine_j(x: dict[str, QSeries]) -> dict[str, QSeries]:
 
 
 # -- python-flint directly -------------------------------------------------------------
+
 
 def _pentagonal(n: int) -> list[int]:
     """prod_{m>=1} (1 - q^m) mod q^n, coefficient list (Euler's pentagonal theorem)."""
@@ -224,18 +234,23 @@ def flint_build(n: int) -> dict[str, Any]:
 
     one = fmpz_poly([1])
     euler = fmpz_poly(_pentagonal(n - 1))
-    return {"E4": 240 * sigma(3) + one, "E6": -504 * sigma(5) + one,
-            "691E12": 65520 * sigma(11) + 691 * one,          # 691*E_12 has integer coefficients
-            "D": euler.pow_trunc(24, n - 1).left_shift(1)}   # Delta = q prod (1-q^m)^24
+    return {
+        "E4": 240 * sigma(3) + one,
+        "E6": -504 * sigma(5) + one,
+        "691E12": 65520 * sigma(11) + 691 * one,  # 691*E_12 has integer coefficients
+        "D": euler.pow_trunc(24, n - 1).left_shift(1),
+    }  # Delta = q prod (1-q^m)^24
 
 
 def flint_eisenstein(x: dict[str, Any], n: int) -> dict[str, Any]:
     e43 = x["E4"].pow_trunc(3, n)
     e62 = x["E6"].mul_low(x["E6"], n)
     diff = e43 - e62
-    return {"E4^3-E6^2": diff,
-            "E4^3-E6^2-1728D": diff - 1728 * x["D"],
-            "441E4^3+250E6^2-691E12": 441 * e43 + 250 * e62 - x["691E12"]}
+    return {
+        "E4^3-E6^2": diff,
+        "E4^3-E6^2-1728D": diff - 1728 * x["D"],
+        "441E4^3+250E6^2-691E12": 441 * e43 + 250 * e62 - x["691E12"],
+    }
 
 
 def flint_delta(x: dict[str, Any], n: int) -> dict[str, Any]:
@@ -262,6 +277,7 @@ def flint_j(x: dict[str, Any], n: int) -> dict[str, Any]:
 
 
 # -- pure Python -----------------------------------------------------------------------
+
 
 def py_mul(a: list[Any], b: list[Any], n: int, deadline: float) -> list[Any]:
     """The first ``n`` coefficients of a*b: schoolbook convolution, skipping zeros of a."""
@@ -312,7 +328,7 @@ def py_sigma(r: int, n: int) -> list[int]:
     """[0, sigma_r(1), ..., sigma_r(n-1)] by a divisor sieve."""
     s = [0] * n
     for d in range(1, n):
-        dr = d ** r
+        dr = d**r
         for m in range(d, n, d):
             s[m] += dr
     return s
@@ -329,8 +345,12 @@ def py_build(n: int, deadline: float) -> dict[str, list[Any]]:
     body = [1] + [0] * (n - 2)
     for _ in range(24):  # multiplying by the sparse Euler product beats squaring dense lists
         body = py_mul(euler, body, n - 1, deadline)
-    return {"E4": py_eisenstein_list(4, n), "E6": py_eisenstein_list(6, n),
-            "E12": py_eisenstein_list(12, n), "D": [0, *body]}
+    return {
+        "E4": py_eisenstein_list(4, n),
+        "E6": py_eisenstein_list(6, n),
+        "E12": py_eisenstein_list(12, n),
+        "D": [0, *body],
+    }
 
 
 def py_eisenstein(x: dict[str, list[Any]], n: int, deadline: float) -> dict[str, list[Any]]:
@@ -338,10 +358,11 @@ def py_eisenstein(x: dict[str, list[Any]], n: int, deadline: float) -> dict[str,
     e43 = py_mul(py_mul(e4, e4, n, deadline), e4, n, deadline)
     e62 = py_mul(e6, e6, n, deadline)
     diff = [a - b for a, b in zip(e43, e62, strict=True)]
-    return {"E4^3-E6^2": diff,
-            "E4^3-E6^2-1728D": [a - 1728 * d for a, d in zip(diff, x["D"], strict=True)],
-            "441E4^3+250E6^2-691E12": [441 * a + 250 * b - 691 * c
-                                        for a, b, c in zip(e43, e62, x["E12"], strict=True)]}
+    return {
+        "E4^3-E6^2": diff,
+        "E4^3-E6^2-1728D": [a - 1728 * d for a, d in zip(diff, x["D"], strict=True)],
+        "441E4^3+250E6^2-691E12": [441 * a + 250 * b - 691 * c for a, b, c in zip(e43, e62, x["E12"], strict=True)],
+    }
 
 
 def py_delta(x: dict[str, list[Any]], n: int, deadline: float) -> dict[str, list[Any]]:
@@ -360,6 +381,7 @@ def py_j(x: dict[str, list[Any]], n: int, deadline: float) -> dict[str, list[Any
 
 # -- the workloads ------------------------------------------------------------------------
 
+
 @dataclass
 class Workload:
     label: str
@@ -377,27 +399,39 @@ def _w_full(names: tuple[str, ...]) -> Callable[[int], dict[str, tuple[int, int]
 
 
 WORKLOADS = [
-    Workload("(0) build E4,E6,E12,D",
-             _w_full(("E4", "E6", "D")),
-             lambda x, n: engine_build(n), lambda x, n: flint_build(n), lambda x, n, dl: py_build(n, dl),
-             lambda n: {"E4": 0, "E6": 0, "D": 0}),
-    Workload("(a) E4^3-E6^2, E12 rel",
-             _w_full(("E4^3-E6^2", "E4^3-E6^2-1728D", "441E4^3+250E6^2-691E12")),
-             lambda x, n: engine_eisenstein(x), flint_eisenstein, py_eisenstein,
-             lambda n: dict.fromkeys(("E4^3-E6^2", "E4^3-E6^2-1728D", "441E4^3+250E6^2-691E12"), 0)),
-    Workload("(b) D^2, D^3, E4*D",
-             _w_full(("D^2", "D^3", "E4*D")),
-             lambda x, n: engine_delta(x), flint_delta, py_delta,
-             lambda n: {"D^2": 0, "D^3": 0, "E4*D": 0}),
-    Workload("(c) j = E4^3/D",
-             lambda n: {"j": (-1, n - 2)},
-             lambda x, n: engine_j(x), flint_j, py_j,
-             lambda n: {"j": -1}),
+    Workload(
+        "(0) build E4,E6,E12,D",
+        _w_full(("E4", "E6", "D")),
+        lambda x, n: engine_build(n),
+        lambda x, n: flint_build(n),
+        lambda x, n, dl: py_build(n, dl),
+        lambda n: {"E4": 0, "E6": 0, "D": 0},
+    ),
+    Workload(
+        "(a) E4^3-E6^2, E12 rel",
+        _w_full(("E4^3-E6^2", "E4^3-E6^2-1728D", "441E4^3+250E6^2-691E12")),
+        lambda x, n: engine_eisenstein(x),
+        flint_eisenstein,
+        py_eisenstein,
+        lambda n: dict.fromkeys(("E4^3-E6^2", "E4^3-E6^2-1728D", "441E4^3+250E6^2-691E12"), 0),
+    ),
+    Workload(
+        "(b) D^2, D^3, E4*D",
+        _w_full(("D^2", "D^3", "E4*D")),
+        lambda x, n: engine_delta(x),
+        flint_delta,
+        py_delta,
+        lambda n: {"D^2": 0, "D^3": 0, "E4*D": 0},
+    ),
+    Workload(
+        "(c) j = E4^3/D", lambda n: {"j": (-1, n - 2)}, lambda x, n: engine_j(x), flint_j, py_j, lambda n: {"j": -1}
+    ),
 ]
 
 
-def windows_of(outputs: dict[str, Any], want: dict[str, tuple[int, int]], origins: dict[str, int] | None,
-               kind: str) -> dict[str, Any]:
+def windows_of(
+    outputs: dict[str, Any], want: dict[str, tuple[int, int]], origins: dict[str, int] | None, kind: str
+) -> dict[str, Any]:
     out = {}
     for key, (lo, hi) in want.items():
         value = outputs[key]
@@ -428,15 +462,18 @@ def known_values(size: int, engine_out: dict[str, dict[str, Any]]) -> None:
             raise Mismatch(f"j coefficient of q^{m} is {j[m]}, expected {c}")
 
 
-def section_engine(sizes: list[int], pure_budget: float, pure_total: float,
-                   min_total: float) -> list[tuple[Any, ...]]:
+def section_engine(sizes: list[int], pure_budget: float, pure_total: float, min_total: float) -> list[tuple[Any, ...]]:
     print("== 1. q-series engine vs python-flint directly vs pure Python ==")
     print("   (all three agree coefficient for coefficient before any time is printed;")
     print(f"    pure Python is skipped where it would run past {pure_budget:g} s, predicted from the")
-    print("    previous size by quadratic scaling, or where it actually runs past that"
-          + (f";\n    at most {pure_total:g} s of pure Python in all)" if pure_total < float("inf") else ")"))
-    header = (f"{'size':>7}  {'workload':<24}{'engine s':>10}{'flint s':>10}{'eng/flint':>10}"
-              f"{'pure-py s':>11}{'pure/eng':>10}")
+    print(
+        "    previous size by quadratic scaling, or where it actually runs past that"
+        + (f";\n    at most {pure_total:g} s of pure Python in all)" if pure_total < float("inf") else ")")
+    )
+    header = (
+        f"{'size':>7}  {'workload':<24}{'engine s':>10}{'flint s':>10}{'eng/flint':>10}"
+        f"{'pure-py s':>11}{'pure/eng':>10}"
+    )
     print(header)
     print("-" * len(header))
     rows: list[tuple[Any, ...]] = []
@@ -460,8 +497,10 @@ def section_engine(sizes: list[int], pure_budget: float, pure_total: float,
 
             e_out, e_first = run_once(e_fn)
             f_out, f_first = run_once(f_fn)
-            windows = {"engine": windows_of(e_out, want, None, "engine"),
-                       "flint": windows_of(f_out, want, origins, "flint")}
+            windows = {
+                "engine": windows_of(e_out, want, None, "engine"),
+                "flint": windows_of(f_out, want, origins, "flint"),
+            }
             compare(w.label, n, windows)  # before any repeated timing
             engine_outputs[w.label] = e_out
             t_e, t_f = best_pair(e_fn, e_first, f_fn, f_first, 2 * min_total, 25)
@@ -470,10 +509,12 @@ def section_engine(sizes: list[int], pure_budget: float, pure_total: float,
                 engine_inputs, flint_inputs = e_out, f_out
                 # The pure-Python inputs are the flint ones as Python numbers, so a skipped
                 # pure build does not block the later pure workloads.
-                pure_inputs = {"E4": [int(c) for c in f_out["E4"].coeffs()],
-                               "E6": [int(c) for c in f_out["E6"].coeffs()],
-                               "E12": [Fraction(int(c), 691) for c in f_out["691E12"].coeffs()],
-                               "D": [int(c) for c in f_out["D"].coeffs()]}
+                pure_inputs = {
+                    "E4": [int(c) for c in f_out["E4"].coeffs()],
+                    "E6": [int(c) for c in f_out["E6"].coeffs()],
+                    "E12": [Fraction(int(c), 691) for c in f_out["691E12"].coeffs()],
+                    "D": [int(c) for c in f_out["D"].coeffs()],
+                }
                 for key in ("E4", "E6", "D"):
                     pure_inputs[key] += [0] * (n - len(pure_inputs[key]))
 
@@ -499,8 +540,11 @@ def section_engine(sizes: list[int], pure_budget: float, pure_total: float,
                 pure_dead.add(w.label)
             r_ef = t_e / t_f if t_f > 0 else None
             r_pe = t_p / t_e if t_p is not None and t_e > 0 else None
-            print(f"{n:>7}  {w.label:<24}{fmt_s(t_e):>10}{fmt_s(t_f):>10}{fmt_ratio(r_ef):>10}"
-                  f"{fmt_s(t_p):>11}{fmt_ratio(r_pe):>10}", flush=True)
+            print(
+                f"{n:>7}  {w.label:<24}{fmt_s(t_e):>10}{fmt_s(t_f):>10}{fmt_ratio(r_ef):>10}"
+                f"{fmt_s(t_p):>11}{fmt_ratio(r_pe):>10}",
+                flush=True,
+            )
             rows.append((n, w.label, t_e, t_f, t_p))
             del e_out, f_out, windows
         known_values(n, engine_outputs)
@@ -522,13 +566,41 @@ PREAMBLE = r"""\documentclass{article}
 \begin{document}
 """
 
-WORDS = ("the", "form", "modular", "weight", "level", "space", "we", "observe", "that", "series",
-         "coefficient", "expansion", "identity", "follows", "from", "dimension", "cusp", "Hecke",
-         "operator", "eigenform", "hence", "by", "comparing", "terms", "so", "is", "a", "of", "in")
+WORDS = (
+    "the",
+    "form",
+    "modular",
+    "weight",
+    "level",
+    "space",
+    "we",
+    "observe",
+    "that",
+    "series",
+    "coefficient",
+    "expansion",
+    "identity",
+    "follows",
+    "from",
+    "dimension",
+    "cusp",
+    "Hecke",
+    "operator",
+    "eigenform",
+    "hence",
+    "by",
+    "comparing",
+    "terms",
+    "so",
+    "is",
+    "a",
+    "of",
+    "in",
+)
 
 
 def _sigma(r: int, m: int) -> int:
-    return sum(d ** r for d in range(1, m + 1) if m % d == 0)
+    return sum(d**r for d in range(1, m + 1) if m % d == 0)
 
 
 def _expansion(k: int, terms: int, tail: str, rng: random.Random) -> str:
@@ -536,8 +608,9 @@ def _expansion(k: int, terms: int, tail: str, rng: random.Random) -> str:
     parts = ["1"]
     for m in range(1, terms):
         c = const * _sigma(k - 1, m)
-        parts.append(f"{'-' if c < 0 else '+'} {abs(c)}q" + (f"^{m}" if m < 10 and m > 1 else
-                                                           f"^{{{m}}}" if m >= 10 else ""))
+        parts.append(
+            f"{'-' if c < 0 else '+'} {abs(c)}q" + (f"^{m}" if m < 10 and m > 1 else f"^{{{m}}}" if m >= 10 else "")
+        )
     macro = rng.random() < 0.3
     name = f"\\Eis{{{k}}}" if macro else (f"E_{k}" if k < 10 else f"E_{{{k}}}")
     end = r"\cdots" if tail == "dots" else f"O(q^{{{terms}}})"
@@ -568,8 +641,18 @@ def _prose(rng: random.Random) -> str:
         words = [rng.choice(WORDS) for _ in range(rng.randint(30, 90))]
         words[0] = words[0].capitalize()
         for _ in range(rng.randint(0, 3)):
-            words.insert(rng.randrange(len(words)), rng.choice(("$E_4$", "$\\Delta(\\tau)$", "$q = e^{2\\pi i\\tau}$",
-                                                               "$M_k(\\mathrm{SL}_2(\\mathbb{Z}))$", "100\\%")))
+            words.insert(
+                rng.randrange(len(words)),
+                rng.choice(
+                    (
+                        "$E_4$",
+                        "$\\Delta(\\tau)$",
+                        "$q = e^{2\\pi i\\tau}$",
+                        "$M_k(\\mathrm{SL}_2(\\mathbb{Z}))$",
+                        "100\\%",
+                    )
+                ),
+            )
         out.append(" ".join(words) + ".")
         if rng.random() < 0.15:
             out.append("% an ordinary comment, not a tag")
@@ -643,8 +726,10 @@ def section_scan(claim_counts: list[int]) -> bool:
     print("\n== 2. scan + parse throughput on a synthetic manuscript ==")
     print("   (ratio = scan+parse seconds / one re.finditer pass over the %@claim tags, same text)")
     parse_claim("E_4^2 = E_8")  # build the parser once, outside the timings
-    header = (f"{'blocks':>7}{'rows':>7}{'MB':>7}{'scan s':>9}{'parse s':>9}{'claims/s':>10}"
-              f"{'MB/s':>8}{'regex s':>10}{'vs regex':>10}")
+    header = (
+        f"{'blocks':>7}{'rows':>7}{'MB':>7}{'scan s':>9}{'parse s':>9}{'claims/s':>10}"
+        f"{'MB/s':>8}{'regex s':>10}{'vs regex':>10}"
+    )
     print(header)
     print("-" * len(header))
     ok = True
@@ -658,21 +743,29 @@ def section_scan(claim_counts: list[int]) -> bool:
         total = t_scan + t_parse
         if tags != want_blocks or blocks != want_blocks or rows != want_rows or failures:
             ok = False
-            print(f"   WRONG: generated {want_blocks} blocks / {want_rows} rows; regex saw {tags} tags, "
-                  f"scanner {blocks} blocks / {rows} rows, {failures} rows failed to parse")
-        print(f"{blocks:>7}{rows:>7}{mb:>7.2f}{fmt_s(t_scan):>9}{fmt_s(t_parse):>9}{rows / total:>10.0f}"
-              f"{mb / total:>8.2f}{fmt_s(t_re):>10}{fmt_ratio(total / t_re):>10}", flush=True)
+            print(
+                f"   WRONG: generated {want_blocks} blocks / {want_rows} rows; regex saw {tags} tags, "
+                f"scanner {blocks} blocks / {rows} rows, {failures} rows failed to parse"
+            )
+        print(
+            f"{blocks:>7}{rows:>7}{mb:>7.2f}{fmt_s(t_scan):>9}{fmt_s(t_parse):>9}{rows / total:>10.0f}"
+            f"{mb / total:>8.2f}{fmt_s(t_re):>10}{fmt_ratio(total / t_re):>10}",
+            flush=True,
+        )
         per_claim.append(total / rows)
     if len(per_claim) > 1:
         growth = per_claim[-1] / per_claim[0]
-        print(f"   time per claim grows {growth:.2f}x from {claim_counts[0]} to {claim_counts[-1]} blocks "
-              f"(1.00x = linear scaling)")
+        print(
+            f"   time per claim grows {growth:.2f}x from {claim_counts[0]} to {claim_counts[-1]} blocks "
+            f"(1.00x = linear scaling)"
+        )
     return ok
 
 
 # ---------------------------------------------------------------------------------
 # Section 3: the whole pipeline
 # ---------------------------------------------------------------------------------
+
 
 def section_pipeline(claims: int) -> bool:
     print("\n== 3. whole pipeline: verifier.api.check_text on a synthetic manuscript ==")
@@ -691,13 +784,15 @@ def section_pipeline(claims: int) -> bool:
     results = getattr(report, "claims", None)
     summary = getattr(report, "summary", None)
     n_results = len(results) if results is not None else 0
-    header = (f"{'blocks':>7}{'results':>9}{'MB':>7}{'total s':>9}{'claims/s':>10}"
-              f"{'vs scan+parse':>15}{'vs regex':>10}")
+    header = f"{'blocks':>7}{'results':>9}{'MB':>7}{'total s':>9}{'claims/s':>10}{'vs scan+parse':>15}{'vs regex':>10}"
     print(header)
     print("-" * len(header))
     per_s = n_results / t_all if t_all > 0 and n_results else 0.0
-    print(f"{tags:>7}{n_results:>9}{mb:>7.2f}{fmt_s(t_all):>9}{per_s:>10.0f}"
-          f"{fmt_ratio(t_all / (t_scan + t_parse)):>15}{fmt_ratio(t_all / t_re):>10}", flush=True)
+    print(
+        f"{tags:>7}{n_results:>9}{mb:>7.2f}{fmt_s(t_all):>9}{per_s:>10.0f}"
+        f"{fmt_ratio(t_all / (t_scan + t_parse)):>15}{fmt_ratio(t_all / t_re):>10}",
+        flush=True,
+    )
     if summary is not None:
         print(f"   verdicts: {summary}  (the generator writes {want_rows} rows; a row holds one or more claims)")
     return True
@@ -705,18 +800,27 @@ def section_pipeline(claims: int) -> bool:
 
 # ---------------------------------------------------------------------------------
 
+
 def main(argv: list[str] | None = None) -> int:
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     ap.add_argument("--quick", action="store_true", help="sizes 10^3 and 10^4 only, smaller manuscript (~30 s)")
-    ap.add_argument("--pure-budget", type=float, default=None,
-                    help="seconds allowed for one pure-Python cell (default 20, or 15 with --quick)")
-    ap.add_argument("--pure-total", type=float, default=None,
-                    help="seconds allowed for all pure-Python cells together (default unlimited, 15 with --quick)")
+    ap.add_argument(
+        "--pure-budget",
+        type=float,
+        default=None,
+        help="seconds allowed for one pure-Python cell (default 20, or 15 with --quick)",
+    )
+    ap.add_argument(
+        "--pure-total",
+        type=float,
+        default=None,
+        help="seconds allowed for all pure-Python cells together (default unlimited, 15 with --quick)",
+    )
     ap.add_argument("--skip", default="", help="comma-separated sections to skip: engine, scan, pipeline")
     args = ap.parse_args(argv)
     quick = args.quick
     skip = {s.strip() for s in args.skip.split(",") if s.strip()}
-    sizes = [10 ** 3, 10 ** 4] if quick else [10 ** 3, 10 ** 4, 10 ** 5]
+    sizes = [10**3, 10**4] if quick else [10**3, 10**4, 10**5]
     pure_budget = args.pure_budget if args.pure_budget is not None else (15.0 if quick else 20.0)
     pure_total = args.pure_total if args.pure_total is not None else (15.0 if quick else float("inf"))
     print(f"qreferee benchmarks ({'quick' if quick else 'full'}); python {sys.version.split()[0]}")

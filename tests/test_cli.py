@@ -373,11 +373,10 @@ def test_both_samples_in_one_run() -> None:
 
 
 # ---------------------------------------------------------------------------
-# Known bugs (strict xfail: they start failing once fixed, so the marker gets removed)
+# Regressions for bugs found while writing these tests
 # ---------------------------------------------------------------------------
 
 
-@pytest.mark.xfail(strict=True, reason="bug: a missing .tex file is reported at its folder, not at its path")
 def test_missing_latex_file_is_reported_at_its_path(tmp_path: Path) -> None:
     code, data = run_json("absent.tex", cwd=tmp_path)
     assert code == 2
@@ -386,7 +385,6 @@ def test_missing_latex_file_is_reported_at_its_path(tmp_path: Path) -> None:
     assert diag["file"].endswith("absent.tex")
 
 
-@pytest.mark.xfail(strict=True, reason="bug: a claim starting with \\left( is located after \\left and loses it")
 def test_claim_starting_with_left_is_located_at_left(tmp_path: Path) -> None:
     write(tmp_path, "l.tex", "%@claim\n\\[ \\left(E_4\\right)^2 = E_8 \\]\n")
     _, data = run_json("l.tex", cwd=tmp_path)

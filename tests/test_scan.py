@@ -290,7 +290,9 @@ def test_comment_inside_display_is_dropped() -> None:
         ("a = b.", "a = b"),
         ("a = b ,", "a = b"),
         ("a = b;", "a = b"),
-        ("\\left( a \\right)^2 = \\bigl[ b \\bigr]", "( a )^2 = [ b ]"),
+        # The delimiter keeps the position of its sizing command, so a claim that starts
+        # with \left( is located at the backslash.
+        ("\\left( a \\right)^2 = \\bigl[ b \\bigr]", "( a ) ^2 = [ b ]"),
         ("\\displaystyle a = b", "a = b"),
         ("a = \\frac12 b", "a = \\frac{1}{2} b"),
         ("a = \\dfrac 3 4", "a = \\dfrac{3}{4}"),
@@ -316,9 +318,10 @@ def test_label_is_extracted_and_removed() -> None:
 def test_positions_survive_normalisation() -> None:
     doc = scan_text("%@claim\n\\[ \\left( E_4 \\right)^2 \\,=\\, \\frac12 E_8 \\]\n")
     row = only_claim(doc).rows[0].text
-    assert loc_of(row, "(") == "2:9"
+    # Sized delimiters map to their sizing command (\left, \right).
+    assert loc_of(row, "(") == "2:4"
     assert loc_of(row, "E_4") == "2:11"
-    assert loc_of(row, ")") == "2:21"
+    assert loc_of(row, ")") == "2:15"
     assert loc_of(row, "=") == "2:27"
     assert loc_of(row, "E_8") == "2:39"
     # \frac12 is rewritten to \frac{1}{2}; the new text points at \frac.

@@ -160,18 +160,28 @@ class Prover:
             if n is not None:
                 differing.append((wt, j, n))
         wl, wr = left.expr.typ.weight, right.expr.typ.weight
-        depth = max(left.expr.typ.depth, right.expr.typ.depth)
+        # The E_2-depth actually present: a numerator piece that vanishes through its
+        # Sturm bound is zero, so E_2-parts that cancel (2E_2(2tau) - E_2) do not count.
+        depth = max((_nonzero_depth(g, level) for g in (nl, nr)), default=0)
         weight = wl if wl is not None else wr
-        space = space_of(weight, level, depth)
-        bound = max((c["bound"] for c in components), default=0)
         cleared = left.expr.typ.den_weight + right.expr.typ.den_weight
+        space = space_of(weight, level, depth)
+        proof_space = space
+        if cleared:
+            # Quotients are meromorphic, so the claim's weight-k "space" has no dimension;
+            # the certificate adds the space the cleared identity N_L D_R = N_R D_L lives in.
+            space.pop("dimension", None)
+            space["meromorphic"] = True
+            proof_space = space_of(weight_p, level, depth)
+            space["cleared_space"] = proof_space
+        bound = max((c["bound"] for c in components), default=0)
         how = _how(components, cleared, level)
         if not differing:
             if kind == "equality":
                 return Outcome(
                     "proved",
                     kind,
-                    f"equal in {_space_text(space)}: {how}",
+                    f"equal in {_space_text(proof_space)}: {how}",
                     space,
                     "sturm",
                     bound,
@@ -181,7 +191,7 @@ class Prover:
             return Outcome(
                 "refuted",
                 kind,
-                f"the two sides are equal in {_space_text(space)}: {how}",
+                f"the two sides are equal in {_space_text(proof_space)}: {how}",
                 space,
                 "sturm",
                 bound,
@@ -305,6 +315,12 @@ def _first_nonzero(series: QSeries, stop: int) -> int | None:
     if series.is_zero() or series.valuation >= stop:
         return None
     return series.valuation
+
+
+def _nonzero_depth(g: Graded, level: int) -> int:
+    """Highest E_2-power whose coefficient form is nonzero (checked to its Sturm bound)."""
+    depths = [j for (w, j), s in g.items() if _first_nonzero(s, groups.sturm_bound(w - 2 * j, level) + 1) is not None]
+    return max(depths, default=0)
 
 
 def _graded_zero(g: Graded, level: int) -> bool | None:

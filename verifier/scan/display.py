@@ -23,9 +23,11 @@ _LABEL = re.compile(r"\\label\s*\{([^{}]*)\}")
 _TAG = re.compile(r"\\tag\*?\s*\{[^{}]*\}")
 _DROP = re.compile(
     r"\\(nonumber|notag|displaystyle|textstyle|qquad|quad|thinspace|enspace|medspace|thickspace|"
-    r"negthinspace|left|right|middle|[bB]ig{1,2}[lrm]?|big|Big|bigg|Bigg)(?![A-Za-z])"
+    r"negthinspace)(?![A-Za-z])"
     r"|\\[,;:!> ]|~|&"
 )
+# \left( -> "(" at the position of the backslash, so a claim starting with \left( starts there.
+_SIZED = re.compile(r"\\(left|right|middle|[bB]igg?[lrm]?)(?![A-Za-z])\s*(\\[{}]|[()\[\]|./])?")
 _HSPACE = re.compile(r"\\[hv]space\*?\s*\{[^{}]*\}")
 _INNER_ENV = re.compile(r"\\(begin|end)\s*\{(aligned|gathered|split|multlined)\}(\[[a-z]\])?")
 _MATHCAL_O = re.compile(r"\\(mathcal|mathrm|mathit)\s*(\{\s*O\s*\}|O)")
@@ -126,8 +128,16 @@ def normalise_row(row: MappedText, macros: dict[str, macro_mod.Macro]) -> Row:
     label_match = _LABEL.search(text.text)
     label = label_match.group(1).strip() if label_match else None
     text = text.blank(_LABEL).blank(_TAG).blank(_HSPACE).blank(_DROP)
+    text = text.sub(_SIZED, _sized_delimiter)
     text = text.sub(_MATHCAL_O, lambda m: "O")
     text = text.sub(_FRAC_DIGITS, lambda m: f"\\{m.group(1)}{{{m.group(2)}}}{{{m.group(3)}}}")
     text = text.blank(_TRAILING)
     text = text.sub(_NOT_EQUAL, lambda m: "\\neq")
     return Row(text, label, source_text)
+
+
+def _sized_delimiter(m: re.Match[str]) -> str:
+    delim = (m.group(2) or "").lstrip("\\")
+    if delim in (".", ""):
+        delim = " "
+    return delim + " " * (len(m.group(0)) - 1)

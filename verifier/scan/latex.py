@@ -46,6 +46,7 @@ class _Reader:
     def read_path(self, path: Path, at: Location | None) -> None:
         resolved = path.resolve()
         display = _display_name(resolved, self.root)
+        at = at or Location(display, 1, 1)
         if len(self.doc.files) >= MAX_FILES:
             self._problem("unreadable", at, f"more than {MAX_FILES} files; {display} not read", "")
             return

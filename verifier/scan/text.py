@@ -88,6 +88,9 @@ class MappedText:
         if start >= end or not self.origins:
             return ""
         a = self.origin(start)
+        # Extend over characters that were blanked (\right, \nonumber...): they belong to the claim.
+        while end < len(self.text) and self.text[end] == " " and not self.source.text[self.origins[end]].isspace():
+            end += 1
         last = max(self.origins[start:end]) + 1
         b = self.origins[end] if end < len(self.origins) else last
         return self.source.text[a : max(b, last)].rstrip()
