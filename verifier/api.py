@@ -172,6 +172,17 @@ def _define(item: DefineTag, elaborator: Elaborator, report: Report) -> None:
             )
         )
         return
+    if parsed.arg not in (None, "tau", "z", "q"):
+        report.diagnostics.append(
+            Diagnostic(
+                "bad-define",
+                "error",
+                text.location(parsed.name_span[1]),
+                "a definition names a function of \\tau; write NAME(\\tau) = ...",
+                "",
+            )
+        )
+        return
     name = parsed.name.replace(" ", "")
     problem = elaborator.define(name, parsed.body, text.text)
     if problem is not None:

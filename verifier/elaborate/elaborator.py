@@ -15,6 +15,7 @@ Rules (level one and ``f(d tau)``):
 from __future__ import annotations
 
 import math
+import re
 from dataclasses import dataclass
 from fractions import Fraction
 
@@ -25,6 +26,7 @@ from verifier.parse import ast
 MAX_EXPONENT = 10_000
 MAX_WEIGHT = Fraction(20_000)
 MAX_LEVEL = 10_000
+MAX_DEPTH = 40  # highest power of E_2 (the graded pieces multiply pairwise)
 
 
 @dataclass(frozen=True)
@@ -63,7 +65,15 @@ class Elaborator:
             trunc: int | None = None
             dots = False
             kept: list[tuple[int, ast.Node]] = []
-            for sign, term in terms:
+            for k, (sign, term) in enumerate(terms):
+                later = [t for _, t in terms[k + 1 :] if not isinstance(t, ast.Dots | ast.BigO)]
+                if isinstance(term, ast.Dots) and later:
+                    raise _err(
+                        "bad-expansion",
+                        "\\cdots stands between printed terms",
+                        "write the omitted terms, or put \\cdots at the end",
+                        term,
+                    )
                 if isinstance(term, ast.Dots):
                     if sign < 0:
                         raise _err(
@@ -95,6 +105,14 @@ class Elaborator:
 
     def define(self, name: str, node: ast.Node, text: str) -> Problem | None:
         """Record ``name := node``; returns a problem if the body does not elaborate."""
+        name = normal_name(name)
+        if is_builtin(name):
+            return Problem(
+                "bad-define",
+                f"{name} is a built-in form and cannot be redefined",
+                "choose another name (e.g. J for a renormalised j)",
+                node.span,
+            )
         result = self.side(node, text)
         if isinstance(result, Problem):
             return result
@@ -156,7 +174,7 @@ class Elaborator:
         raise _err("syntax", "this construction has no meaning here", "", node)
 
     def _name(self, node: ast.Name, src: str) -> ir.Expr:
-        name = node.text.replace(" ", "")
+        name = normal_name(node.text)
         scale = 1
         if node.arg not in (None, "tau", "z", "q"):
             digits = node.arg.removesuffix("tau") if node.arg else ""
@@ -172,7 +190,7 @@ class Elaborator:
             if node.arg is not None:
                 raise _err("syntax", "q takes no argument", "", node)
             return ir.QPower(ir.Typ(None, printed=True), src, 1)
-        if name in self.definitions and name != "j":
+        if name in self.definitions:
             if scale != 1:
                 raise _err(
                     "unsupported",
@@ -183,6 +201,13 @@ class Elaborator:
             return self.definitions[name]
         if name == "j":
             if "j" in self.definitions:
+                if scale != 1:
+                    raise _err(
+                        "unsupported",
+                        f"j({scale}\\tau) of a redefined j is not supported yet",
+                        "define the rescaled form directly",
+                        node,
+                    )
                 return self.definitions["j"]
             e4 = _atom(AtomInfo("E4", Fraction(4), 0), scale, "E_4")
             delta = _atom(AtomInfo("Delta", Fraction(12), 0), scale, "\\Delta")
@@ -196,6 +221,16 @@ class Elaborator:
         if len(name) > 1 and name[1:2] == "_" and not name.endswith("}"):
             hint += f"; note that in LaTeX {name}2 reads as {name} followed by 2 (write {name[:2]}{{..}})"
         raise _err("unknown-symbol", f"unknown symbol {name}", hint, node)
+
+
+def normal_name(text: str) -> str:
+    """``H_{1}`` and ``H_1`` are one name."""
+    return re.sub(r"_\{(\w)\}", r"_\1", text.replace(" ", ""))
+
+
+def is_builtin(name: str) -> bool:
+    """Names with a fixed meaning, which a define tag may not change."""
+    return name in ("q", "j") or lookup(name) is not None
 
 
 def _atom(info: AtomInfo, scale: int, src: str) -> ir.Atom:
@@ -242,6 +277,12 @@ def _check_size(typ: ir.Typ, node: ast.Node | None) -> ir.Typ:
                 f"weight {typ.weight} exceeds the limit {MAX_WEIGHT}",
                 "split the claim",
                 node.span if node else (0, 0),
+            )
+        )
+    if typ.depth > MAX_DEPTH:
+        raise ElaborationError(
+            Problem(
+                "too-large", f"E_2-depth {typ.depth} exceeds the limit {MAX_DEPTH}", "", node.span if node else (0, 0)
             )
         )
     if typ.level > MAX_LEVEL:

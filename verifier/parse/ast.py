@@ -96,6 +96,7 @@ class Definition(Node):
     name: str
     name_span: Span
     body: Node
+    arg: str | None = None
 
 
 def walk(node: Node) -> list[Node]:

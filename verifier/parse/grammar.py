@@ -187,7 +187,8 @@ def _make_transformer() -> Any:
 
         def definition(self, meta: Any, items: list[Any]) -> ast.Definition:
             name_tok = items[0]
-            return ast.Definition(_span(meta), str(name_tok), _tok_span(name_tok), items[-1])
+            arg = _normal_arg(str(items[1])) if len(items) == 3 else None
+            return ast.Definition(_span(meta), str(name_tok), _tok_span(name_tok), items[-1], arg)
 
         def neg(self, meta: Any, items: list[Any]) -> ast.Neg:
             return ast.Neg(_span(meta), items[0])

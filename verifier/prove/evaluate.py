@@ -82,7 +82,12 @@ def laurent(expr: ir.Expr, prec: int, table: AtomTable) -> QSeries:
         assert expr.left is not None and expr.right is not None
         if isinstance(expr.right, ir.Const):
             return laurent(expr.left, prec, table).scale(1 / expr.right.value)
-        den = laurent(expr.right, prec, table)
+        dp = max(prec, 1)
+        den = laurent(expr.right, dp, table)
+        while den.is_zero() and dp < prec + 256:
+            # Not known far enough to see its leading term (e.g. Delta below q^1).
+            dp = 2 * dp + 1
+            den = laurent(expr.right, dp, table)
         # Dividing by a series of valuation v loses v terms: ask for them up front.
         den = laurent(expr.right, prec + 2 * max(den.valuation, 0), table)
         num = laurent(expr.left, prec + max(den.valuation, 0), table)

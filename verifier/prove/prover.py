@@ -31,6 +31,9 @@ from verifier.prove.evaluate import (
 from verifier.series.qseries import QSeries
 
 DEFAULT_MAX_TERMS = 50_000
+# Coefficients of weight-k forms to q^n have about k*log2(n) bits: bound terms x weight,
+# so that a claim's memory stays in the hundreds of megabytes at most.
+MAX_WORK = 20_000_000
 
 
 @dataclass
@@ -99,9 +102,13 @@ class Prover:
     def precision_needed(self, left: ir.Side, right: ir.Side) -> int:
         """Coefficients a claim will need (used to compute each atom once, large enough)."""
         if left.printed or right.printed:
-            return _prefix_range(left, right)[1] + 2
-        level = claim_level(left, right)
-        return groups.sturm_bound(_proof_weight(left, right), level) + 1
+            need = _prefix_range(left, right)[1] + 2
+            weight = _heaviest(left, right)
+        else:
+            weight = _proof_weight(left, right)
+            need = groups.sturm_bound(weight, claim_level(left, right)) + 1
+        # A claim over budget is refused before computing; it must not inflate the plan.
+        return 0 if need > self.max_terms or need * max(weight, Fraction(12)) > MAX_WORK else need
 
     # -- deciding -------------------------------------------------------------------
     def decide(self, left: ir.Side, right: ir.Side, rel: str) -> Outcome:
@@ -115,7 +122,8 @@ class Prover:
             return Outcome(
                 "error",
                 kind,
-                f"deciding this claim needs {exc.needed} coefficients, over the budget of {self.max_terms}",
+                f"deciding this claim needs {exc.needed} coefficients, over the budget "
+                f"({self.max_terms} coefficients, and coefficients x weight <= {MAX_WORK})",
                 code="budget",
                 hint="raise --max-terms if this is intended",
             )
@@ -127,7 +135,7 @@ class Prover:
         level = claim_level(left, right)
         weight_p = _proof_weight(left, right)
         prec = groups.sturm_bound(weight_p, level) + 1
-        if prec > self.max_terms:
+        if prec > self.max_terms or prec * max(weight_p, Fraction(12)) > MAX_WORK:
             raise BudgetExceeded(prec)
         nl, dl = graded_fraction(left.expr, prec, self.table)
         nr, dr = graded_fraction(right.expr, prec, self.table)
@@ -240,7 +248,8 @@ class Prover:
         weight = claim_weight(left, right)
         depth = max(left.expr.typ.depth, right.expr.typ.depth)
         space = space_of(weight, level, depth) if weight is not None else None
-        if stop > self.max_terms:
+        heaviest = _heaviest(left, right)
+        if stop > self.max_terms or stop * max(heaviest, Fraction(12)) > MAX_WORK:
             raise BudgetExceeded(stop)
         a = laurent_to(left.expr, stop, self.table, self.max_terms * 2)
         b = laurent_to(right.expr, stop, self.table, self.max_terms * 2)
@@ -290,6 +299,11 @@ class Prover:
                 terms,
             )
         return Outcome("refuted", "prefix", f"the expansions agree on {rng}", space, "expansion", None, terms)
+
+
+def _heaviest(left: ir.Side, right: ir.Side) -> Fraction:
+    """Largest weight (with denominators) among the sides: sizes the coefficients."""
+    return max(abs(s.expr.typ.weight or Fraction(0)) + s.expr.typ.den_weight for s in (left, right))
 
 
 def _proof_weight(left: ir.Side, right: ir.Side) -> Fraction:

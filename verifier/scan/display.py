@@ -8,6 +8,7 @@ punctuation).  Every step keeps the source position of each character.
 
 from __future__ import annotations
 
+import itertools
 import re
 from dataclasses import dataclass
 
@@ -53,7 +54,11 @@ def rows_of(content: MappedText, env: str) -> list[MappedText]:
     has_inner_rows = any(f"\\begin{{{e}}}" in content.text.replace(" ", "") for e in INNER_ROW_ENVIRONMENTS)
     if env in ROW_ENVIRONMENTS or has_inner_rows:
         content = content.blank(_INNER_ENV)
-        return [r for r in _split_rows(content) if r.text.strip()]
+        rows = [r for r in _split_rows(content) if r.text.strip()]
+        if env.startswith(("align", "flalign")):
+            # Columns come in pairs 'lhs &= rhs': every second '&' starts another equation.
+            rows = [c for r in rows for c in _split_columns(r) if c.text.strip()]
+        return rows
     content = content.blank(_INNER_ENV)
     return [content.blank(_ROW_BREAK)]
 
@@ -116,6 +121,32 @@ def _split_rows(content: MappedText) -> list[MappedText]:
         i += 1
     rows.append(content.slice(start))
     return rows
+
+
+def _split_columns(row: MappedText) -> list[MappedText]:
+    s = row.text
+    cuts: list[int] = []
+    depth = 0
+    count = 0
+    i = 0
+    while i < len(s):
+        ch = s[i]
+        if ch == "\\":
+            i += 2
+            continue
+        if ch == "{":
+            depth += 1
+        elif ch == "}":
+            depth -= 1
+        elif ch == "&" and depth == 0:
+            count += 1
+            if count % 2 == 0:
+                cuts.append(i)
+        i += 1
+    if not cuts:
+        return [row]
+    bounds = [0, *cuts, len(s)]
+    return [row.slice(a + (1 if k else 0), b) for k, (a, b) in enumerate(itertools.pairwise(bounds))]
 
 
 def normalise_row(row: MappedText, macros: dict[str, macro_mod.Macro]) -> Row:

@@ -1,0 +1,57 @@
+"""Regressions from an adversarial review: readings that once gave a false verdict.
+
+The mathematics of each case is elementary (coefficients of E_4, E_6, E_10 and j at
+q^1 from MATH.md §9 and §1.4); what is tested is that the claim is read as written.
+"""
+
+from __future__ import annotations
+
+from verifier import check_text
+
+
+def verdicts(text: str) -> list[tuple[str, str | None]]:
+    return [(c.verdict, c.outcome.code) for c in check_text(text).claims]
+
+
+def test_multi_column_align_rows_are_separate_claims() -> None:
+    # E_10 = 1 - 264q + ..., E_4 = 1 + 240q + ..., E_6 = 1 - 504q + ... (MATH.md §9): both false.
+    text = "%@claim\n\\begin{align} E_{10} &= E_4 & E_6 &= E_{10} \\end{align}\n"
+    assert verdicts(text) == [("refuted", None), ("refuted", None)]
+
+
+def test_builtin_names_cannot_be_redefined() -> None:
+    report = check_text("%@define E_4 = E_6\n%@claim\n\\[ E_4 = E_6 \\]\n")
+    assert [d.code for d in report.diagnostics] == ["bad-define"]
+    assert [c.verdict for c in report.claims] == ["refuted"]
+
+
+def test_redefined_j_is_refused_so_j_of_2tau_is_read_correctly() -> None:
+    # j(2 tau) = q^-2 + ... differs from j = q^-1 + ... (MATH.md §1.4).
+    report = check_text("%@define j = \\frac{E_4^3}{\\Delta} - 744\n%@claim\n\\[ j(2\\tau) = j \\]\n")
+    assert [d.code for d in report.diagnostics] == ["bad-define"]
+    assert report.claims[0].verdict == "refuted"
+
+
+def test_define_with_a_rescaled_argument_is_refused() -> None:
+    report = check_text("%@define F(2\\tau) = E_4\n%@claim\n\\[ F = E_4 \\]\n")
+    assert [d.code for d in report.diagnostics] == ["bad-define"]
+    assert [(c.verdict, c.outcome.code) for c in report.claims] == [("error", "unknown-symbol")]
+
+
+def test_dots_between_printed_terms_is_an_error_not_a_verdict() -> None:
+    assert verdicts("%@claim\n\\[ E_4 = 1 + 240q + \\cdots + 6720q^3 + O(q^4) \\]\n") == [("error", "bad-expansion")]
+
+
+def test_truncation_at_q0_with_a_pole_is_decided() -> None:
+    # j = q^-1 + 744 + ... (MATH.md §1.4)
+    assert verdicts("%@claim\n\\[ j = q^{-1} + O(q^{0}) \\]\n") == [("proved", None)]
+    assert verdicts("%@claim\n\\[ j = 2q^{-1} + O(q^{0}) \\]\n") == [("refuted", None)]
+
+
+def test_huge_e2_depth_and_heavy_expansions_are_bounded() -> None:
+    assert verdicts("%@claim\n\\[ E_2(2\\tau)^{400} = E_2(2\\tau)^{400} \\]\n") == [("error", "too-large")]
+    assert verdicts("%@claim\n\\[ E_{5000} = E_{5000} + O(q^{49999}) \\]\n") == [("error", "budget")]
+
+
+def test_subscript_braces_do_not_change_a_defined_name() -> None:
+    assert verdicts("%@define H_{1} = E_4\n%@claim\n\\[ H_1 = E_4 \\]\n") == [("proved", None)]
