@@ -145,7 +145,7 @@ def check_document(doc: ScannedDocument, max_terms: int = DEFAULT_MAX_TERMS) -> 
         if isinstance(item, DefineTag):
             _define(item, elaborator, report)
         else:
-            _block(item, elaborator, prover, report, pending)
+            _block(item, elaborator, report, pending)
     for p in pending:
         prover.table.plan(min(prover.precision_needed(p.left, p.right), max_terms))
     for p in pending:
@@ -206,14 +206,15 @@ def _error(
     name: str | None = None,
     label: str | None = None,
     kind: str = "equality",
+    end: Location | None = None,
 ) -> ClaimResult:
-    return ClaimResult(loc, loc, name, label, source, Outcome("error", kind, message, code=code, hint=hint))
+    """A claim whose verdict is ``error`` (it cannot be read or has no meaning)."""
+    return ClaimResult(loc, end or loc, name, label, source, Outcome("error", kind, message, code=code, hint=hint))
 
 
 def _block(
     block: ClaimBlock,
     elaborator: Elaborator,
-    prover: Prover,
     report: Report,
     pending: list[_Pending],
 ) -> None:
@@ -262,7 +263,7 @@ def _block(
             start = left_node.span[0]
             if continuation and i == 0 and previous_side is not None:
                 start = offset + (len(text.text) - offset - len(stripped))
-            pending_claim = _claim(text, left_node, right_node, rel, start, row, claim_name, block, elaborator, prover)
+            pending_claim = _claim(text, left_node, right_node, rel, start, row, claim_name, block, elaborator)
             if isinstance(pending_claim, ClaimResult):
                 report.claims.append(pending_claim)
             else:
@@ -282,7 +283,6 @@ def _claim(
     name: str | None,
     block: ClaimBlock,
     elaborator: Elaborator,
-    prover: Prover,
 ) -> _Pending | ClaimResult:
     loc = text.location(start)
     end = text.location(right_node.span[1] - 1)
@@ -292,14 +292,8 @@ def _claim(
     for node in (left_node, right_node):
         side = elaborator.side(node, text.text)
         if isinstance(side, Problem):
-            return ClaimResult(
-                text.location(side.span[0]),
-                end,
-                name,
-                row.label,
-                source,
-                Outcome("error", kind, side.message, code=side.code, hint=side.hint),
-            )
+            at = text.location(side.span[0])
+            return _error(at, side.code, side.message, side.hint, source, name, row.label, kind, end)
         sides.append(side)
     left, right = sides
     if left.printed or right.printed:
@@ -307,14 +301,7 @@ def _claim(
     problem = _check_options(block.options, left, right)
     if problem is not None:
         code, message, hint = problem
-        return ClaimResult(
-            block.tag,
-            end,
-            name,
-            row.label,
-            source,
-            Outcome("error", kind, message, code=code, hint=hint),
-        )
+        return _error(block.tag, code, message, hint, source, name, row.label, kind, end)
     result = ClaimResult(loc, end, name, row.label, source, Outcome("error", kind, "not decided"))
     return _Pending(result, left, right, rel)
 

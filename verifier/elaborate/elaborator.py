@@ -97,9 +97,10 @@ class Elaborator:
                 )
             expr = self._sum_of(kept, text)
             printed = expr.typ.printed or dots or trunc is not None
+            deg = degree(expr)
             if dots and trunc is None:
-                trunc = _degree(expr) + 1
-            return ir.Side(expr, trunc, printed)
+                trunc = deg + 1
+            return ir.Side(expr, trunc, printed, deg)
         except ElaborationError as exc:
             return exc.problem
 
@@ -132,9 +133,9 @@ class Elaborator:
         for sign, node in terms:
             e = self.expr(node, text)
             if acc is not None:
-                acc = _add(acc, e, sign, text, node)
+                acc = _add(acc, e, sign, node)
             else:
-                acc = e if sign > 0 else _neg(e, text, node)
+                acc = e if sign > 0 else _neg(e)
         assert acc is not None
         return acc
 
@@ -153,14 +154,14 @@ class Elaborator:
         if isinstance(node, ast.Name):
             return self._name(node, src)
         if isinstance(node, ast.Neg):
-            return _neg(self.expr(node.operand, text), text, node)
+            return _neg(self.expr(node.operand, text))
         if isinstance(node, ast.BinOp):
             if node.op in "+-":
                 return self._sum_of(_summands(node), text)
             left = self.expr(node.left, text)
             right = self.expr(node.right, text)
             if node.op == "*":
-                return _mul(left, right, src)
+                return _mul(left, right, src, node)
             return _div(left, right, src, node)
         if isinstance(node, ast.Power):
             return _pow(self.expr(node.base, text), node.exponent, src, node)
@@ -209,12 +210,12 @@ class Elaborator:
                         node,
                     )
                 return self.definitions["j"]
-            e4 = _atom(AtomInfo("E4", Fraction(4), 0), scale, "E_4")
-            delta = _atom(AtomInfo("Delta", Fraction(12), 0), scale, "\\Delta")
+            e4 = _atom(AtomInfo("E4", Fraction(4), 0), scale, "E_4", node)
+            delta = _atom(AtomInfo("Delta", Fraction(12), 0), scale, "\\Delta", node)
             return _div(_pow(e4, 3, "E_4^3", node), delta, src, node)
         found = lookup(name)
         if isinstance(found, AtomInfo):
-            return _atom(found, scale, src)
+            return _atom(found, scale, src, node)
         if isinstance(found, Unknown):
             raise _err("unknown-symbol", found.message, found.hint, node)
         hint = "known forms: E_2, E_4, E_6, ..., \\Delta, j; or name a form with a define tag"
@@ -233,10 +234,8 @@ def is_builtin(name: str) -> bool:
     return name in ("q", "j") or lookup(name) is not None
 
 
-def _atom(info: AtomInfo, scale: int, src: str) -> ir.Atom:
-    if scale > MAX_LEVEL:
-        raise ElaborationError(Problem("too-large", f"level {scale} exceeds the limit {MAX_LEVEL}", "", (0, 0)))
-    return ir.Atom(ir.Typ(info.weight, info.depth, scale), src, info.key, scale)
+def _atom(info: AtomInfo, scale: int, src: str, node: ast.Node) -> ir.Atom:
+    return ir.Atom(_check_size(ir.Typ(info.weight, info.depth, scale), node), src, info.key, scale)
 
 
 def _summands(node: ast.Node) -> list[tuple[int, ast.Node]]:
@@ -269,39 +268,24 @@ def _lcm(a: int, b: int) -> int:
     return a * b // math.gcd(a, b)
 
 
-def _check_size(typ: ir.Typ, node: ast.Node | None) -> ir.Typ:
-    if typ.weight is not None and abs(typ.weight) > MAX_WEIGHT:
-        raise ElaborationError(
-            Problem(
-                "too-large",
-                f"weight {typ.weight} exceeds the limit {MAX_WEIGHT}",
-                "split the claim",
-                node.span if node else (0, 0),
-            )
-        )
-    if typ.depth > MAX_DEPTH:
-        raise ElaborationError(
-            Problem(
-                "too-large", f"E_2-depth {typ.depth} exceeds the limit {MAX_DEPTH}", "", node.span if node else (0, 0)
-            )
-        )
-    if typ.level > MAX_LEVEL:
-        raise ElaborationError(
-            Problem(
-                "too-large",
-                f"level {typ.level} exceeds the limit {MAX_LEVEL}",
-                "",
-                node.span if node else (0, 0),
-            )
-        )
+def _check_size(typ: ir.Typ, node: ast.Node) -> ir.Typ:
+    """Refuse expressions whose weight, E_2-depth or level would make the proof unbounded."""
+    limits = (
+        ("weight", abs(typ.weight) if typ.weight is not None else 0, MAX_WEIGHT),
+        ("E_2-depth", typ.depth, MAX_DEPTH),
+        ("level", typ.level, MAX_LEVEL),
+    )
+    for what, value, limit in limits:
+        if value > limit:
+            raise _err("too-large", f"{what} {value} exceeds the limit {limit}", "split the claim", node)
     return typ
 
 
-def _neg(e: ir.Expr, text: str, node: ast.Node) -> ir.Expr:
+def _neg(e: ir.Expr) -> ir.Expr:
     return ir.Product(e.typ, "-" + e.text, ir.Const(ir.Typ(Fraction(0)), "-1", Fraction(-1)), e)
 
 
-def _add(a: ir.Expr, b: ir.Expr, sign: int, text: str, node: ast.Node) -> ir.Expr:
+def _add(a: ir.Expr, b: ir.Expr, sign: int, node: ast.Node) -> ir.Expr:
     ta, tb = a.typ, b.typ
     if ta.printed or tb.printed:
         weight = None
@@ -335,7 +319,7 @@ def _short(text: str) -> str:
     return text if len(text) <= 40 else text[:37] + "..."
 
 
-def _mul(a: ir.Expr, b: ir.Expr, src: str) -> ir.Expr:
+def _mul(a: ir.Expr, b: ir.Expr, src: str, node: ast.Node) -> ir.Expr:
     ta, tb = a.typ, b.typ
     printed = ta.printed or tb.printed
     if printed or _is_zero(a) or _is_zero(b):
@@ -351,7 +335,7 @@ def _mul(a: ir.Expr, b: ir.Expr, src: str) -> ir.Expr:
         printed,
         ta.has_pole or tb.has_pole,
     )
-    return ir.Product(_check_size(typ, None), src, a, b)
+    return ir.Product(_check_size(typ, node), src, a, b)
 
 
 def _is_zero(e: ir.Expr) -> bool:
@@ -408,7 +392,7 @@ def _pow(base: ir.Expr, e: int, src: str, node: ast.Node) -> ir.Expr:
     return ir.Power(_check_size(typ, node), src, base, e)
 
 
-def _degree(expr: ir.Expr) -> int:
+def degree(expr: ir.Expr) -> int:
     """Highest power of q printed in ``expr`` (forms count as degree 0)."""
     if isinstance(expr, ir.QPower):
         return expr.exponent
@@ -416,14 +400,14 @@ def _degree(expr: ir.Expr) -> int:
         return 0
     if isinstance(expr, ir.Sum):
         assert expr.left is not None and expr.right is not None
-        return max(_degree(expr.left), _degree(expr.right))
+        return max(degree(expr.left), degree(expr.right))
     if isinstance(expr, ir.Product):
         assert expr.left is not None and expr.right is not None
-        return _degree(expr.left) + _degree(expr.right)
+        return degree(expr.left) + degree(expr.right)
     if isinstance(expr, ir.Quotient):
         assert expr.left is not None
-        return _degree(expr.left)
+        return degree(expr.left)
     if isinstance(expr, ir.Power):
         assert expr.base is not None
-        return _degree(expr.base) * max(expr.exponent, 0)
+        return degree(expr.base) * max(expr.exponent, 0)
     return 0

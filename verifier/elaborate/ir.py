@@ -103,6 +103,7 @@ class Side:
     expr: Expr
     truncation: int | None
     printed: bool
+    degree: int = 0  # highest power of q printed (forms count as degree 0)
 
 
 def atoms_of(expr: Expr) -> list[Atom]:

@@ -89,7 +89,9 @@ def laurent(expr: ir.Expr, prec: int, table: AtomTable) -> QSeries:
             dp = 2 * dp + 1
             den = laurent(expr.right, dp, table)
         # Dividing by a series of valuation v loses v terms: ask for them up front.
-        den = laurent(expr.right, prec + 2 * max(den.valuation, 0), table)
+        need = prec + 2 * max(den.valuation, 0)
+        if den.prec < need:
+            den = laurent(expr.right, need, table)
         num = laurent(expr.left, prec + max(den.valuation, 0), table)
         return num / den
     if isinstance(expr, ir.Power):

@@ -317,9 +317,7 @@ def _prefix_range(left: ir.Side, right: ir.Side) -> tuple[int, int, bool]:
     if truncs:
         return 0, min(truncs), True
     # No truncation anywhere: compare well past the printed degree and any Sturm bound.
-    from verifier.elaborate.elaborator import _degree
-
-    deg = max(_degree(left.expr), _degree(right.expr))
+    deg = max(left.degree, right.degree)
     w = claim_weight(left, right) or Fraction(0)
     b = groups.sturm_bound(w + left.expr.typ.den_weight + right.expr.typ.den_weight, claim_level(left, right))
     return 0, max(deg + 2, b + 2, 10), False

@@ -13,7 +13,7 @@ import re
 from dataclasses import dataclass
 
 from verifier.scan import macros as macro_mod
-from verifier.scan.text import MappedText, matching_brace
+from verifier.scan.text import MappedText, matching_brace, tokens_with_depth
 
 # Environments whose rows are separate claims; the others are one equation.
 ROW_ENVIRONMENTS = frozenset({"align", "align*", "gather", "gather*", "flalign", "flalign*"})
@@ -89,63 +89,29 @@ def _spaces(text: MappedText, a: int, b: int) -> MappedText:
 
 def _split_rows(content: MappedText) -> list[MappedText]:
     """Split at ``\\\\`` outside braces and nested environments."""
-    s = content.text
     rows: list[MappedText] = []
-    depth = 0
     env_depth = 0
     start = 0
-    i = 0
-    while i < len(s):
-        if s.startswith("\\begin", i):
+    for i, tok, depth in tokens_with_depth(content.text):
+        if tok == "\\begin":
             env_depth += 1
-            i += 6
-            continue
-        if s.startswith("\\end", i):
+        elif tok == "\\end":
             env_depth -= 1
-            i += 4
-            continue
-        if s.startswith("\\\\", i) and depth == 0 and env_depth <= 0:
+        elif tok == "\\\\" and depth == 0 and env_depth <= 0 and i >= start:
             rows.append(content.slice(start, i))
-            m = _ROW_BREAK.match(s, i)
-            i = m.end() if m else i + 2
-            start = i
-            continue
-        ch = s[i]
-        if ch == "\\":
-            i += 2
-            continue
-        if ch == "{":
-            depth += 1
-        elif ch == "}":
-            depth -= 1
-        i += 1
+            m = _ROW_BREAK.match(content.text, i)
+            start = m.end() if m else i + 2
     rows.append(content.slice(start))
     return rows
 
 
 def _split_columns(row: MappedText) -> list[MappedText]:
-    s = row.text
-    cuts: list[int] = []
-    depth = 0
-    count = 0
-    i = 0
-    while i < len(s):
-        ch = s[i]
-        if ch == "\\":
-            i += 2
-            continue
-        if ch == "{":
-            depth += 1
-        elif ch == "}":
-            depth -= 1
-        elif ch == "&" and depth == 0:
-            count += 1
-            if count % 2 == 0:
-                cuts.append(i)
-        i += 1
+    """Split an align row at every second ``&``: columns come in pairs ``lhs &= rhs``."""
+    ampersands = [i for i, tok, depth in tokens_with_depth(row.text) if tok == "&" and depth == 0]
+    cuts = ampersands[1::2]
     if not cuts:
         return [row]
-    bounds = [0, *cuts, len(s)]
+    bounds = [0, *cuts, len(row.text)]
     return [row.slice(a + (1 if k else 0), b) for k, (a, b) in enumerate(itertools.pairwise(bounds))]
 
 

@@ -11,7 +11,7 @@ from __future__ import annotations
 
 import bisect
 import re
-from collections.abc import Callable
+from collections.abc import Callable, Iterator
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -156,20 +156,38 @@ def blank_comments(text: str) -> str:
     return "".join(out)
 
 
-def matching_brace(text: str, open_index: int) -> int:
-    """Index of the ``}`` closing the ``{`` at ``open_index`` (-1 if none)."""
+_CONTROL = re.compile(r"\\([A-Za-z]+|.)", re.S)
+
+
+def tokens_with_depth(text: str, start: int = 0) -> Iterator[tuple[int, str, int]]:
+    """Yield ``(index, token, depth)`` for each character or control sequence.
+
+    ``depth`` is the brace depth outside the token: an opening brace is reported at the
+    depth it opens from, a closing brace at the depth it returns to.  Control sequences
+    (``\\begin``, ``\\\\``, ``\\{``) are single tokens, so escaped braces do not count.
+    """
     depth = 0
-    i = open_index
-    while i < len(text):
+    i = start
+    n = len(text)
+    while i < n:
         ch = text[i]
         if ch == "\\":
-            i += 2
+            m = _CONTROL.match(text, i)
+            tok = m.group(0) if m else ch
+            yield i, tok, depth
+            i += len(tok)
             continue
+        if ch == "}":
+            depth -= 1
+        yield i, ch, depth
         if ch == "{":
             depth += 1
-        elif ch == "}":
-            depth -= 1
-            if depth == 0:
-                return i
         i += 1
+
+
+def matching_brace(text: str, open_index: int) -> int:
+    """Index of the ``}`` closing the ``{`` at ``open_index`` (-1 if none)."""
+    for i, tok, depth in tokens_with_depth(text, open_index):
+        if tok == "}" and depth == 0:
+            return i
     return -1
