@@ -55,3 +55,27 @@ def test_huge_e2_depth_and_heavy_expansions_are_bounded() -> None:
 
 def test_subscript_braces_do_not_change_a_defined_name() -> None:
     assert verdicts("%@define H_{1} = E_4\n%@claim\n\\[ H_1 = E_4 \\]\n") == [("proved", None)]
+
+
+def test_expansion_broken_across_align_rows_is_one_claim() -> None:
+    # 1728 Delta = 1728q - 41472q^2 + 435456q^3 + ... with tau(2) = -24, tau(3) = 252
+    # (Ramanujan's table, MATH.md §9).
+    text = (
+        "%@claim\n\\begin{align} E_4^3 - E_6^2 &= 1728 q - 41472 q^2 \\\\\n"
+        "&\\qquad{} + 435456 q^3 + \\cdots \\end{align}\n"
+    )
+    assert verdicts(text) == [("proved", None)]
+    wrong = text.replace("435456", "435465")
+    assert verdicts(wrong) == [("refuted", None)]
+
+
+def test_line_break_in_a_plain_display_separates_claims() -> None:
+    # Glued, this would read E_4 = E_4 E_4 = E_8/E_4; as two rows both hold (E_8 = E_4^2).
+    text = "%@claim\n\\[ E_4 = E_4 \\\\ E_4 = E_8/E_4 \\]\n"
+    assert verdicts(text) == [("proved", None), ("proved", None)]
+
+
+def test_markdown_tags_inside_code_fences_are_examples() -> None:
+    text = "```latex\n<!-- @claim -->\n$$ E_4 = E_6 $$\n```\n\n<!-- @claim -->\n$$ E_4^2 = E_8 $$\n"
+    report = check_text(text, "note.md")
+    assert [(c.location.line, c.verdict) for c in report.claims] == [(7, "proved")]

@@ -286,7 +286,9 @@ def _claim(
 ) -> _Pending | ClaimResult:
     loc = text.location(start)
     end = text.location(right_node.span[1] - 1)
-    source = " ".join(text.source_slice(left_node.span[0], right_node.span[1]).replace("&", " ").split())
+    source = " ".join(
+        text.source_slice(left_node.span[0], right_node.span[1]).replace("&", " ").replace("\\\\", " ").split()
+    )
     kind = "equality" if rel == "=" else "inequality"
     sides: list[ir.Side] = []
     for node in (left_node, right_node):

@@ -15,9 +15,7 @@ from dataclasses import dataclass
 from verifier.scan import macros as macro_mod
 from verifier.scan.text import MappedText, matching_brace, tokens_with_depth
 
-# Environments whose rows are separate claims; the others are one equation.
-ROW_ENVIRONMENTS = frozenset({"align", "align*", "gather", "gather*", "flalign", "flalign*"})
-INNER_ROW_ENVIRONMENTS = ("aligned", "gathered", "split")
+# Inner environments that hold one equation broken over lines (like multline).
 INNER_JOIN_ENVIRONMENTS = ("multlined",)
 
 _LABEL = re.compile(r"\\label\s*\{([^{}]*)\}")
@@ -33,6 +31,8 @@ _HSPACE = re.compile(r"\\[hv]space\*?\s*\{[^{}]*\}")
 _INNER_ENV = re.compile(r"\\(begin|end)\s*\{(aligned|gathered|split|multlined)\}(\[[a-z]\])?")
 _MATHCAL_O = re.compile(r"\\(mathcal|mathrm|mathit)\s*(\{\s*O\s*\}|O)")
 _FRAC_DIGITS = re.compile(r"\\([dt]?frac)\s*(\d)\s*(\d)")
+_EMPTY_GROUP = re.compile(r"\{\s*\}")
+_RELATION = re.compile(r"=|\\neq?(?![A-Za-z])")
 _TRAILING = re.compile(r"(?<![.])[.,;]\s*$")
 _NOT_EQUAL = re.compile(r"\\not\s*=")
 _ROW_BREAK = re.compile(r"\\\\\*?(\s*\[[^\]]*\])?")
@@ -51,16 +51,20 @@ class Row:
 def rows_of(content: MappedText, env: str) -> list[MappedText]:
     """Split a display's content into rows (before normalisation)."""
     content = _drop_intertext(content)
-    has_inner_rows = any(f"\\begin{{{e}}}" in content.text.replace(" ", "") for e in INNER_ROW_ENVIRONMENTS)
-    if env in ROW_ENVIRONMENTS or has_inner_rows:
-        content = content.blank(_INNER_ENV)
-        rows = [r for r in _split_rows(content) if r.text.strip()]
-        if env.startswith(("align", "flalign")):
-            # Columns come in pairs 'lhs &= rhs': every second '&' starts another equation.
-            rows = [c for r in rows for c in _split_columns(r) if c.text.strip()]
-        return rows
+    squashed = content.text.replace(" ", "")
+    paired = env.startswith(("align", "flalign")) or any(f"\\begin{{{e}}}" in squashed for e in ("aligned", "split"))
+    joined = env.startswith("multline") or any(f"\\begin{{{e}}}" in squashed for e in INNER_JOIN_ENVIRONMENTS)
     content = content.blank(_INNER_ENV)
-    return [content.blank(_ROW_BREAK)]
+    if joined:
+        # multline: one equation broken over lines.
+        return [content.blank(_ROW_BREAK)]
+    # Everywhere else a line break separates claims (in a plain display too, so that
+    # 'A = B \\ C = D' never reads as the chain A = BC = D).
+    rows = [r for r in _split_rows(content) if r.text.strip()]
+    if paired:
+        # Columns come in pairs 'lhs &= rhs': every second '&' starts another equation.
+        rows = [c for r in rows for c in _split_columns(r) if c.text.strip()]
+    return rows
 
 
 def _drop_intertext(content: MappedText) -> MappedText:
@@ -124,7 +128,7 @@ def normalise_row(row: MappedText, macros: dict[str, macro_mod.Macro]) -> Row:
     text = macro_mod.expand(row, macros)
     label_match = _LABEL.search(text.text)
     label = label_match.group(1).strip() if label_match else None
-    text = text.blank(_LABEL).blank(_TAG).blank(_HSPACE).blank(_DROP)
+    text = text.blank(_LABEL).blank(_TAG).blank(_HSPACE).blank(_DROP).blank(_EMPTY_GROUP)
     text = text.sub(_SIZED, _sized_delimiter)
     text = text.sub(_MATHCAL_O, lambda m: "O")
     text = text.sub(_FRAC_DIGITS, lambda m: f"\\{m.group(1)}{{{m.group(2)}}}{{{m.group(3)}}}")
@@ -138,3 +142,23 @@ def _sized_delimiter(m: re.Match[str]) -> str:
     if delim in (".", ""):
         delim = " "
     return delim + " " * (len(m.group(0)) - 1)
+
+
+def join_continued_rows(rows: list[Row]) -> list[Row]:
+    """Merge a row that only continues the previous one (``&\\quad + 435456q^3 + \\cdots``).
+
+    A row with no relation of its own that starts with ``+`` or ``-`` is the rest of the
+    expression above it, broken over lines as authors do in align and split.
+    """
+    out: list[Row] = []
+    for row in rows:
+        body = row.text.text.lstrip()
+        if out and body[:1] in "+-" and body and not _RELATION.search(body):
+            prev = out[-1]
+            text = MappedText.concat(
+                [prev.text, MappedText(" ", [row.text.origin(0)], row.text.source), row.text], row.text.source
+            )
+            out[-1] = Row(text, prev.label or row.label, f"{prev.source_text} {row.source_text}")
+        else:
+            out.append(row)
+    return out

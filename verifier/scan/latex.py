@@ -14,7 +14,7 @@ from pathlib import Path
 from verifier.diagnostics import Diagnostic
 from verifier.location import Location
 from verifier.scan import macros as macro_mod
-from verifier.scan.display import normalise_row, rows_of
+from verifier.scan.display import join_continued_rows, normalise_row, rows_of
 from verifier.scan.document import (
     MAX_FILE_BYTES,
     MAX_FILES,
@@ -200,6 +200,7 @@ class _Reader:
                         "check the definition of the macro",
                     )
                 )
+        block.rows = join_continued_rows(block.rows)
 
     def _problem(self, code: str, at: Location | None, message: str, hint: str) -> None:
         where = at or Location(str(self.root), 1, 1)

@@ -13,7 +13,7 @@ from pathlib import Path
 from verifier.diagnostics import Diagnostic
 from verifier.location import Location
 from verifier.scan import macros as macro_mod
-from verifier.scan.display import normalise_row, rows_of
+from verifier.scan.display import join_continued_rows, normalise_row, rows_of
 from verifier.scan.document import MAX_FILE_BYTES, ClaimBlock, DefineTag, ScannedDocument
 from verifier.scan.options import parse_options
 from verifier.scan.text import MappedText, SourceFile
@@ -26,7 +26,11 @@ def scan_markdown_source(source: SourceFile) -> ScannedDocument:
     """Scan one Markdown source."""
     doc = ScannedDocument(files=[source.display])
     text = source.text
-    events: list[tuple[int, object]] = [(m.start(), m) for m in _TAG.finditer(text)]
+    fenced = _fenced_ranges(text)
+    # A tag shown inside a fenced code block is an example, not a claim.
+    events: list[tuple[int, object]] = [
+        (m.start(), m) for m in _TAG.finditer(text) if not any(a <= m.start() < b for a, b in fenced)
+    ]
     events.extend(macro_mod.find_definitions(text))
     events.sort(key=lambda e: e[0])
     macros: dict[str, macro_mod.Macro] = {}
@@ -103,6 +107,30 @@ def _tag(source: SourceFile, m: re.Match[str], macros: dict[str, macro_mod.Macro
             block.rows.append(normalise_row(row, macros))
         except macro_mod.MacroError as exc:
             block.problems.append(Diagnostic("macro-expansion", "error", _loc(source, exc.origin), str(exc), ""))
+    block.rows = join_continued_rows(block.rows)
+
+
+_FENCE_LINE = re.compile(r"^[ \t]{0,3}(`{3,}|~{3,})[^\n]*$", re.M)
+
+
+def _fenced_ranges(text: str) -> list[tuple[int, int]]:
+    """Offsets ``[start, end)`` of fenced code blocks (an unclosed fence runs to the end)."""
+    ranges: list[tuple[int, int]] = []
+    opener: re.Match[str] | None = None
+    for m in _FENCE_LINE.finditer(text):
+        fence = m.group(1)
+        if opener is None:
+            opener = m
+        elif (
+            fence[0] == opener.group(1)[0]
+            and len(fence) >= len(opener.group(1))
+            and not m.group(0).strip()[len(fence) :]
+        ):
+            ranges.append((opener.start(), m.end()))
+            opener = None
+    if opener is not None:
+        ranges.append((opener.start(), len(text)))
+    return ranges
 
 
 def _loc(source: SourceFile, offset: int) -> Location:
