@@ -139,7 +139,8 @@ class _Reader:
     def _tag(self, source: SourceFile, bare: str, m: re.Match[str], tag_offsets: list[int]) -> None:
         loc = _loc(source, m.start("kind") - 2)
         rest_start = m.start("rest")
-        rest = m.group("rest")
+        # A further '%' on the tag line starts the author's own remark.
+        rest = re.split(r"(?<!\\)%", m.group("rest"), maxsplit=1)[0]
         if m.group("kind") == "define":
             text = MappedText(rest, list(range(rest_start, rest_start + len(rest))), source)
             define = DefineTag(loc, None)
