@@ -14,7 +14,6 @@ import re
 from pathlib import Path
 
 import pytest
-
 from verifier import check_path
 
 MANUSCRIPTS = sorted((Path(__file__).parent / "data" / "manuscripts").glob("*.tex"))
