@@ -8,6 +8,7 @@ from __future__ import annotations
 
 import time
 from dataclasses import dataclass, field
+from fractions import Fraction
 from pathlib import Path
 from typing import Any
 
@@ -15,8 +16,12 @@ from verifier import __version__
 from verifier.diagnostics import Diagnostic
 from verifier.elaborate import ir
 from verifier.elaborate.elaborator import Elaborator, Problem
+from verifier.elaborate.rescale import rescale_factor, rescale_side
+from verifier.forms import registry
+from verifier.forms.characters import parse_character
+from verifier.forms.registry import NotModular
 from verifier.location import Location
-from verifier.options import parse_group, parse_weight
+from verifier.options import parse_group, parse_nome, parse_weight
 from verifier.parse import ast
 from verifier.parse.grammar import ParseFailure, parse_claim, parse_definition
 from verifier.prove.evaluate import AtomTable
@@ -133,6 +138,8 @@ class _Pending:
     left: ir.Side
     right: ir.Side
     rel: str
+    unit: Fraction = Fraction(1)  # the author's exponent is the internal one divided by this
+    character: str | None = None  # the tag's character= option
 
 
 def check_document(doc: ScannedDocument, max_terms: int = DEFAULT_MAX_TERMS) -> Report:
@@ -150,7 +157,7 @@ def check_document(doc: ScannedDocument, max_terms: int = DEFAULT_MAX_TERMS) -> 
         prover.table.plan(min(prover.precision_needed(p.left, p.right), max_terms))
     for p in pending:
         start = time.perf_counter()
-        p.result.outcome = prover.decide(p.left, p.right, p.rel)
+        p.result.outcome = _check_character(prover.decide(p.left, p.right, p.rel, p.unit), p.character)
         p.result.seconds = time.perf_counter() - start
     return report
 
@@ -290,25 +297,47 @@ def _claim(
         text.source_slice(left_node.span[0], right_node.span[1]).replace("&", " ").replace("\\\\", " ").split()
     )
     kind = "equality" if rel == "=" else "inequality"
+    nome = parse_nome(block.options.get("nome", ""))
+    if nome is None:
+        return _error(
+            block.tag,
+            "bad-option",
+            f"cannot read nome={block.options['nome']}",
+            "write nome={e^{\\pi i \\tau}} or nome={e^{2\\pi i \\tau}}",
+            source,
+            name,
+            row.label,
+            kind,
+            end,
+        )
+    elaborator.nome = nome
     sides: list[ir.Side] = []
-    for node in (left_node, right_node):
-        side = elaborator.side(node, text.text)
-        if isinstance(side, Problem):
-            at = text.location(side.span[0])
-            return _error(at, side.code, side.message, side.hint, source, name, row.label, kind, end)
-        sides.append(side)
-    left, right = sides
+    try:
+        for node in (left_node, right_node):
+            side = elaborator.side(node, text.text)
+            if isinstance(side, Problem):
+                at = text.location(side.span[0])
+                return _error(at, side.code, side.message, side.hint, source, name, row.label, kind, end)
+            sides.append(side)
+    finally:
+        elaborator.nome = Fraction(1)
+    # q -> q^T makes every exponent integral (eta offsets, q^{1/24}, the nome); MATH.md §4.1.
+    t = rescale_factor(*sides)
+    left, right = (rescale_side(s, t) for s in sides)
     if left.printed or right.printed:
         kind = "prefix"
-    problem = _check_options(block.options, left, right)
+    try:
+        problem = _check_options(block.options, left, right, t)
+    except NotModular as exc:
+        problem = ("not-modular", f"not modular: {exc}", "")
     if problem is not None:
         code, message, hint = problem
         return _error(block.tag, code, message, hint, source, name, row.label, kind, end)
     result = ClaimResult(loc, end, name, row.label, source, Outcome("error", kind, "not decided"))
-    return _Pending(result, left, right, rel)
+    return _Pending(result, left, right, rel, Fraction(t) * nome, block.options.get("character"))
 
 
-def _check_options(options: dict[str, str], left: ir.Side, right: ir.Side) -> tuple[str, str, str] | None:
+def _check_options(options: dict[str, str], left: ir.Side, right: ir.Side, t: int) -> tuple[str, str, str] | None:
     if "weight" in options:
         stated = parse_weight(options["weight"])
         if stated is None:
@@ -325,7 +354,10 @@ def _check_options(options: dict[str, str], left: ir.Side, right: ir.Side) -> tu
                     f"the tag states weight {stated}, but the {which} side ({_short(side.expr.text)}) has weight {w}",
                     "correct the tag or the claim",
                 )
-    if "group" in options:
+    if "character" in options and parse_character(options["character"]) is None:
+        return ("bad-option", f"cannot read character={options['character']}", "write \\chi_{-4} or trivial")
+    if "group" in options and t == 1:
+        # (A rescaled claim lives at T times the author's level; its group is not compared.)
         group = parse_group(options["group"])
         if group is None:
             return (
@@ -335,14 +367,37 @@ def _check_options(options: dict[str, str], left: ir.Side, right: ir.Side) -> tu
             )
         level = claim_level(left, right)
         if group[1] % level:
-            atoms = [a for s in (left, right) for a in ir.atoms_of(s.expr) if group[1] % a.typ.level]
-            culprit = f" ({atoms[0].text} needs level {atoms[0].typ.level})" if atoms else ""
+            needs = [
+                (a.text, n)
+                for s in (left, right)
+                for a in ir.atoms_of(s.expr)
+                if group[1] % (n := registry.level(a.key, int(a.scale), a.params))
+            ]
+            culprit = f" ({needs[0][0]} needs level {needs[0][1]})" if needs else ""
             return (
                 "group-mismatch",
                 f"the tag states level {group[1]}, but the claim needs level {level}{culprit}",
                 "state a group the forms live on",
             )
     return None
+
+
+def _check_character(outcome: Outcome, stated: str | None) -> Outcome:
+    """A decided claim whose tag states another character than the one found is an error."""
+    if stated is None or outcome.space is None or outcome.verdict == "error":
+        return outcome
+    chi = parse_character(stated)
+    found = outcome.space.get("character")
+    if chi is not None and found != chi.name:
+        return Outcome(
+            "error",
+            outcome.kind,
+            f"the tag states character {chi.name}, but the claim's forms have character {found}",
+            outcome.space,
+            code="character-mismatch",
+            hint="correct the tag or the claim",
+        )
+    return outcome
 
 
 def _short(text: str) -> str:

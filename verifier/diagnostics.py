@@ -57,8 +57,13 @@ CODES: dict[str, tuple[str, str]] = {
         "elaborate",
         "The group stated in the tag is not one the claim's forms live on.",
     ),
+    "character-mismatch": ("prove", "The character stated in the tag differs from the character of the claim's forms."),
     "bad-group": ("elaborate", "The group= option cannot be read."),
     "unsupported": ("elaborate", "The claim uses a construction this version does not prove."),
+    "not-modular": (
+        "prove",
+        "A form in the claim is modular for no Gamma_0(N); the message says which condition fails.",
+    ),
     "too-large": (
         "elaborate",
         "The claim exceeds a size limit (exponent, weight, coefficient budget).",

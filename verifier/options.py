@@ -33,3 +33,20 @@ def parse_group(value: str) -> tuple[str, int] | None:
     if v in ("\\Gamma(1)", "Gamma(1)"):
         return ("Gamma0", 1)
     return None
+
+
+def parse_nome(value: str) -> Fraction | None:
+    """``e^{2\\pi i\\tau}`` (the default, also when empty) -> 1; ``e^{\\pi i\\tau}`` -> 1/2.
+
+    The result is the exponent of our q = e^{2 pi i tau} that the claim's q stands for.
+    """
+    v = re.sub(r"\\[,;:! ]|\\mathrm|\\operatorname|\\exp|[{}()\s]", "", value)
+    if not v:
+        return Fraction(1)
+    v = v.replace("e^", "").replace("\\pi", "pi").replace("\\tau", "tau")
+    letters = "".join(sorted(v.replace("pi", "P").replace("tau", "T")))
+    if sorted(letters) == sorted("2iPT"):
+        return Fraction(1)
+    if sorted(letters) == sorted("iPT"):
+        return Fraction(1, 2)
+    return None

@@ -18,9 +18,10 @@ import math
 import re
 from dataclasses import dataclass
 from fractions import Fraction
+from typing import Any
 
 from verifier.elaborate import ir
-from verifier.forms.registry import AtomInfo, Unknown, lookup
+from verifier.forms.registry import AtomInfo, Unknown, eta_params, lookup
 from verifier.parse import ast
 
 MAX_EXPONENT = 10_000
@@ -56,13 +57,17 @@ class Elaborator:
 
     def __init__(self, definitions: dict[str, ir.Expr] | None = None) -> None:
         self.definitions: dict[str, ir.Expr] = dict(definitions or {})
+        self.matrices: dict[str, Any] = {}  # Gram matrices from define tags, by name
+        # The nome of the claim being elaborated: 1 for q = e^{2 pi i tau}, 1/2 for
+        # Jacobi's e^{pi i tau} (tag option nome=).
+        self.nome = Fraction(1)
 
     # -- public -------------------------------------------------------------------
     def side(self, node: ast.Node, text: str) -> ir.Side | Problem:
         """Elaborate one side of a claim; ``text`` is the claim text the spans index."""
         try:
             terms = _summands(node)
-            trunc: int | None = None
+            trunc: Fraction | None = None
             dots = False
             kept: list[tuple[int, ast.Node]] = []
             for k, (sign, term) in enumerate(terms):
@@ -84,7 +89,7 @@ class Elaborator:
                         )
                     dots = True
                 elif isinstance(term, ast.BigO):
-                    m = _big_o_exponent(term)
+                    m = _big_o_exponent(term) * self.nome
                     trunc = m if trunc is None else min(trunc, m)
                 else:
                     kept.append((sign, term))
@@ -97,10 +102,7 @@ class Elaborator:
                 )
             expr = self._sum_of(kept, text)
             printed = expr.typ.printed or dots or trunc is not None
-            deg = degree(expr)
-            if dots and trunc is None:
-                trunc = deg + 1
-            return ir.Side(expr, trunc, printed, deg)
+            return ir.Side(expr, printed, trunc, dots, degree(expr))
         except ElaborationError as exc:
             return exc.problem
 
@@ -117,7 +119,7 @@ class Elaborator:
         result = self.side(node, text)
         if isinstance(result, Problem):
             return result
-        if result.truncation is not None:
+        if result.truncation is not None or result.printed:
             return Problem(
                 "bad-define",
                 "a definition cannot be a truncated expansion",
@@ -176,21 +178,11 @@ class Elaborator:
 
     def _name(self, node: ast.Name, src: str) -> ir.Expr:
         name = normal_name(node.text)
-        scale = 1
-        if node.arg not in (None, "tau", "z", "q"):
-            digits = node.arg.removesuffix("tau") if node.arg else ""
-            if not digits.isdigit() or int(digits) < 1:
-                raise _err(
-                    "syntax",
-                    f"cannot read the argument of {name}",
-                    "write (\\tau) or (d\\tau)",
-                    node,
-                )
-            scale = int(digits)
+        scale = _scale_of(node)
         if name == "q":
             if node.arg is not None:
                 raise _err("syntax", "q takes no argument", "", node)
-            return ir.QPower(ir.Typ(None, printed=True), src, 1)
+            return ir.QPower(ir.Typ(None, printed=True), src, self.nome)
         if name in self.definitions:
             if scale != 1:
                 raise _err(
@@ -201,27 +193,39 @@ class Elaborator:
                 )
             return self.definitions[name]
         if name == "j":
-            if "j" in self.definitions:
-                if scale != 1:
-                    raise _err(
-                        "unsupported",
-                        f"j({scale}\\tau) of a redefined j is not supported yet",
-                        "define the rescaled form directly",
-                        node,
-                    )
-                return self.definitions["j"]
-            e4 = _atom(AtomInfo("E4", Fraction(4), 0), scale, "E_4", node)
-            delta = _atom(AtomInfo("Delta", Fraction(12), 0), scale, "\\Delta", node)
+            e4 = _atom(AtomInfo("E4", Fraction(4)), scale, "E_4", node)
+            delta = _atom(AtomInfo("Delta", Fraction(12)), scale, "\\Delta", node)
             return _div(_pow(e4, 3, "E_4^3", node), delta, src, node)
-        found = lookup(name)
+        found = lookup(name, self.nome, self.matrices)
         if isinstance(found, AtomInfo):
-            return _atom(found, scale, src, node)
+            if name == "\\eta" and node.arg is None:
+                raise _err("syntax", "write eta with its argument, eta(\\tau) or eta(d\\tau)", "", node)
+            atom = _atom(found, scale, src, node)
+            if found.factor != 1:
+                return ir.Product(atom.typ, src, ir.Const(ir.Typ(Fraction(0)), str(found.factor), found.factor), atom)
+            return atom
         if isinstance(found, Unknown):
             raise _err("unknown-symbol", found.message, found.hint, node)
-        hint = "known forms: E_2, E_4, E_6, ..., \\Delta, j; or name a form with a define tag"
+        if name in self.matrices:
+            raise _err("unknown-symbol", f"{name} is a Gram matrix, not a form", f"write \\Theta_{name}", node)
+        hint = (
+            "known forms: E_2, E_4, ..., \\Delta, j, \\eta(d\\tau), \\theta, \\theta_2, \\theta_3, \\theta_4, \\Theta_Q"
+        )
         if len(name) > 1 and name[1:2] == "_" and not name.endswith("}"):
             hint += f"; note that in LaTeX {name}2 reads as {name} followed by 2 (write {name[:2]}{{..}})"
         raise _err("unknown-symbol", f"unknown symbol {name}", hint, node)
+
+
+def _scale_of(node: ast.Name) -> Fraction:
+    """The d in f(d tau) (also f(tau/2)); 1 for (tau), (z), (q) or no argument."""
+    arg = node.arg
+    if arg in (None, "tau", "z", "q"):
+        return Fraction(1)
+    assert arg is not None
+    m = re.fullmatch(r"(\d*)tau(?:/(\d+))?", arg)
+    if not m or (m.group(1) and int(m.group(1)) == 0) or (m.group(2) and int(m.group(2)) == 0):
+        raise _err("syntax", f"cannot read the argument ({arg})", "write (\\tau), (d\\tau) or (\\tau/d)", node)
+    return Fraction(int(m.group(1) or 1), int(m.group(2) or 1))
 
 
 def normal_name(text: str) -> str:
@@ -234,8 +238,13 @@ def is_builtin(name: str) -> bool:
     return name in ("q", "j") or lookup(name) is not None
 
 
-def _atom(info: AtomInfo, scale: int, src: str, node: ast.Node) -> ir.Atom:
-    return ir.Atom(_check_size(ir.Typ(info.weight, info.depth, scale), node), src, info.key, scale)
+def _atom(info: AtomInfo, scale: Fraction, src: str, node: ast.Node) -> ir.Atom:
+    typ = _check_size(ir.Typ(info.weight, info.depth, max(scale.numerator, 1)), node)
+    if info.key == "eta":
+        # The scale is folded into the deltas: eta quotients are always at scale 1.
+        params = eta_params({d * scale: r for d, r in info.params})
+        return ir.Atom(typ, src, "eta", Fraction(1), params)
+    return ir.Atom(typ, src, info.key, scale, info.params)
 
 
 def _summands(node: ast.Node) -> list[tuple[int, ast.Node]]:
@@ -251,10 +260,10 @@ def _summands(node: ast.Node) -> list[tuple[int, ast.Node]]:
     return [(1, node)]
 
 
-def _big_o_exponent(node: ast.BigO) -> int:
+def _big_o_exponent(node: ast.BigO) -> Fraction:
     inner = node.inner
     if isinstance(inner, ast.Name) and inner.text == "q":
-        return 1
+        return Fraction(1)
     if isinstance(inner, ast.Power) and isinstance(inner.base, ast.Name) and inner.base.text == "q":
         return inner.exponent
     raise _err("bad-expansion", "O(...) must contain a power of q", "write O(q^{m})", node)
@@ -320,6 +329,9 @@ def _short(text: str) -> str:
 
 
 def _mul(a: ir.Expr, b: ir.Expr, src: str, node: ast.Node) -> ir.Expr:
+    ea, eb = _split_eta(a), _split_eta(b)
+    if ea is not None and eb is not None:
+        return _eta_expr(ea[0] * eb[0], ea[1] + eb[1], src, node)
     ta, tb = a.typ, b.typ
     printed = ta.printed or tb.printed
     if printed or _is_zero(a) or _is_zero(b):
@@ -343,6 +355,9 @@ def _is_zero(e: ir.Expr) -> bool:
 
 
 def _div(a: ir.Expr, b: ir.Expr, src: str, node: ast.Node) -> ir.Expr:
+    ea, eb = _split_eta(a), _split_eta(b)
+    if ea is not None and eb is not None and eb[0] != 0:
+        return _eta_expr(ea[0] / eb[0], ea[1] + tuple((d, -r) for d, r in eb[1]), src, node)
     ta, tb = a.typ, b.typ
     if _is_zero(b):
         raise _err("zero-division", "division by 0", "", node)
@@ -368,10 +383,21 @@ def _div(a: ir.Expr, b: ir.Expr, src: str, node: ast.Node) -> ir.Expr:
     return ir.Quotient(_check_size(typ, node), src, a, b)
 
 
-def _pow(base: ir.Expr, e: int, src: str, node: ast.Node) -> ir.Expr:
-    if abs(e) > MAX_EXPONENT:
-        raise _err("too-large", f"exponent {e} exceeds the limit {MAX_EXPONENT}", "", node)
+def _pow(base: ir.Expr, exponent: Fraction | int, src: str, node: ast.Node) -> ir.Expr:
+    if abs(Fraction(exponent)) > MAX_EXPONENT:
+        raise _err("too-large", f"exponent {exponent} exceeds the limit {MAX_EXPONENT}", "", node)
     tb = base.typ
+    if isinstance(base, ir.QPower):
+        return ir.QPower(tb, src, base.exponent * exponent)
+    if Fraction(exponent).denominator != 1:
+        raise _err("unsupported", "only q may have a fractional exponent", "write integral powers of forms", node)
+    e = int(exponent)
+    eta = _split_eta(base)
+    if eta is not None:
+        c, params = eta
+        if c == 0 and e < 0:
+            raise _err("zero-division", "0 to a negative power", "", node)
+        return _eta_expr(c**e, tuple((d, r * e) for d, r in params), src, node)
     if isinstance(base, ir.Const):
         if base.value == 0 and e < 0:
             raise _err("zero-division", "0 to a negative power", "", node)
@@ -379,8 +405,6 @@ def _pow(base: ir.Expr, e: int, src: str, node: ast.Node) -> ir.Expr:
             raise _err("too-large", "this constant is too large", "", node)
         value = base.value**e
         return ir.Const(ir.Typ(None if value == 0 else Fraction(0)), src, value)
-    if isinstance(base, ir.QPower):
-        return ir.QPower(tb, src, base.exponent * e)
     weight = None if tb.weight is None else tb.weight * e
     if e >= 0:
         typ = ir.Typ(weight, tb.depth * e, tb.level, tb.den_weight * e, tb.printed, tb.has_pole)
@@ -392,12 +416,43 @@ def _pow(base: ir.Expr, e: int, src: str, node: ast.Node) -> ir.Expr:
     return ir.Power(_check_size(typ, node), src, base, e)
 
 
-def degree(expr: ir.Expr) -> int:
+def _split_eta(e: ir.Expr) -> tuple[Fraction, tuple[tuple[Fraction, int], ...]] | None:
+    """``c * (eta quotient)`` as (c, params); None for anything else."""
+    if isinstance(e, ir.Atom) and e.key == "eta":
+        return Fraction(1), e.params
+    if (
+        isinstance(e, ir.Product)
+        and isinstance(e.left, ir.Const)
+        and isinstance(e.right, ir.Atom)
+        and e.right.key == "eta"
+    ):
+        return e.left.value, e.right.params
+    return None
+
+
+def _eta_expr(c: Fraction, params: tuple[tuple[Fraction, int], ...], src: str, node: ast.Node) -> ir.Expr:
+    """Products, quotients and powers of eta quotients are one eta quotient (no zeros on H)."""
+    combined: dict[Fraction, int] = {}
+    for d, r in params:
+        combined[d] = combined.get(d, 0) + r
+    canon = eta_params(combined)
+    if abs(sum((abs(r) for _, r in canon), 0)) > MAX_EXPONENT:
+        raise _err("too-large", f"eta exponents exceed the limit {MAX_EXPONENT}", "", node)
+    if not canon:
+        return ir.Const(ir.Typ(None if c == 0 else Fraction(0)), src, c)
+    weight = Fraction(sum(r for _, r in canon), 2)
+    atom = ir.Atom(_check_size(ir.Typ(weight), node), src, "eta", Fraction(1), canon)
+    if c == 1:
+        return atom
+    return ir.Product(atom.typ if c else ir.Typ(None), src, ir.Const(ir.Typ(Fraction(0)), str(c), c), atom)
+
+
+def degree(expr: ir.Expr) -> Fraction:
     """Highest power of q printed in ``expr`` (forms count as degree 0)."""
     if isinstance(expr, ir.QPower):
         return expr.exponent
     if isinstance(expr, ir.Const | ir.Atom):
-        return 0
+        return Fraction(0)
     if isinstance(expr, ir.Sum):
         assert expr.left is not None and expr.right is not None
         return max(degree(expr.left), degree(expr.right))
@@ -410,4 +465,4 @@ def degree(expr: ir.Expr) -> int:
     if isinstance(expr, ir.Power):
         assert expr.base is not None
         return degree(expr.base) * max(expr.exponent, 0)
-    return 0
+    return Fraction(0)

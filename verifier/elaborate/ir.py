@@ -6,8 +6,10 @@ Leaves are rational constants, the monomial ``q^n`` of a printed expansion, and 
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass, field
 from fractions import Fraction
+from typing import Any
 
 
 @dataclass(frozen=True)
@@ -46,17 +48,22 @@ class Const(Expr):
 
 @dataclass(frozen=True)
 class QPower(Expr):
-    """``q^n`` in a printed expansion."""
+    """``q^n`` in a printed expansion (n rational until the claim is rescaled)."""
 
-    exponent: int = 1
+    exponent: Fraction = Fraction(1)
 
 
 @dataclass(frozen=True)
 class Atom(Expr):
-    """A named form evaluated at ``scale * tau``: ``E2``, ``E4``, ..., ``Delta``."""
+    """A named form at ``scale * tau``: ``E2``, ``E4``, ..., ``Delta``, ``eta``, ``theta``.
+
+    ``params`` are the family's parameters (see :mod:`verifier.forms.registry`); for eta
+    quotients the scale is folded into the deltas and ``scale`` stays 1.
+    """
 
     key: str = ""
-    scale: int = 1
+    scale: Fraction = Fraction(1)
+    params: tuple[Any, ...] = ()
 
 
 @dataclass(frozen=True)
@@ -96,14 +103,25 @@ class Power(Expr):
 class Side:
     """One side of a claim: an expression and, for printed expansions, where it stops.
 
-    ``truncation`` is T when the side is claimed only up to ``O(q^T)`` (from ``O(q^T)``
-    or from ``\\cdots`` after the last printed power); None when the side is exact.
+    ``big_o`` is m for a side written ``... + O(q^m)``; ``dots`` says the side ends in
+    ``\\cdots`` (it then claims every coefficient up to its highest printed power,
+    ``degree``).  Exponents are in q = e^{2 pi i tau}; after the claim is rescaled
+    (:mod:`verifier.elaborate.rescale`) they are integers.
     """
 
     expr: Expr
-    truncation: int | None
     printed: bool
-    degree: int = 0  # highest power of q printed (forms count as degree 0)
+    big_o: Fraction | None = None
+    dots: bool = False
+    degree: Fraction = Fraction(0)
+
+    @property
+    def truncation(self) -> int | None:
+        """Exclusive bound of the claimed exponents (None: the side is exact)."""
+        bounds = [b for b in (self.big_o, self.degree + 1 if self.dots else None) if b is not None]
+        if not bounds:
+            return None
+        return math.ceil(min(bounds))
 
 
 def atoms_of(expr: Expr) -> list[Atom]:

@@ -8,6 +8,7 @@ column of the author's source.
 from __future__ import annotations
 
 from dataclasses import dataclass
+from fractions import Fraction
 
 Span = tuple[int, int]
 
@@ -63,10 +64,10 @@ class Neg(Node):
 
 @dataclass(frozen=True)
 class Power(Node):
-    """``base^exponent`` with an integer exponent."""
+    """``base^exponent``; the exponent is an integer except in ``q^{1/24}``."""
 
     base: Node
-    exponent: int
+    exponent: Fraction
 
 
 @dataclass(frozen=True)

@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import functools
 from dataclasses import dataclass
+from fractions import Fraction
 from pathlib import Path
 from typing import Any
 
@@ -40,6 +41,12 @@ def _parser() -> Any:
         propagate_positions=True,
         maybe_placeholders=False,
     )
+
+
+class _BadNumber(ValueError):
+    def __init__(self, message: str, offset: int) -> None:
+        super().__init__(message)
+        self.offset = offset
 
 
 @dataclass(frozen=True)
@@ -87,7 +94,14 @@ def _parse(text: str, start: str) -> ast.Node | ParseFailure:
             return _eof_failure(text, start)
         pos = exc.token.start_pos if exc.token.start_pos is not None else 0
         return ParseFailure("syntax", f"unexpected {exc.token.value!r}", _hint_for_token(exc), pos)
-    node = _ToAst(text).transform(tree)
+    from lark.exceptions import VisitError
+
+    try:
+        node = _ToAst(text).transform(tree)
+    except VisitError as exc:
+        if isinstance(exc.orig_exc, _BadNumber):
+            return ParseFailure("syntax", str(exc.orig_exc), "write a nonzero denominator", exc.orig_exc.offset)
+        raise
     assert isinstance(node, ast.Node)
     return node
 
@@ -235,14 +249,26 @@ def _make_transformer() -> Any:
                 base = ast.Name(base.span, base.text, _normal_arg(str(items[2])))
             return ast.Power(_span(meta), base, items[1])
 
-        def exp_digit(self, meta: Any, items: list[Any]) -> int:
-            return int(str(items[0]))
+        def exp_digit(self, meta: Any, items: list[Any]) -> Fraction:
+            return Fraction(int(str(items[0])))
 
-        def exp_braced(self, meta: Any, items: list[Any]) -> int:
-            return int(str(items[0]))
+        def exponent(self, meta: Any, items: list[Any]) -> Fraction:
+            return Fraction(items[0])
 
-        def exp_negative(self, meta: Any, items: list[Any]) -> int:
-            return -int(str(items[0]))
+        def num_int(self, meta: Any, items: list[Any]) -> Fraction:
+            return Fraction(int(str(items[0])))
+
+        def num_neg(self, meta: Any, items: list[Any]) -> Fraction:
+            return -Fraction(int(str(items[0])))
+
+        def num_frac(self, meta: Any, items: list[Any]) -> Fraction:
+            ints = [int(str(t)) for t in items if getattr(t, "type", "") == "INT"]
+            if ints[1] == 0:
+                raise _BadNumber("an exponent has denominator 0", meta.start_pos if meta and not meta.empty else 0)
+            return Fraction(ints[0], ints[1])
+
+        def num_negfrac(self, meta: Any, items: list[Any]) -> Fraction:
+            return -self.num_frac(meta, items)
 
         def integer(self, meta: Any, items: list[Any]) -> ast.Number:
             return ast.Number(_tok_span(items[0]), int(str(items[0])))

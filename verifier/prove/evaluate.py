@@ -4,31 +4,37 @@
   divided out, poles kept): what the author's two sides *are*, coefficient by
   coefficient.  Used for printed expansions and for the witness of a refutation.
 * :func:`graded_fraction` gives a side as numerator/denominator, each a polynomial in a
-  formal symbol E_2 whose coefficients are holomorphic modular forms, graded by weight:
-  ``{(w, j): f}`` stands for ``sum f * E_2^j`` with ``f`` in M_{w-2j}(Gamma_0(N)).
-  Nothing is divided, so every coefficient series is holomorphic at infinity, and
-  proofs apply the Sturm bound to each ``(w, j)`` piece (MATH.md §7.3).
+  formal symbol E_2 whose coefficients are modular forms, graded by weight and by
+  character: ``{(w, j, kernel): f}`` stands for ``sum f * E_2^j`` with ``f`` in
+  M_{w-2j}(Gamma_0(N), chi) where chi = (kernel / .) (a quadratic character; for
+  half-integral weight the character relative to the theta multiplier, MATH.md §3.6).
+  Nothing is divided: every piece is holomorphic on H (eta quotients have no zeros), and
+  proofs apply the Sturm or valence bound to each piece (MATH.md §3.2, §3.7, §7.3).
 
 Atom series are computed once per precision by an :class:`AtomTable` and reused.
 """
 
 from __future__ import annotations
 
+from collections.abc import Callable
 from fractions import Fraction
+from typing import Any
 
 from verifier.elaborate import ir
+from verifier.forms.characters import squarefree_kernel
 from verifier.forms.registry import build_series
 from verifier.series.qseries import QSeries
 
-Key = tuple[Fraction, int]  # (total weight, power of E_2)
+Key = tuple[Fraction, int, int]  # (total weight, power of E_2, character kernel)
 Graded = dict[Key, QSeries]
+CharacterOf = Callable[[ir.Atom], int]  # the kernel of an atom's character
 
 
 class AtomTable:
     """Exact series of atoms, each computed once at the largest precision asked for."""
 
     def __init__(self) -> None:
-        self._series: dict[str, QSeries] = {}
+        self._series: dict[tuple[str, tuple[Any, ...]], QSeries] = {}
         self._planned = 0
         self.computed = 0  # how many atom expansions were built (for tests and bench)
 
@@ -36,20 +42,24 @@ class AtomTable:
         """Announce a precision that will be needed, so the first build is large enough."""
         self._planned = max(self._planned, prec)
 
-    def base(self, key: str, prec: int) -> QSeries:
-        """The series of atom ``key`` at tau, to at least ``prec``."""
-        have = self._series.get(key)
+    def base(self, key: str, params: tuple[Any, ...], prec: int) -> QSeries:
+        """The series of an atom family member at scale 1, to at least ``prec``."""
+        have = self._series.get((key, params))
         if have is None or have.prec < prec:
-            have = build_series(key, max(prec, self._planned))
+            have = build_series(key, params, max(prec, self._planned))
             self.computed += 1
-            self._series[key] = have
+            self._series[(key, params)] = have
         return have.truncate(prec)
 
-    def atom(self, key: str, scale: int, prec: int) -> QSeries:
+    def atom(self, atom: ir.Atom, prec: int) -> QSeries:
+        """The series of ``atom`` (at its integral scale) to precision ``prec``."""
+        return self.scaled(atom.key, atom.params, int(atom.scale), prec)
+
+    def scaled(self, key: str, params: tuple[Any, ...], scale: int, prec: int) -> QSeries:
         """The series of ``key(scale * tau)`` to precision ``prec``."""
         if scale == 1:
-            return self.base(key, prec)
-        return self.base(key, -(-prec // scale)).inflate(scale).truncate(prec)
+            return self.base(key, params, prec)
+        return self.base(key, params, -(-prec // scale)).inflate(scale).truncate(prec)
 
 
 # -- plain Laurent series --------------------------------------------------------------
@@ -62,9 +72,11 @@ def laurent(expr: ir.Expr, prec: int, table: AtomTable) -> QSeries:
     if isinstance(expr, ir.Const):
         return QSeries.constant(expr.value, prec)
     if isinstance(expr, ir.QPower):
-        return QSeries.monomial(expr.exponent, max(prec, expr.exponent + 1))
+        assert expr.exponent.denominator == 1, "claims are rescaled to integral exponents before evaluation"
+        e = int(expr.exponent)
+        return QSeries.monomial(e, max(prec, e + 1))
     if isinstance(expr, ir.Atom):
-        return table.atom(expr.key, expr.scale, prec)
+        return table.atom(expr, prec)
     if isinstance(expr, ir.Sum):
         assert expr.left is not None and expr.right is not None
         a = laurent(expr.left, prec, table)
@@ -137,18 +149,27 @@ def graded_add(a: Graded, b: Graded, sign: int = 1) -> Graded:
 
 
 def graded_mul(a: Graded, b: Graded) -> Graded:
-    """``a * b`` (weights and E_2-powers add)."""
+    """``a * b``: weights and E_2-powers add, characters multiply.
+
+    Two half-integral weights multiply to an integral one, and the theta multipliers
+    combine to chi_{-4}^{lambda_1 + lambda_2 + 1} (MATH.md §3.6): the kernel gains -1
+    when the sum of the two weights is odd.
+    """
     out: Graded = {}
-    for (wa, ja), sa in a.items():
-        for (wb, jb), sb in b.items():
-            k = (wa + wb, ja + jb)
+    for (wa, ja, ka), sa in a.items():
+        for (wb, jb, kb), sb in b.items():
+            kernel = ka * kb
+            ca, cb = wa - 2 * ja, wb - 2 * jb
+            if ca.denominator == 2 and cb.denominator == 2 and (ca + cb) % 2:
+                kernel = -kernel
+            k = (wa + wb, ja + jb, squarefree_kernel(kernel))
             p = sa * sb
             out[k] = out[k] + p if k in out else p
     return out
 
 
 def _g_pow(a: Graded, e: int, prec: int) -> Graded:
-    result: Graded = {(Fraction(0), 0): QSeries.constant(1, prec)}
+    result: Graded = {(Fraction(0), 0, 1): QSeries.constant(1, prec)}
     base = a
     while e:
         if e & 1:
@@ -160,46 +181,46 @@ def _g_pow(a: Graded, e: int, prec: int) -> Graded:
 
 
 def _is_one(g: Graded) -> bool:
-    if len(g) != 1 or (Fraction(0), 0) not in g:
+    if len(g) != 1 or (Fraction(0), 0, 1) not in g:
         return False
-    s = g[(Fraction(0), 0)]
+    s = g[(Fraction(0), 0, 1)]
     return s.offset == 0 and s.poly.degree() == 0 and s.poly[0] == 1
 
 
 def _g_const(c: Fraction, prec: int) -> Graded:
-    return {} if c == 0 else {(Fraction(0), 0): QSeries.constant(c, prec)}
+    return {} if c == 0 else {(Fraction(0), 0, 1): QSeries.constant(c, prec)}
 
 
 Fraction2 = tuple[Graded, Graded]
 
 
-def graded_fraction(expr: ir.Expr, prec: int, table: AtomTable) -> Fraction2:
+def graded_fraction(expr: ir.Expr, prec: int, table: AtomTable, chars: CharacterOf) -> Fraction2:
     """``expr`` as (numerator, denominator) graded polynomials in E_2, to ``prec`` terms."""
     one = _g_const(Fraction(1), prec)
     if isinstance(expr, ir.Const):
         return _g_const(expr.value, prec), one
     if isinstance(expr, ir.Atom):
-        return _graded_atom(expr, prec, table), one
+        return _graded_atom(expr, prec, table, chars), one
     if isinstance(expr, ir.Sum):
         assert expr.left is not None and expr.right is not None
-        an, ad = graded_fraction(expr.left, prec, table)
-        bn, bd = graded_fraction(expr.right, prec, table)
+        an, ad = graded_fraction(expr.left, prec, table, chars)
+        bn, bd = graded_fraction(expr.right, prec, table, chars)
         if _is_one(ad) and _is_one(bd):
             return graded_add(an, bn, expr.sign), one
         return graded_add(graded_mul(an, bd), graded_mul(bn, ad), expr.sign), graded_mul(ad, bd)
     if isinstance(expr, ir.Product):
         assert expr.left is not None and expr.right is not None
-        an, ad = graded_fraction(expr.left, prec, table)
-        bn, bd = graded_fraction(expr.right, prec, table)
+        an, ad = graded_fraction(expr.left, prec, table, chars)
+        bn, bd = graded_fraction(expr.right, prec, table, chars)
         return graded_mul(an, bn), graded_mul(ad, bd)
     if isinstance(expr, ir.Quotient):
         assert expr.left is not None and expr.right is not None
-        an, ad = graded_fraction(expr.left, prec, table)
-        bn, bd = graded_fraction(expr.right, prec, table)
+        an, ad = graded_fraction(expr.left, prec, table, chars)
+        bn, bd = graded_fraction(expr.right, prec, table, chars)
         return graded_mul(an, bd), graded_mul(ad, bn)
     if isinstance(expr, ir.Power):
         assert expr.base is not None
-        n, d = graded_fraction(expr.base, prec, table)
+        n, d = graded_fraction(expr.base, prec, table, chars)
         e = expr.exponent
         if e < 0:
             n, d, e = d, n, -e
@@ -207,15 +228,15 @@ def graded_fraction(expr: ir.Expr, prec: int, table: AtomTable) -> Fraction2:
     raise TypeError(f"{type(expr).__name__} has no modular meaning")
 
 
-def _graded_atom(atom: ir.Atom, prec: int, table: AtomTable) -> Graded:
+def _graded_atom(atom: ir.Atom, prec: int, table: AtomTable, chars: CharacterOf) -> Graded:
     w = atom.typ.weight
     assert w is not None
     if atom.key != "E2":
-        return {(w, 0): table.atom(atom.key, atom.scale, prec)}
+        return {(w, 0, chars(atom)): table.atom(atom, prec)}
     if atom.scale == 1:
-        return {(w, 1): QSeries.constant(1, prec)}
+        return {(w, 1, 1): QSeries.constant(1, prec)}
     # E_2(d tau) = E_2(tau)/d + g_d with g_d = E_2(d tau) - E_2(tau)/d in M_2(Gamma_0(d))
     # (MATH.md §1.3, §7.2).
-    d = atom.scale
-    g = table.atom("E2", d, prec) - table.atom("E2", 1, prec).scale(Fraction(1, d))
-    return {(w, 1): QSeries.constant(Fraction(1, d), prec), (w, 0): g}
+    d = int(atom.scale)
+    g = table.scaled("E2", (), d, prec) - table.scaled("E2", (), 1, prec).scale(Fraction(1, d))
+    return {(w, 1, 1): QSeries.constant(Fraction(1, d), prec), (w, 0, 1): g}

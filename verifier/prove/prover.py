@@ -13,15 +13,19 @@ computing that range exactly.
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass, field
 from fractions import Fraction
 from typing import Any
 
 from verifier.elaborate import ir
-from verifier.prove import groups
+from verifier.forms import registry
+from verifier.forms.characters import QuadraticCharacter
+from verifier.prove import groups, orders
 from verifier.prove.evaluate import (
     AtomTable,
     BudgetExceeded,
+    CharacterOf,
     Graded,
     graded_add,
     graded_fraction,
@@ -62,11 +66,52 @@ def _wstr(w: Fraction | None) -> str:
 
 
 def claim_level(left: ir.Side, right: ir.Side) -> int:
-    """Least common level of both sides."""
-    a, b = left.expr.typ.level, right.expr.typ.level
-    from math import gcd
+    """The least common level of every atom of both sides (after rescaling).
 
-    return a * b // gcd(a, b)
+    Raises :class:`verifier.forms.registry.NotModular` for an atom modular on no Gamma_0(N).
+    A claim with a half-integral weight is on some Gamma_0(4N) (MATH.md §3.6).
+    """
+    level = 1
+    half = False
+    for side in (left, right):
+        for atom in ir.atoms_of(side.expr):
+            n = registry.level(atom.key, int(atom.scale), atom.params)
+            level = level * n // math.gcd(level, n)
+            half = half or (atom.typ.weight is not None and atom.typ.weight.denominator == 2)
+    if half and level % 4:
+        level *= 4 // math.gcd(level, 4)
+    return level
+
+
+@dataclass(frozen=True)
+class Setup:
+    """What a proof between forms needs: level, weight after clearing, cusp-order bounds."""
+
+    level: int
+    weight: Fraction
+    bounds: dict[int, Fraction]
+
+    @property
+    def has_poles(self) -> bool:
+        """Whether some cusp other than infinity may carry a pole."""
+        return any(v < 0 for d, v in self.bounds.items() if d != self.level)
+
+    def bound(self, weight: Fraction) -> int:
+        """Largest n to compare for a piece of this weight.
+
+        Holomorphic at every cusp: the Sturm bound floor(k m / 12) (MATH.md §3.2, §3.6).
+        Otherwise the valence bound floor(k m / 12 - sum_{s != inf} L_s) with L_s the
+        lower bounds of the orders, each cusp c/d counted phi(gcd(d, N/d)) times (§3.7).
+        """
+        m = groups.index_gamma0(self.level)
+        if not self.has_poles:
+            return groups.sturm_bound(weight, self.level)
+        total = Fraction(weight) * m / 12
+        for d, v in self.bounds.items():
+            if d != self.level:
+                g = math.gcd(d, self.level // d)
+                total -= v * sum(1 for a in range(1, g + 1) if math.gcd(a, g) == 1)
+        return math.floor(total)
 
 
 def claim_weight(left: ir.Side, right: ir.Side) -> Fraction | None:
@@ -77,14 +122,16 @@ def claim_weight(left: ir.Side, right: ir.Side) -> Fraction | None:
     return None
 
 
-def space_of(weight: Fraction | None, level: int, depth: int = 0) -> dict[str, Any]:
+def space_of(
+    weight: Fraction | None, level: int, depth: int = 0, character: str = "trivial", holomorphic: bool = True
+) -> dict[str, Any]:
     """The certificate's description of a space of forms."""
     space: dict[str, Any] = {
         "weight": _wstr(weight),
         "group": groups.group_name(level),
-        "character": "trivial",
+        "character": character,
     }
-    if weight is not None and weight.denominator == 1 and depth == 0:
+    if weight is not None and weight.denominator == 1 and depth == 0 and character == "trivial" and holomorphic:
         space["dimension"] = groups.dim_modular(int(weight), level)
     if depth:
         space["quasimodular_depth"] = depth
@@ -97,6 +144,7 @@ class Prover:
     def __init__(self, table: AtomTable | None = None, max_terms: int = DEFAULT_MAX_TERMS) -> None:
         self.table = table or AtomTable()
         self.max_terms = max_terms
+        self.unit = Fraction(1)
 
     # -- planning -------------------------------------------------------------------
     def precision_needed(self, left: ir.Side, right: ir.Side) -> int:
@@ -105,14 +153,32 @@ class Prover:
             need = _prefix_range(left, right)[1] + 2
             weight = _heaviest(left, right)
         else:
-            weight = _proof_weight(left, right)
-            need = groups.sturm_bound(weight, claim_level(left, right)) + 1
+            try:
+                setup = self.setup(left, right)
+            except registry.NotModular:
+                return 0
+            weight = setup.weight
+            need = setup.bound(weight) + 1
         # A claim over budget is refused before computing; it must not inflate the plan.
         return 0 if need > self.max_terms or need * max(weight, Fraction(12)) > MAX_WORK else need
 
     # -- deciding -------------------------------------------------------------------
-    def decide(self, left: ir.Side, right: ir.Side, rel: str) -> Outcome:
-        """Decide ``left rel right`` (``rel`` is ``'='`` or ``'!='``)."""
+    def _exponent(self, n: int) -> int | str:
+        """An internal exponent as the author wrote it (undoing rescaling and the nome)."""
+        e = Fraction(n) / self.unit
+        return int(e) if e.denominator == 1 else f"{e.numerator}/{e.denominator}"
+
+    def _exp(self, n: int) -> str:
+        e = self._exponent(n)
+        return str(e) if isinstance(e, int) and e >= 0 else f"{{{e}}}"
+
+    def decide(self, left: ir.Side, right: ir.Side, rel: str, unit: Fraction = Fraction(1)) -> Outcome:
+        """Decide ``left rel right`` (``rel`` is ``'='`` or ``'!='``).
+
+        ``unit`` converts internal exponents to the author's: the claim was rescaled by T
+        and its q is the nome q^(nome), so the author's exponent is n / (T * nome).
+        """
+        self.unit = unit
         try:
             if left.printed or right.printed:
                 return self._prefix(left, right, rel)
@@ -129,18 +195,39 @@ class Prover:
             )
         except ZeroDivisionError as exc:
             return Outcome("error", "equality", f"division by a zero series: {exc}", code="zero-division")
+        except registry.NotModular as exc:
+            kind = "prefix" if (left.printed or right.printed) else ("equality" if rel == "=" else "inequality")
+            return Outcome("error", kind, f"not modular: {exc}", code="not-modular")
+
+    def setup(self, left: ir.Side, right: ir.Side) -> Setup:
+        """Level, characters and cusp-order bounds of a claim between forms."""
+        level = claim_level(left, right)
+        bounds = orders.difference_bounds(left.expr, right.expr, level)
+        return Setup(level, _proof_weight(left, right), bounds)
 
     def _forms(self, left: ir.Side, right: ir.Side, rel: str) -> Outcome:
         kind = "equality" if rel == "=" else "inequality"
-        level = claim_level(left, right)
-        weight_p = _proof_weight(left, right)
-        prec = groups.sturm_bound(weight_p, level) + 1
-        if prec > self.max_terms or prec * max(weight_p, Fraction(12)) > MAX_WORK:
-            raise BudgetExceeded(prec)
-        nl, dl = graded_fraction(left.expr, prec, self.table)
-        nr, dr = graded_fraction(right.expr, prec, self.table)
+        setup = self.setup(left, right)
+        level = setup.level
+        weight_p = setup.weight
+        need = setup.bound(weight_p) + 1
+        if need > self.max_terms or need * max(weight_p, Fraction(12)) > MAX_WORK:
+            raise BudgetExceeded(need)
+        depth_typed = max(left.expr.typ.depth, right.expr.typ.depth)
+        if setup.has_poles and depth_typed:
+            return Outcome(
+                "unproven",
+                kind,
+                "the claim mixes E_2 with forms that have poles at cusps; no proof method is implemented for that",
+                code="unsupported",
+            )
+
+        def chars(atom: ir.Atom) -> int:
+            return int(registry.character(atom.key, int(atom.scale), atom.params, level).kernel)
+
+        nl, dl, nr, dr, p = self._cleared(left, right, need, chars)
         for den, side in ((dl, left), (dr, right)):
-            if _graded_zero(den, level) is None:
+            if not _graded_nonzero(den, setup):
                 return Outcome(
                     "error",
                     kind,
@@ -148,82 +235,126 @@ class Prover:
                     code="zero-division",
                     hint="check the denominator",
                 )
-        p = graded_add(graded_mul(nl, dr), graded_mul(nr, dl), -1)
         components: list[dict[str, Any]] = []
         differing: list[tuple[Fraction, int, int]] = []
         terms = 0
-        for (w, j), series in sorted(p.items(), key=lambda kv: (kv[0][0], -kv[0][1])):
+        for (w, j, kernel), series in sorted(p.items(), key=lambda kv: (kv[0][0], -kv[0][1], kv[0][2])):
             wt = w - 2 * j
-            assert wt >= 0, "clearing denominators leaves holomorphic pieces of weight >= 0"
-            b = groups.sturm_bound(wt, level)
+            b = setup.bound(wt)
             n = _first_nonzero(series, b + 1)
-            terms += b + 1
-            comp = {
+            start = min(0, series.valuation)
+            terms += b + 1 - start
+            chi = QuadraticCharacter(kernel)
+            comp: dict[str, Any] = {
                 "weight": _frac_str(wt),
                 "e2_power": j,
+                "character": chi.name,
                 "bound": b,
-                "dimension": groups.dim_modular(int(wt), level) if wt.denominator == 1 else None,
+                "dimension": groups.dim_modular(int(wt), level)
+                if wt.denominator == 1 and chi.is_trivial and not setup.has_poles
+                else None,
             }
+            if start < 0:
+                comp["from"] = start
             components.append(comp)
             if n is not None:
                 differing.append((wt, j, n))
         wl, wr = left.expr.typ.weight, right.expr.typ.weight
         # The E_2-depth actually present: a numerator piece that vanishes through its
-        # Sturm bound is zero, so E_2-parts that cancel (2E_2(2tau) - E_2) do not count.
-        depth = max((_nonzero_depth(g, level) for g in (nl, nr)), default=0)
+        # bound is zero, so E_2-parts that cancel (2E_2(2tau) - E_2) do not count.
+        depth = max((_nonzero_depth(g, setup) for g in (nl, nr)), default=0)
         weight = wl if wl is not None else wr
         cleared = left.expr.typ.den_weight + right.expr.typ.den_weight
-        space = space_of(weight, level, depth)
+        characters = sorted({c["character"] for c in components}) or ["trivial"]
+        character = characters[0] if len(characters) == 1 else "mixed: " + ", ".join(characters)
+        space = space_of(weight, level, depth, character, not setup.has_poles)
         proof_space = space
         if cleared:
             # Quotients are meromorphic, so the claim's weight-k "space" has no dimension;
             # the certificate adds the space the cleared identity N_L D_R = N_R D_L lives in.
             space.pop("dimension", None)
             space["meromorphic"] = True
-            proof_space = space_of(weight_p, level, depth)
+            proof_space = space_of(weight_p, level, depth, character, not setup.has_poles)
             space["cleared_space"] = proof_space
+        if setup.has_poles:
+            space["poles_at_cusps"] = True
+            space["cusp_order_bounds"] = {str(d): _frac_str(v) for d, v in setup.bounds.items() if d != level}
+        method = "valence" if setup.has_poles else "sturm"
         bound = max((c["bound"] for c in components), default=0)
-        how = _how(components, cleared, level)
+        how = _how(components, cleared, setup)
         if not differing:
-            if kind == "equality":
-                return Outcome(
-                    "proved",
-                    kind,
-                    f"equal in {_space_text(proof_space)}: {how}",
-                    space,
-                    "sturm",
-                    bound,
-                    terms,
-                    components=components,
-                )
+            verdict = "proved" if kind == "equality" else "refuted"
+            text = "equal" if kind == "equality" else "the two sides are equal"
             return Outcome(
-                "refuted",
+                verdict,
                 kind,
-                f"the two sides are equal in {_space_text(proof_space)}: {how}",
+                f"{text} in {_space_text(proof_space)}: {how}",
                 space,
-                "sturm",
+                method,
                 bound,
                 terms,
                 components=components,
             )
-        witness = self._witness(left, right, prec)
-        weights_note = ""
+        witness = self._witness(left, right, need)
+        notes = ""
         if wl is not None and wr is not None and wl != wr:
-            weights_note = f"; the sides have different weights ({_wstr(wl)} and {_wstr(wr)})"
+            notes = f"; the sides have different weights ({_wstr(wl)} and {_wstr(wr)})"
         if witness is None:
             wt, j, n = differing[0]
-            detail = f"the weight-{_frac_str(wt)} part{' of E_2^' + str(j) if j else ''} is nonzero at q^{n}"
-            msg = f"the sides differ ({detail}; the first differing coefficient lies beyond q^{self.max_terms})"
+            part = f"the weight-{_frac_str(wt)} part{' of E_2^' + str(j) if j else ''}"
+            detail = f"{part} is nonzero at q^{self._exp(n)}"
+            beyond = f"the first differing coefficient lies beyond q^{self._exp(self.max_terms)}"
+            msg = f"the sides differ ({detail}; {beyond})"
             fd = None
         else:
             n_w, left_c, right_c = witness
-            msg = f"coefficients of q^{n_w} differ: left {_frac_str(left_c)}, right {_frac_str(right_c)}{weights_note}"
-            fd = {"n": n_w, "left": _frac_str(left_c), "right": _frac_str(right_c)}
+            msg = (
+                f"coefficients of q^{self._exp(n_w)} differ: left {_frac_str(left_c)}, "
+                f"right {_frac_str(right_c)}{notes}"
+            )
+            fd = {"n": self._exponent(n_w), "left": _frac_str(left_c), "right": _frac_str(right_c)}
         verdict = "refuted" if kind == "equality" else "proved"
-        method = "sturm" if kind == "equality" else "witness"
         if kind == "inequality":
             msg = "the sides differ: " + msg
+            method = "witness"
         return Outcome(verdict, kind, msg, space, method, bound, terms, fd, components)
+
+    def _cleared(
+        self, left: ir.Side, right: ir.Side, need: int, chars: CharacterOf
+    ) -> tuple[Graded, Graded, Graded, Graded, Graded]:
+        """N_L, D_L, N_R, D_R and P = N_L D_R - N_R D_L, every piece known through q^(need-1).
+
+        Pieces with poles at infinity lose precision in products, so the working precision
+        is raised until every piece is known far enough.
+        """
+        work = need
+        for _ in range(8):
+            nl, dl = graded_fraction(left.expr, work, self.table, chars)
+            nr, dr = graded_fraction(right.expr, work, self.table, chars)
+            p = graded_add(graded_mul(nl, dr), graded_mul(nr, dl), -1)
+            known = min((s.prec for g in (nl, dl, nr, dr, p) for s in g.values()), default=need)
+            if known >= need:
+                return nl, dl, nr, dr, p
+            work += need - known
+            if work > self.max_terms * 2:
+                break
+        raise BudgetExceeded(work)
+
+    def _prefix_space(self, left: ir.Side, right: ir.Side) -> dict[str, Any] | None:
+        """The space of the form side of a printed-expansion claim, when it has one."""
+        try:
+            level = claim_level(left, right)
+
+            def chars(atom: ir.Atom) -> int:
+                return int(registry.character(atom.key, int(atom.scale), atom.params, level).kernel)
+
+            side = left if not left.printed else right
+            names = _character_names(graded_fraction(side.expr, 1, self.table, chars)[0])
+        except (registry.NotModular, TypeError):
+            return None
+        depth = max(left.expr.typ.depth, right.expr.typ.depth)
+        character = names[0] if len(names) == 1 else ("trivial" if not names else "mixed: " + ", ".join(names))
+        return space_of(claim_weight(left, right), level, depth, character)
 
     def _witness(self, left: ir.Side, right: ir.Side, prec: int) -> tuple[int, Fraction, Fraction] | None:
         """First exponent where the two sides' Laurent series differ, searching up to the budget."""
@@ -244,10 +375,8 @@ class Prover:
 
     def _prefix(self, left: ir.Side, right: ir.Side, rel: str) -> Outcome:
         start_hint, stop, exact_range = _prefix_range(left, right)
-        level = claim_level(left, right)
         weight = claim_weight(left, right)
-        depth = max(left.expr.typ.depth, right.expr.typ.depth)
-        space = space_of(weight, level, depth) if weight is not None else None
+        space = self._prefix_space(left, right) if weight is not None else None
         heaviest = _heaviest(left, right)
         if stop > self.max_terms or stop * max(heaviest, Fraction(12)) > MAX_WORK:
             raise BudgetExceeded(stop)
@@ -256,10 +385,10 @@ class Prover:
         start = min(0, a.valuation, b.valuation, start_hint)
         n = a.first_difference(b, start, stop)
         terms = stop - start
-        rng = f"q^{start}..q^{stop - 1}"
+        rng = f"q^{self._exp(start)}..q^{self._exp(stop - 1)}"
         if n is not None:
-            fd = {"n": n, "left": _frac_str(a[n]), "right": _frac_str(b[n])}
-            msg = f"coefficients of q^{n} differ: left {fd['left']}, right {fd['right']}"
+            fd = {"n": self._exponent(n), "left": _frac_str(a[n]), "right": _frac_str(b[n])}
+            msg = f"coefficients of q^{self._exp(n)} differ: left {fd['left']}, right {fd['right']}"
             if rel == "=":
                 return Outcome("refuted", "prefix", msg, space, "expansion", None, terms, fd)
             return Outcome(
@@ -306,6 +435,10 @@ def _heaviest(left: ir.Side, right: ir.Side) -> Fraction:
     return max(abs(s.expr.typ.weight or Fraction(0)) + s.expr.typ.den_weight for s in (left, right))
 
 
+def _character_names(g: Graded) -> list[str]:
+    return sorted({QuadraticCharacter(k).name for (_, _, k) in g})
+
+
 def _proof_weight(left: ir.Side, right: ir.Side) -> Fraction:
     ws = [w for w in (left.expr.typ.weight, right.expr.typ.weight) if w is not None]
     return max(ws, default=Fraction(0)) + left.expr.typ.den_weight + right.expr.typ.den_weight
@@ -317,9 +450,13 @@ def _prefix_range(left: ir.Side, right: ir.Side) -> tuple[int, int, bool]:
     if truncs:
         return 0, min(truncs), True
     # No truncation anywhere: compare well past the printed degree and any Sturm bound.
-    deg = max(left.degree, right.degree)
+    deg = math.ceil(max(left.degree, right.degree))
     w = claim_weight(left, right) or Fraction(0)
-    b = groups.sturm_bound(w + left.expr.typ.den_weight + right.expr.typ.den_weight, claim_level(left, right))
+    try:
+        level = claim_level(left, right)
+    except registry.NotModular:
+        level = 1
+    b = groups.sturm_bound(w + left.expr.typ.den_weight + right.expr.typ.den_weight, level)
     return 0, max(deg + 2, b + 2, 10), False
 
 
@@ -329,36 +466,38 @@ def _first_nonzero(series: QSeries, stop: int) -> int | None:
     return series.valuation
 
 
-def _nonzero_depth(g: Graded, level: int) -> int:
-    """Highest E_2-power whose coefficient form is nonzero (checked to its Sturm bound)."""
-    depths = [j for (w, j), s in g.items() if _first_nonzero(s, groups.sturm_bound(w - 2 * j, level) + 1) is not None]
+def _nonzero_depth(g: Graded, setup: Setup) -> int:
+    """Highest E_2-power whose coefficient form is nonzero (checked to its bound)."""
+    depths = [j for (w, j, _), s in g.items() if _first_nonzero(s, setup.bound(w - 2 * j) + 1) is not None]
     return max(depths, default=0)
 
 
-def _graded_zero(g: Graded, level: int) -> bool | None:
-    """True if nonzero; None if every piece vanishes to its Sturm bound (so g = 0)."""
-    for (w, j), series in g.items():
-        if _first_nonzero(series, groups.sturm_bound(w - 2 * j, level) + 1) is not None:
-            return True
-    return None
+def _graded_nonzero(g: Graded, setup: Setup) -> bool:
+    """Whether some piece is nonzero; a piece vanishing through its bound is 0."""
+    return any(_first_nonzero(series, setup.bound(w - 2 * j) + 1) is not None for (w, j, _), series in g.items())
 
 
 def _space_text(space: dict[str, Any]) -> str:
     group = "SL2(Z)" if space["group"] == "SL2(Z)" else space["group"].replace("Gamma0", "Gamma_0")
+    chi = "" if space["character"] == "trivial" else f", {space['character']}"
     dim = f", dim {space['dimension']}" if "dimension" in space else ""
+    name = "M^!" if space.get("poles_at_cusps") else "M"
     if "quasimodular_depth" in space:
-        return f"QM_{space['weight']}({group}) (depth {space['quasimodular_depth']})"
-    return f"M_{space['weight']}({group}{dim})"
+        return f"QM_{space['weight']}({group}{chi}) (depth {space['quasimodular_depth']})"
+    return f"{name}_{space['weight']}({group}{chi}{dim})"
 
 
-def _how(components: list[dict[str, Any]], cleared: Fraction, level: int) -> str:
-    n = sum(c["bound"] + 1 for c in components)
+def _how(components: list[dict[str, Any]], cleared: Fraction, setup: Setup) -> str:
+    n = sum(c["bound"] + 1 - c.get("from", 0) for c in components)
     parts = []
     if cleared:
         parts.append(f"after clearing denominators of weight {_frac_str(cleared)}")
+    if setup.has_poles:
+        parts.append("poles at cusps bounded by the orders of the eta quotients (valence formula)")
+    bound_name = "valence bound" if setup.has_poles else "Sturm bound"
     if len(components) == 1:
         c = components[0]
-        parts.append(f"Sturm bound {c['bound']}, {n} coefficient{'s' if n != 1 else ''} compared")
+        parts.append(f"{bound_name} {c['bound']}, {n} coefficient{'s' if n != 1 else ''} compared")
     elif components:
         pieces = ", ".join(
             f"weight {c['weight']}{' x E_2^' + str(c['e2_power']) if c['e2_power'] else ''} to q^{c['bound']}"

@@ -7,7 +7,7 @@ from dataclasses import dataclass
 
 from verifier.scan.text import matching_brace
 
-KNOWN_OPTIONS = ("name", "group", "weight")
+KNOWN_OPTIONS = ("name", "group", "weight", "character", "nome")
 
 
 @dataclass(frozen=True)
@@ -80,8 +80,11 @@ def parse_options(text: str) -> tuple[dict[str, str], list[OptionProblem]]:
                 i += 1
             value = text[vstart:i]
         if key not in KNOWN_OPTIONS:
-            close_names = difflib.get_close_matches(key, KNOWN_OPTIONS, n=1)
-            hint = f"did you mean {close_names[0]!r}?" if close_names else "known options: " + ", ".join(KNOWN_OPTIONS)
+            close_names = difflib.get_close_matches(key, KNOWN_OPTIONS, n=2)
+            if close_names:
+                hint = "did you mean " + " or ".join(repr(c) for c in close_names) + "?"
+            else:
+                hint = "known options: " + ", ".join(KNOWN_OPTIONS)
             problems.append(OptionProblem(start, "unknown-option", f"unknown option {key!r}", hint))
             continue
         if key in options:
