@@ -6,7 +6,9 @@ prove.  The command line only wraps them.
 
 from __future__ import annotations
 
+import re
 import time
+from collections.abc import Callable
 from dataclasses import dataclass, field
 from fractions import Fraction
 from pathlib import Path
@@ -15,7 +17,7 @@ from typing import Any
 from verifier import __version__
 from verifier.diagnostics import Diagnostic
 from verifier.elaborate import ir
-from verifier.elaborate.elaborator import Elaborator, Problem
+from verifier.elaborate.elaborator import Elaborator, Problem, normal_name
 from verifier.elaborate.rescale import rescale_factor, rescale_side
 from verifier.forms import registry
 from verifier.forms.characters import parse_character
@@ -23,8 +25,10 @@ from verifier.forms.registry import NotModular
 from verifier.location import Location
 from verifier.options import parse_group, parse_nome, parse_weight
 from verifier.parse import ast
-from verifier.parse.grammar import ParseFailure, parse_claim, parse_definition
+from verifier.parse.grammar import ParseFailure, parse_claim, parse_definition, parse_expression
+from verifier.parse.spaces import dimension_prefix, parse_space, split_membership
 from verifier.prove.evaluate import AtomTable
+from verifier.prove.membership import decide_dimension, decide_membership
 from verifier.prove.prover import DEFAULT_MAX_TERMS, Outcome, Prover, claim_level
 from verifier.scan import ScannedDocument, scan_path, scan_text
 from verifier.scan.display import Row
@@ -32,6 +36,7 @@ from verifier.scan.document import ClaimBlock, DefineTag
 from verifier.scan.text import MappedText
 
 VERDICTS = ("proved", "refuted", "unproven", "error")
+_NO_SIDE = ir.Side(ir.Const(ir.Typ(None), "0"), False)
 
 
 @dataclass
@@ -140,6 +145,7 @@ class _Pending:
     rel: str
     unit: Fraction = Fraction(1)  # the author's exponent is the internal one divided by this
     character: str | None = None  # the tag's character= option
+    task: Callable[[Prover], Outcome] | None = None  # claims about spaces are decided by this
 
 
 def check_document(doc: ScannedDocument, max_terms: int = DEFAULT_MAX_TERMS) -> Report:
@@ -154,10 +160,14 @@ def check_document(doc: ScannedDocument, max_terms: int = DEFAULT_MAX_TERMS) -> 
         else:
             _block(item, elaborator, report, pending)
     for p in pending:
-        prover.table.plan(min(prover.precision_needed(p.left, p.right), max_terms))
+        if p.task is None:
+            prover.table.plan(min(prover.precision_needed(p.left, p.right), max_terms))
     for p in pending:
         start = time.perf_counter()
-        p.result.outcome = _check_character(prover.decide(p.left, p.right, p.rel, p.unit), p.character)
+        if p.task is not None:
+            p.result.outcome = p.task(prover)
+        else:
+            p.result.outcome = _check_character(prover.decide(p.left, p.right, p.rel, p.unit), p.character)
         p.result.seconds = time.perf_counter() - start
     return report
 
@@ -167,6 +177,10 @@ def _define(item: DefineTag, elaborator: Elaborator, report: Report) -> None:
     if item.text is None:
         return
     text = item.text
+    matrix = _MATRIX_DEFINE.match(text.text)
+    if matrix is not None:
+        _define_matrix(matrix, text, elaborator, report)
+        return
     parsed = parse_definition(text.text)
     if isinstance(parsed, ParseFailure):
         report.diagnostics.append(
@@ -202,6 +216,30 @@ def _define(item: DefineTag, elaborator: Elaborator, report: Report) -> None:
                 problem.hint,
             )
         )
+
+
+_MATRIX_DEFINE = re.compile(r"^\s*([A-Za-z](?:_\{?\w+\}?)?|\\[A-Za-z]+)\s*=\s*(\\begin\s*\{[bp]?matrix\}.*)$", re.S)
+
+
+def _define_matrix(m: re.Match[str], text: MappedText, elaborator: Elaborator, report: Report) -> None:
+    """``%@define Q = \\begin{pmatrix}...`` names a Gram matrix for ``\\Theta_Q``."""
+    from verifier.forms.theta import QuadraticForm, parse_matrix
+
+    rows = parse_matrix(m.group(2).strip())
+    problem = rows if isinstance(rows, str) else QuadraticForm.from_rows(rows).validate()
+    if problem is not None or isinstance(rows, str):
+        report.diagnostics.append(
+            Diagnostic(
+                "bad-define",
+                "error",
+                text.location(m.start(2)),
+                f"cannot use this Gram matrix: {problem}",
+                "give a symmetric positive-definite integer matrix with even diagonal",
+            )
+        )
+        return
+    name = normal_name(m.group(1))
+    elaborator.matrices[name.removeprefix("\\")] = QuadraticForm.from_rows(rows)
 
 
 def _error(
@@ -248,6 +286,17 @@ def _block(
                 ],
                 text.source,
             )
+        if not continuation:
+            about_space = _space_claim(
+                text, row, name if (name is None or count == 0) else f"{name}.{count + 1}", block, elaborator
+            )
+            if about_space is not None:
+                count += 1
+                report.claims.append(about_space.result)
+                if about_space.task is not None:
+                    pending.append(about_space)
+                previous_side = None
+                continue
         parsed = parse_claim(text.text)
         if isinstance(parsed, ParseFailure):
             report.claims.append(
@@ -335,6 +384,50 @@ def _claim(
         return _error(block.tag, code, message, hint, source, name, row.label, kind, end)
     result = ClaimResult(loc, end, name, row.label, source, Outcome("error", kind, "not decided"))
     return _Pending(result, left, right, rel, Fraction(t) * nome, block.options.get("character"))
+
+
+def _space_claim(
+    text: MappedText, row: Row, name: str | None, block: ClaimBlock, elaborator: Elaborator
+) -> _Pending | None:
+    """A claim about a space (``\\dim M_k(...) = d`` or ``f \\in S_k(...)``), or None."""
+    body = text.text
+    lead = len(body) - len(body.lstrip())
+    dim_end = dimension_prefix(body)
+    member = split_membership(body)
+    if dim_end is None and member is None:
+        return None
+    loc = text.location(lead)
+    end = text.location(len(body.rstrip()) - 1)
+    source = " ".join(text.source_slice(lead, len(body.rstrip())).replace("&", " ").split())
+    kind = "dimension" if dim_end is not None else "membership"
+
+    def failed(at: int, code: str, message: str, hint: str = "") -> _Pending:
+        result = _error(text.location(at), code, message, hint, source, name, row.label, kind, end)
+        return _Pending(result, _NO_SIDE, _NO_SIDE, "=")
+
+    if dim_end is not None:
+        eq = body.find("=", dim_end)
+        dim_spec = parse_space(body[dim_end:eq] if eq >= 0 else "")
+        value = body[eq + 1 :].strip() if eq >= 0 else ""
+        if isinstance(dim_spec, str):
+            return failed(dim_end, "syntax", dim_spec)
+        if not value.isdigit():
+            return failed(eq + 1 if eq >= 0 else len(body), "syntax", "a dimension claim reads \\dim SPACE = integer")
+        result = ClaimResult(loc, end, name, row.label, source, Outcome("error", kind, "not decided"))
+        stated = int(value)
+        return _Pending(result, _NO_SIDE, _NO_SIDE, "=", task=lambda prover: decide_dimension(dim_spec, stated))
+    assert member is not None
+    spec = parse_space(body[member[1] :])
+    if isinstance(spec, str):
+        return failed(member[1], "syntax", spec)
+    parsed = parse_expression(body[: member[0]])
+    if isinstance(parsed, ParseFailure):
+        return failed(parsed.offset, parsed.code, parsed.message, parsed.hint)
+    side = elaborator.side(parsed, body)
+    if isinstance(side, Problem):
+        return failed(side.span[0], side.code, side.message, side.hint)
+    result = ClaimResult(loc, end, name, row.label, source, Outcome("error", kind, "not decided"))
+    return _Pending(result, side, side, "=", task=lambda prover: decide_membership(prover, side, spec))
 
 
 def _check_options(options: dict[str, str], left: ir.Side, right: ir.Side, t: int) -> tuple[str, str, str] | None:

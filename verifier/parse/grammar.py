@@ -37,7 +37,7 @@ def _parser() -> Any:
         grammar_path().read_text(encoding="utf-8"),
         parser="lalr",
         lexer="contextual",
-        start=["relation", "definition"],
+        start=["relation", "definition", "expression"],
         propagate_positions=True,
         maybe_placeholders=False,
     )
@@ -64,6 +64,11 @@ def parse_claim(text: str) -> ast.Relation | ParseFailure:
     result = _parse(text, "relation")
     assert isinstance(result, ast.Relation | ParseFailure)
     return result
+
+
+def parse_expression(text: str) -> ast.Node | ParseFailure:
+    """Parse a single expression (the form of a membership claim)."""
+    return _parse(text, "expression")
 
 
 def parse_definition(text: str) -> ast.Definition | ParseFailure:
@@ -108,7 +113,7 @@ def _parse(text: str, start: str) -> ast.Node | ParseFailure:
 
 def _eof_failure(text: str, start: str) -> ParseFailure:
     stripped = text.rstrip()
-    if start == "relation" and not any(r in text for r in ("=", "\\ne")):
+    if start == "relation" and not any(r in text for r in ("=", "\\ne", "\\in")):
         return ParseFailure(
             "no-relation",
             "a claim needs '=' or '\\neq' between two sides",
@@ -198,6 +203,10 @@ def _make_transformer() -> Any:
 
         def rel(self, meta: Any, items: list[Any]) -> str:
             return str(items[0])
+
+        def expression(self, meta: Any, items: list[Any]) -> ast.Node:
+            node: ast.Node = items[0]
+            return node
 
         def definition(self, meta: Any, items: list[Any]) -> ast.Definition:
             name_tok = items[0]

@@ -1,0 +1,221 @@
+"""Claims about spaces: ``f \\in M_k(\\Gamma_0(N), \\chi)``, ``f \\in S_k(...)``, ``\\dim M_k(...) = d``.
+
+Membership is proved from the weight, the level and character of every atom, and the
+orders at the cusps (Ligozat's formula for eta quotients, MATH.md §4.2–4.5; Eisenstein
+series and theta series of quadratic forms are holomorphic at every cusp).  It is refuted
+only for reasons that hold whatever the level: a wrong weight or character of a nonzero
+form, a nonzero E_2-part, a non-integral exponent, a pole, a cusp order that is negative
+(or zero, for cusp forms) for a single eta quotient, or a nonzero constant term for a
+claimed cusp form.  A level that may be too large (the inferred level does not divide N)
+is ``unproven``: eta-quotient levels are sufficient, not necessary (§4.2).
+"""
+
+from __future__ import annotations
+
+import math
+from fractions import Fraction
+from typing import Any
+
+from verifier.elaborate import ir
+from verifier.elaborate.rescale import rescale_factor
+from verifier.forms import registry
+from verifier.forms.characters import QuadraticCharacter
+from verifier.parse.spaces import SpaceSpec
+from verifier.prove import groups, orders
+from verifier.prove.evaluate import graded_fraction, laurent_to
+from verifier.prove.prover import Outcome, Prover, Setup, _first_nonzero, _frac_str, space_of
+
+KIND = "membership"
+
+
+def _space_dict(spec: SpaceSpec) -> dict[str, Any]:
+    chi = spec.character.name if spec.character is not None else "trivial"
+    space = space_of(spec.weight, spec.level, 0, chi)
+    if spec.group_kind == "Gamma1":
+        space["group"] = f"Gamma1({spec.level})"
+    space["cusp_forms"] = spec.cusp
+    return space
+
+
+def decide_membership(prover: Prover, side: ir.Side, spec: SpaceSpec) -> Outcome:
+    """Decide ``side \\in spec``."""
+    space = _space_dict(spec)
+    if side.printed:
+        return Outcome("error", KIND, "a printed expansion is not a form; name the form", space, code="bad-expansion")
+    expr = side.expr
+    if rescale_factor(side) != 1:
+        return Outcome(
+            "refuted",
+            KIND,
+            "the q-expansion has non-integral exponents (an eta quotient with sum of delta*r_delta "
+            "not divisible by 24), but forms on Gamma_0(N) are invariant under tau -> tau + 1",
+            space,
+            "cusp-orders",
+        )
+    weight = expr.typ.weight
+    try:
+        atoms = ir.atoms_of(expr)
+        level = 1
+        for atom in atoms:
+            n = registry.level(atom.key, int(atom.scale), atom.params)
+            level = level * n // math.gcd(level, n)
+        if weight is not None and weight.denominator == 2 and level % 4:
+            level *= 4 // math.gcd(level, 4)
+        work_level = level * spec.level // math.gcd(level, spec.level)
+
+        def chars(atom: ir.Atom) -> int:
+            return int(registry.character(atom.key, int(atom.scale), atom.params, work_level).kernel)
+
+        # Bounds for the numerator N of f = N / D: a piece of N vanishing through its bound is 0.
+        setup = Setup(
+            work_level, (weight or Fraction(0)) + expr.typ.den_weight, orders.fraction_bounds(expr, work_level)[0]
+        )
+        need = setup.bound(setup.weight) + 1
+        num, _ = graded_fraction(expr, max(need, 2), prover.table, chars)
+        series = laurent_to(expr, max(need, 2), prover.table, prover.max_terms * 2)
+    except registry.NotModular as exc:
+        return Outcome("refuted", KIND, f"not modular: {exc}", space, "cusp-orders")
+    nonzero = [(w, j, k) for (w, j, k), s in num.items() if _first_nonzero(s, setup.bound(w - 2 * j) + 1) is not None]
+    if not nonzero:
+        return Outcome("proved", KIND, "the form is 0, which lies in every space", space, "cusp-orders")
+    # Reasons that refute whatever the level.
+    if series.valuation < 0:
+        return Outcome(
+            "refuted",
+            KIND,
+            f"the form has a pole at infinity (its expansion starts at q^{series.valuation})",
+            space,
+            "cusp-orders",
+        )
+    if weight is not None and weight != spec.weight:
+        return Outcome(
+            "refuted",
+            KIND,
+            f"the form has weight {_frac_str(weight)}, not {_frac_str(spec.weight)}",
+            space,
+            "cusp-orders",
+        )
+    if any(j for _, j, _ in nonzero) and not expr.typ.den_weight:
+        return Outcome("refuted", KIND, "the form is quasimodular: its E_2-part is nonzero", space, "cusp-orders")
+    if spec.cusp and series.valuation == 0:
+        return Outcome(
+            "refuted",
+            KIND,
+            f"not a cusp form: its constant term is {_frac_str(series[0])}, not 0",
+            space,
+            "cusp-orders",
+        )
+    found = sorted({k for _, _, k in nonzero})
+    wanted = spec.character.kernel if spec.character is not None else 1
+    if spec.group_kind == "Gamma0" and found != [wanted] and not expr.typ.den_weight:
+        names = ", ".join(QuadraticCharacter(k).name for k in found)
+        return Outcome(
+            "refuted",
+            KIND,
+            f"the form has character {names}, not {QuadraticCharacter(wanted).name}",
+            space,
+            "cusp-orders",
+        )
+    if spec.group_kind == "Gamma1":
+        wide = [QuadraticCharacter(k) for k in found if spec.level % QuadraticCharacter(k).conductor]
+        if wide and not expr.typ.den_weight:
+            return Outcome(
+                "refuted",
+                KIND,
+                f"the form has character {wide[0].name}, which is not a character mod {spec.level}",
+                space,
+                "cusp-orders",
+            )
+    single = _single_eta(expr)
+    if single is not None:
+        exact = registry.cusp_orders("eta", single, work_level) or {}
+        worst = min(exact.items(), key=lambda kv: kv[1])
+        if worst[1] < 0 or (spec.cusp and worst[1] == 0):
+            what = "a pole" if worst[1] < 0 else "it does not vanish there, so it is not a cusp form"
+            return Outcome(
+                "refuted",
+                KIND,
+                f"at the cusps c/{worst[0]} of Gamma_0({work_level}) the eta quotient has order "
+                f"{_frac_str(worst[1])} (Ligozat): {what}",
+                space,
+                "cusp-orders",
+            )
+    # A nonzero form is in no zero space (MATH.md §6.2, trivial character, even weight).
+    if (
+        spec.group_kind == "Gamma0"
+        and wanted == 1
+        and spec.weight.denominator == 1
+        and spec.weight % 2 == 0
+        and (groups.dim_cusp if spec.cusp else groups.dim_modular)(int(spec.weight), spec.level) == 0
+    ):
+        return Outcome("refuted", KIND, f"the form is nonzero but {spec.text()} = 0", space, "dimension-formula")
+    # What a proof needs.
+    if expr.typ.den_weight:
+        return Outcome("unproven", KIND, "the form is a quotient; its holomorphy at the cusps is not decided", space)
+    if spec.level % level:
+        return Outcome(
+            "unproven",
+            KIND,
+            f"the forms used are known to be modular on Gamma_0({level}), not on Gamma_0({spec.level}); "
+            "no proof that the combination has the smaller level is attempted",
+            space,
+        )
+    bounds = setup.bounds
+    low = min(bounds.values())
+    if low < 0:
+        return Outcome("unproven", KIND, "some terms have poles at cusps; whether they cancel is not decided", space)
+    if spec.cusp and any(v <= 0 for d, v in bounds.items() if d != work_level):
+        return Outcome(
+            "unproven",
+            KIND,
+            "some terms do not vanish at every cusp (e.g. Eisenstein series); whether the sum does is not decided",
+            space,
+        )
+    detail = ", ".join(f"d={d}: {_frac_str(v)}" for d, v in sorted(bounds.items()))
+    return Outcome(
+        "proved",
+        KIND,
+        f"weight {_frac_str(spec.weight)}, level {level} divides {spec.level}, character "
+        f"{QuadraticCharacter(found[0]).name}, orders at the cusps >= ({detail})",
+        space,
+        "cusp-orders",
+        components=[{"cusp_denominator": d, "order_at_least": _frac_str(v)} for d, v in sorted(bounds.items())],
+    )
+
+
+def _single_eta(expr: ir.Expr) -> tuple[Any, ...] | None:
+    if isinstance(expr, ir.Atom) and expr.key == "eta":
+        return expr.params
+    if isinstance(expr, ir.Product) and isinstance(expr.left, ir.Const) and isinstance(expr.right, ir.Atom):
+        return expr.right.params if expr.right.key == "eta" and expr.left.value != 0 else None
+    return None
+
+
+def decide_dimension(spec: SpaceSpec, stated: int) -> Outcome:
+    """Decide ``\\dim spec = stated`` by the dimension formula (MATH.md §6.2)."""
+    space = _space_dict(spec)
+    k = spec.weight
+    if spec.group_kind != "Gamma0" or (spec.character is not None and not spec.character.is_trivial):
+        return Outcome(
+            "error",
+            "dimension",
+            "dimensions are known here only for Gamma_0(N) with the trivial character",
+            space,
+            code="unsupported",
+        )
+    if k.denominator != 1 or k < 0:
+        return Outcome(
+            "error", "dimension", "dimensions are known here only for integral weight k >= 0", space, code="unsupported"
+        )
+    kk = int(k)
+    dim = groups.dim_cusp(kk, spec.level) if spec.cusp else groups.dim_modular(kk, spec.level)
+    what = f"dim {spec.text()}"
+    fd = None if dim == stated else {"n": 0, "left": str(dim), "right": str(stated)}
+    verdict = "proved" if dim == stated else "refuted"
+    g = groups.genus(spec.level)
+    e2, e3 = groups.elliptic_points(spec.level)
+    einf = groups.cusp_count(spec.level)
+    msg = f"{what} = {dim} (genus {g}, {e2} and {e3} elliptic points of order 2 and 3, {einf} cusps)"
+    if verdict == "refuted":
+        msg = f"{what} is {dim}, not {stated} (genus {g}, elliptic points {e2}, {e3}, {einf} cusps)"
+    return Outcome(verdict, "dimension", msg, space, "dimension-formula", None, 0, fd)
