@@ -798,6 +798,61 @@ def section_pipeline(claims: int) -> bool:
     return True
 
 
+def _flint_eta(exps: dict[int, int], n: int) -> Any:
+    """prod_delta prod_m (1 - q^(delta m))^r mod q^n, straight in python-flint (the baseline)."""
+    base = fmpz_poly(_pentagonal(n))
+    inv = flint_inverse(base, n)
+    out = fmpz_poly([1])
+    for delta, r in exps.items():
+        factor = (base if r > 0 else inv).truncate((n - 1) // delta + 1)
+        out = out.mul_low(factor.inflate(delta).pow_trunc(abs(r), n), n)
+    return out
+
+
+def section_level(quick: bool) -> bool:
+    print("\n== 4. a level-N eta-quotient identity: the whole pipeline vs the same series in python-flint ==")
+    from verifier.api import check_text
+
+    # Jacobi's four-square identity in eta form (MATH.md §4.7), with tau -> d tau so that it
+    # lives on Gamma_0(4d), raised to the power e: weight 2e, Sturm bound floor(2e m_0(4d)/12).
+    cases = [(250, 1), (300, 3)] if quick else [(250, 1), (300, 3), (1000, 3)]
+    check_text("%@claim\n\\[ E_4^2 = E_8 \\]\n", "warm-up.tex")  # grammar and imports, once
+    header = f"{'level':>7}{'weight':>8}{'bound':>7}{'pipeline s':>12}{'flint s':>10}{'pipeline/flint':>16}  verdict"
+    print(header)
+    print("-" * len(header))
+    for d, e in cases:
+        lhs = f"\\theta({d}\\tau)^{{{4 * e}}}"
+        first_term = f"\\frac{{\\eta({d}\\tau)^8}}{{\\eta({2 * d}\\tau)^4}}"
+        term = f"{first_term} + 16\\frac{{\\eta({4 * d}\\tau)^8}}{{\\eta({2 * d}\\tau)^4}}"
+        text = f"%@claim\n\\[ {lhs} = \\left({term}\\right)^{{{e}}} \\]\n"
+        report, first = run_once(lambda text=text: check_text(text, "level.tex"))
+        t_pipe = best_time(lambda text=text: check_text(text, "level.tex"), first, 0.2, 5)
+        claim = report.claims[0]
+        bound = claim.outcome.bound or 0
+        n = bound + 1
+
+        def baseline(d: int = d, e: int = e, n: int = n) -> bool:
+            theta = _flint_eta({2 * d: 5, d: -2, 4 * d: -2}, n).pow_trunc(4 * e, n)
+            a = _flint_eta({d: 8, 2 * d: -4}, n)
+            b = _flint_eta({4 * d: 8, 2 * d: -4}, n)
+            b = fmpz_poly([0] * d + [16 * c for c in b.coeffs()]).truncate(n)  # q^d offset of the second term
+            return bool(theta == (a + b).pow_trunc(e, n))
+
+        same, first_flint = run_once(baseline)
+        t_flint = best_time(baseline, first_flint, 0.2, 5)
+        if not same:
+            raise Mismatch(f"level {4 * d}: the baseline does not confirm the identity")
+        weight = claim.outcome.space["weight"] if claim.outcome.space else "?"
+        print(
+            f"{4 * d:>7}{weight:>8}{bound:>7}{fmt_s(t_pipe):>12}{fmt_s(t_flint):>10}"
+            f"{fmt_ratio(t_pipe / t_flint):>16}  {claim.verdict}",
+            flush=True,
+        )
+        if claim.verdict != "proved":
+            raise Mismatch(f"level {4 * d}: expected proved, got {claim.verdict}: {claim.outcome.message}")
+    return True
+
+
 # ---------------------------------------------------------------------------------
 
 
@@ -816,7 +871,7 @@ def main(argv: list[str] | None = None) -> int:
         default=None,
         help="seconds allowed for all pure-Python cells together (default unlimited, 15 with --quick)",
     )
-    ap.add_argument("--skip", default="", help="comma-separated sections to skip: engine, scan, pipeline")
+    ap.add_argument("--skip", default="", help="comma-separated sections to skip: engine, scan, pipeline, level")
     args = ap.parse_args(argv)
     quick = args.quick
     skip = {s.strip() for s in args.skip.split(",") if s.strip()}
@@ -830,6 +885,7 @@ def main(argv: list[str] | None = None) -> int:
         ("engine", lambda: section_engine(sizes, pure_budget, pure_total, 0.15 if quick else 0.5)),
         ("scan", lambda: section_scan([500, 2000] if quick else [2000, 8000])),
         ("pipeline", lambda: section_pipeline(150 if quick else 600)),
+        ("level", lambda: section_level(quick)),
     ]
     for name, run in sections:
         if name in skip:
