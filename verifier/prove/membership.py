@@ -210,7 +210,6 @@ def decide_dimension(spec: SpaceSpec, stated: int) -> Outcome:
     kk = int(k)
     dim = groups.dim_cusp(kk, spec.level) if spec.cusp else groups.dim_modular(kk, spec.level)
     what = f"dim {spec.text()}"
-    fd = None if dim == stated else {"n": 0, "left": str(dim), "right": str(stated)}
     verdict = "proved" if dim == stated else "refuted"
     g = groups.genus(spec.level)
     e2, e3 = groups.elliptic_points(spec.level)
@@ -218,4 +217,4 @@ def decide_dimension(spec: SpaceSpec, stated: int) -> Outcome:
     msg = f"{what} = {dim} (genus {g}, {e2} and {e3} elliptic points of order 2 and 3, {einf} cusps)"
     if verdict == "refuted":
         msg = f"{what} is {dim}, not {stated} (genus {g}, elliptic points {e2}, {e3}, {einf} cusps)"
-    return Outcome(verdict, "dimension", msg, space, "dimension-formula", None, 0, fd)
+    return Outcome(verdict, "dimension", msg, space, "dimension-formula", None, 0)
