@@ -15,6 +15,7 @@ from pathlib import Path
 from typing import Any
 
 from verifier import __version__
+from verifier.budget import DEFAULT_MAX_SECONDS, decide_all
 from verifier.diagnostics import Diagnostic
 from verifier.elaborate import ir
 from verifier.elaborate.elaborator import Elaborator, Problem, normal_name
@@ -80,6 +81,8 @@ class ClaimResult:
             "code": o.code,
             "hint": o.hint,
             "components": o.components,
+            "table": o.table,
+            "suggestion": o.suggestion,
         }
 
 
@@ -121,10 +124,15 @@ class Report:
         }
 
 
-def check_path(path: str | Path, max_terms: int = DEFAULT_MAX_TERMS) -> Report:
+def check_path(
+    path: str | Path,
+    max_terms: int = DEFAULT_MAX_TERMS,
+    jobs: int = 1,
+    max_seconds: float | None = DEFAULT_MAX_SECONDS,
+) -> Report:
     """Check every tagged claim of the manuscript at ``path`` (LaTeX, or Markdown by suffix)."""
     doc = scan_path(Path(path))
-    return check_document(doc, max_terms=max_terms)
+    return check_document(doc, max_terms=max_terms, jobs=jobs, max_seconds=max_seconds)
 
 
 def check_text(
@@ -132,9 +140,11 @@ def check_text(
     filename: str = "<text>",
     markdown: bool | None = None,
     max_terms: int = DEFAULT_MAX_TERMS,
+    jobs: int = 1,
+    max_seconds: float | None = DEFAULT_MAX_SECONDS,
 ) -> Report:
     """Check a manuscript given as a string."""
-    return check_document(scan_text(text, filename, markdown), max_terms=max_terms)
+    return check_document(scan_text(text, filename, markdown), max_terms=max_terms, jobs=jobs, max_seconds=max_seconds)
 
 
 @dataclass
@@ -148,8 +158,17 @@ class _Pending:
     task: Callable[[Prover], Outcome] | None = None  # claims about spaces are decided by this
 
 
-def check_document(doc: ScannedDocument, max_terms: int = DEFAULT_MAX_TERMS) -> Report:
-    """Parse, elaborate and decide everything a scan found."""
+def check_document(
+    doc: ScannedDocument,
+    max_terms: int = DEFAULT_MAX_TERMS,
+    jobs: int = 1,
+    max_seconds: float | None = DEFAULT_MAX_SECONDS,
+) -> Report:
+    """Parse, elaborate and decide everything a scan found.
+
+    ``jobs > 1`` decides claims in that many processes (same results, in document order);
+    ``max_seconds`` bounds the time of each claim (see :mod:`verifier.budget`).
+    """
     report = Report(diagnostics=list(doc.diagnostics), files=list(doc.files))
     elaborator = Elaborator()
     prover = Prover(AtomTable(), max_terms=max_terms)
@@ -159,16 +178,16 @@ def check_document(doc: ScannedDocument, max_terms: int = DEFAULT_MAX_TERMS) -> 
             _define(item, elaborator, report)
         else:
             _block(item, elaborator, report, pending)
+    identities = [p for p in pending if p.task is None]
+    decided = decide_all([(p.left, p.right, p.rel, p.unit) for p in identities], jobs, max_terms, max_seconds, prover)
+    for p, (outcome, seconds) in zip(identities, decided, strict=True):
+        p.result.outcome = _check_character(outcome, p.character)
+        p.result.seconds = seconds
     for p in pending:
-        if p.task is None:
-            prover.table.plan(min(prover.precision_needed(p.left, p.right), max_terms))
-    for p in pending:
-        start = time.perf_counter()
         if p.task is not None:
+            start = time.perf_counter()
             p.result.outcome = p.task(prover)
-        else:
-            p.result.outcome = _check_character(prover.decide(p.left, p.right, p.rel, p.unit), p.character)
-        p.result.seconds = time.perf_counter() - start
+            p.result.seconds = time.perf_counter() - start
     return report
 
 

@@ -55,6 +55,10 @@ class Outcome:
     components: list[dict[str, Any]] = field(default_factory=list)
     code: str | None = None
     hint: str = ""
+    # For refutations: coefficients around the first difference, rows [n, left, right]
+    # (exact values as strings, n as the author writes exponents).
+    table: list[list[Any]] = field(default_factory=list)
+    suggestion: str | None = None  # a corrected claim, when one is known
 
 
 def _frac_str(x: Fraction) -> str:
@@ -145,6 +149,7 @@ class Prover:
         self.table = table or AtomTable()
         self.max_terms = max_terms
         self.unit = Fraction(1)
+        self._last_table: list[list[Any]] = []
 
     # -- planning -------------------------------------------------------------------
     def precision_needed(self, left: ir.Side, right: ir.Side) -> int:
@@ -295,6 +300,7 @@ class Prover:
                 terms,
                 components=components,
             )
+        self._last_table = []
         witness = self._witness(left, right, need)
         notes = ""
         if wl is not None and wr is not None and wl != wr:
@@ -317,7 +323,7 @@ class Prover:
         if kind == "inequality":
             msg = "the sides differ: " + msg
             method = "witness"
-        return Outcome(verdict, kind, msg, space, method, bound, terms, fd, components)
+        return Outcome(verdict, kind, msg, space, method, bound, terms, fd, components, table=self._last_table)
 
     def _cleared(
         self, left: ir.Side, right: ir.Side, need: int, chars: CharacterOf
@@ -356,6 +362,12 @@ class Prover:
         character = names[0] if len(names) == 1 else ("trivial" if not names else "mixed: " + ", ".join(names))
         return space_of(claim_weight(left, right), level, depth, character)
 
+    def _table(self, a: QSeries, b: QSeries, n: int, start: int, before: int = 3, after: int = 8) -> list[list[Any]]:
+        """Rows [exponent, left, right] around the first difference, within the known range."""
+        lo = max(start, n - before)
+        hi = min(a.prec, b.prec, n + after + 1)
+        return [[self._exponent(m), _frac_str(a[m]), _frac_str(b[m])] for m in range(lo, hi)]
+
     def _witness(self, left: ir.Side, right: ir.Side, prec: int) -> tuple[int, Fraction, Fraction] | None:
         """First exponent where the two sides' Laurent series differ, searching up to the budget."""
         stop = max(prec, 8)
@@ -368,6 +380,7 @@ class Prover:
             start = min(0, a.valuation, b.valuation)
             n = a.first_difference(b, start, stop)
             if n is not None:
+                self._last_table = self._table(a, b, n, start)
                 return n, a[n], b[n]
             if stop >= self.max_terms:
                 return None
@@ -389,8 +402,9 @@ class Prover:
         if n is not None:
             fd = {"n": self._exponent(n), "left": _frac_str(a[n]), "right": _frac_str(b[n])}
             msg = f"coefficients of q^{self._exp(n)} differ: left {fd['left']}, right {fd['right']}"
+            table = self._table(a, b, n, start)
             if rel == "=":
-                return Outcome("refuted", "prefix", msg, space, "expansion", None, terms, fd)
+                return Outcome("refuted", "prefix", msg, space, "expansion", None, terms, fd, table=table)
             return Outcome(
                 "proved",
                 "prefix",
@@ -400,6 +414,7 @@ class Prover:
                 None,
                 terms,
                 fd,
+                table=table,
             )
         if not exact_range:
             # A printed polynomial with no \cdots and no O(...): it claims every coefficient.
