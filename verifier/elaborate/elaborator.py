@@ -160,11 +160,15 @@ class Elaborator:
         if isinstance(node, ast.BinOp):
             if node.op in "+-":
                 return self._sum_of(_summands(node), text)
+            if node.op == "*":
+                return self._product(node, text, src)
             left = self.expr(node.left, text)
             right = self.expr(node.right, text)
-            if node.op == "*":
-                return _mul(left, right, src, node)
             return _div(left, right, src, node)
+        if isinstance(node, ast.Prime):
+            return _deriv(self.expr(node.operand, text), src, node)
+        if isinstance(node, ast.Bracket):
+            return self._bracket(node, text, src)
         if isinstance(node, ast.Power):
             return _pow(self.expr(node.base, text), node.exponent, src, node)
         if isinstance(node, ast.Dots | ast.BigO):
@@ -175,6 +179,70 @@ class Elaborator:
                 node,
             )
         raise _err("syntax", "this construction has no meaning here", "", node)
+
+    def _product(self, node: ast.BinOp, text: str, src: str) -> ir.Expr:
+        """A product, where the operators D, D^r and partial_k apply to the factor after them."""
+        factors = _factors(node)
+        out: ir.Expr | None = None
+        i = 0
+        while i < len(factors):
+            f = factors[i]
+            op = _operator(f)
+            if op is not None:
+                if i + 1 == len(factors):
+                    raise _err("syntax", "a derivative needs something to act on", "write D f or D(f + g)", f)
+                operand = self.expr(factors[i + 1], text)
+                piece = self._apply(op, operand, text[f.span[0] : factors[i + 1].span[1]], f)
+                i += 2
+            else:
+                piece = self.expr(f, text)
+                i += 1
+            out = piece if out is None else _mul(out, piece, src, node)
+        assert out is not None
+        return out
+
+    def _apply(self, op: tuple[str, int | Fraction | None], operand: ir.Expr, src: str, node: ast.Node) -> ir.Expr:
+        kind, value = op
+        if kind == "D":
+            for _ in range(int(value or 1)):
+                operand = _deriv(operand, src, node)
+            return operand
+        # Serre derivative theta_k f = D f - (k/12) E_2 f (MATH.md §1.5).
+        k = Fraction(value) if value is not None else operand.typ.weight
+        if k is None:
+            raise _err("syntax", "the weight of the Serre derivative is not known", "write \\partial_k f", node)
+        if operand.typ.weight is not None and operand.typ.weight != k:
+            raise _err(
+                "weight-mismatch",
+                f"the Serre derivative of weight {k} is applied to a form of weight {operand.typ.weight}",
+                "use the weight of the form",
+                node,
+            )
+        e2 = _atom(AtomInfo("E2", Fraction(2), 1), Fraction(1), "E_2", node)
+        correction = _mul(ir.Const(ir.Typ(Fraction(0)), "", -k / 12), _mul(e2, operand, src, node), src, node)
+        return _add(_deriv(operand, src, node), correction, 1, node)
+
+    def _bracket(self, node: ast.Bracket, text: str, src: str) -> ir.Expr:
+        """[f, g]_n = sum_{r+s=n} (-1)^r C(n+k-1, s) C(n+l-1, r) D^r f D^s g (MATH.md §1.6)."""
+        f = self.expr(node.left, text)
+        g = self.expr(node.right, text)
+        k, wg = f.typ.weight, g.typ.weight
+        if k is None or wg is None or f.typ.printed or g.typ.printed:
+            raise _err("syntax", "a Rankin-Cohen bracket needs two forms of known weight", "", node)
+        n = node.n
+        total: ir.Expr | None = None
+        for r in range(n + 1):
+            s = n - r
+            c = (-1) ** r * _binomial(n + k - 1, s) * _binomial(n + wg - 1, r)
+            df, dg = f, g
+            for _ in range(r):
+                df = _deriv(df, src, node)
+            for _ in range(s):
+                dg = _deriv(dg, src, node)
+            term = _mul(ir.Const(ir.Typ(Fraction(0)), "", c), _mul(df, dg, src, node), src, node)
+            total = term if total is None else _add(total, term, 1, node)
+        assert total is not None
+        return total
 
     def _name(self, node: ast.Name, src: str) -> ir.Expr:
         name = normal_name(node.text)
@@ -214,6 +282,54 @@ class Elaborator:
         if len(name) > 1 and name[1:2] == "_" and not name.endswith("}"):
             hint += f"; note that in LaTeX {name}2 reads as {name} followed by 2 (write {name[:2]}{{..}})"
         raise _err("unknown-symbol", f"unknown symbol {name}", hint, node)
+
+
+def _factors(node: ast.Node) -> list[ast.Node]:
+    """The factors of a left-nested product chain, in order."""
+    if isinstance(node, ast.BinOp) and node.op == "*":
+        return _factors(node.left) + _factors(node.right)
+    return [node]
+
+
+_SERRE = re.compile(r"^\\partial(?:_(?:\{\s*(\d+(?:/\d+)?)\s*\}|(\d)))?$")
+
+
+def _operator(node: ast.Node) -> tuple[str, int | Fraction | None] | None:
+    """D, D^r (r >= 1), \\partial or \\partial_k: a differential operator; None otherwise."""
+    if isinstance(node, ast.Name) and node.arg is None:
+        if node.text == "D":
+            return ("D", 1)
+        m = _SERRE.match(node.text.replace(" ", ""))
+        if m:
+            value = m.group(1) or m.group(2)
+            return ("serre", Fraction(value) if value else None)
+    if (
+        isinstance(node, ast.Power)
+        and isinstance(node.base, ast.Name)
+        and node.base.text == "D"
+        and node.exponent.denominator == 1
+        and node.exponent >= 1
+    ):
+        return ("D", int(node.exponent))
+    return None
+
+
+def _binomial(x: Fraction, m: int) -> Fraction:
+    """x(x-1)...(x-m+1)/m!, also for half-integral x (MATH.md §1.6)."""
+    out = Fraction(1)
+    for i in range(m):
+        out = out * (x - i) / (i + 1)
+    return out
+
+
+def _deriv(e: ir.Expr, src: str, node: ast.Node) -> ir.Expr:
+    """D e: weight + 2, E_2-depth + 1; a quotient's denominator is squared."""
+    t = e.typ
+    if isinstance(e, ir.Const):
+        return ir.Const(ir.Typ(None), src, Fraction(0))
+    weight = None if t.weight is None else t.weight + 2
+    typ = ir.Typ(weight, t.depth + 1, t.level, t.den_weight * 2, t.printed, t.has_pole)
+    return ir.Deriv(_check_size(typ, node), src, e)
 
 
 def _scale_of(node: ast.Name) -> Fraction:
@@ -462,6 +578,9 @@ def degree(expr: ir.Expr) -> Fraction:
     if isinstance(expr, ir.Quotient):
         assert expr.left is not None
         return degree(expr.left)
+    if isinstance(expr, ir.Deriv):
+        assert expr.base is not None
+        return degree(expr.base)
     if isinstance(expr, ir.Power):
         assert expr.base is not None
         return degree(expr.base) * max(expr.exponent, 0)

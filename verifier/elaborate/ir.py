@@ -100,6 +100,13 @@ class Power(Expr):
 
 
 @dataclass(frozen=True)
+class Deriv(Expr):
+    """``D base`` with D = q d/dq = (2 pi i)^{-1} d/dtau (MATH.md §1.5)."""
+
+    base: Expr | None = None
+
+
+@dataclass(frozen=True)
 class Side:
     """One side of a claim: an expression and, for printed expansions, where it stops.
 

@@ -67,6 +67,11 @@ def rescale_expr(expr: ir.Expr, t: int) -> ir.Expr:
         if expr.key == "eta":
             return dataclasses.replace(expr, params=tuple((d * t, r) for d, r in expr.params))
         return dataclasses.replace(expr, scale=Fraction(expr.scale) * t)
+    if isinstance(expr, ir.Deriv):
+        # (Df)(q^T) = T^{-1} D(f(q^T)): the claim in q^T carries a factor 1/T per derivative.
+        assert expr.base is not None
+        inner = dataclasses.replace(expr, base=rescale_expr(expr.base, t))
+        return ir.Product(expr.typ, expr.text, ir.Const(ir.Typ(Fraction(0)), f"1/{t}", Fraction(1, t)), inner)
     changes: dict[str, Any] = {}
     for name in ("left", "right", "base"):
         child = getattr(expr, name, None)

@@ -71,6 +71,22 @@ class Power(Node):
 
 
 @dataclass(frozen=True)
+class Prime(Node):
+    """``f'``: the derivative D = q d/dq of ``operand``."""
+
+    operand: Node
+
+
+@dataclass(frozen=True)
+class Bracket(Node):
+    """The Rankin–Cohen bracket ``[left, right]_n``."""
+
+    left: Node
+    right: Node
+    n: int
+
+
+@dataclass(frozen=True)
 class Dots(Node):
     """``\\cdots`` in a printed expansion."""
 
@@ -110,8 +126,10 @@ def walk(node: Node) -> list[Node]:
 
 def children(node: Node) -> tuple[Node, ...]:
     """The direct children of ``node``."""
-    if isinstance(node, BinOp):
+    if isinstance(node, BinOp | Bracket):
         return (node.left, node.right)
+    if isinstance(node, Prime):
+        return (node.operand,)
     if isinstance(node, Neg):
         return (node.operand,)
     if isinstance(node, Power):

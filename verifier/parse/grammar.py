@@ -291,6 +291,15 @@ def _make_transformer() -> Any:
         def name_arg(self, meta: Any, items: list[Any]) -> ast.Name:
             return ast.Name(_span(meta), str(items[0]), _normal_arg(str(items[1])))
 
+        def prime(self, meta: Any, items: list[Any]) -> ast.Prime:
+            return ast.Prime(_span(meta), items[0])
+
+        def bracket(self, meta: Any, items: list[Any]) -> ast.Bracket:
+            return ast.Bracket(_span(meta), items[0], items[1], items[2])
+
+        def bracket_index(self, meta: Any, items: list[Any]) -> int:
+            return int(str(items[0]))
+
         def dots(self, meta: Any, items: list[Any]) -> ast.Dots:
             return ast.Dots(_span(meta))
 

@@ -106,6 +106,9 @@ def laurent(expr: ir.Expr, prec: int, table: AtomTable) -> QSeries:
             den = laurent(expr.right, need, table)
         num = laurent(expr.left, prec + max(den.valuation, 0), table)
         return num / den
+    if isinstance(expr, ir.Deriv):
+        assert expr.base is not None
+        return laurent(expr.base, prec, table).qderiv()
     if isinstance(expr, ir.Power):
         assert expr.base is not None
         base = laurent(expr.base, prec, table)
@@ -218,6 +221,14 @@ def graded_fraction(expr: ir.Expr, prec: int, table: AtomTable, chars: Character
         an, ad = graded_fraction(expr.left, prec, table, chars)
         bn, bd = graded_fraction(expr.right, prec, table, chars)
         return graded_mul(an, bd), graded_mul(ad, bn)
+    if isinstance(expr, ir.Deriv):
+        assert expr.base is not None
+        n, d = graded_fraction(expr.base, prec, table, chars)
+        if _is_one(d):
+            return graded_derivative(n, prec, table), one
+        # Quotient rule: D(N/Q) = (DN Q - N DQ) / Q^2.
+        dn, dd = graded_derivative(n, prec, table), graded_derivative(d, prec, table)
+        return graded_add(graded_mul(dn, d), graded_mul(n, dd), -1), graded_mul(d, d)
     if isinstance(expr, ir.Power):
         assert expr.base is not None
         n, d = graded_fraction(expr.base, prec, table, chars)
@@ -226,6 +237,29 @@ def graded_fraction(expr: ir.Expr, prec: int, table: AtomTable, chars: Character
             n, d, e = d, n, -e
         return _g_pow(n, e, prec), _g_pow(d, e, prec)
     raise TypeError(f"{type(expr).__name__} has no modular meaning")
+
+
+def graded_derivative(g: Graded, prec: int, table: AtomTable) -> Graded:
+    """D applied to sum f E_2^j, piece by piece (MATH.md §7.2).
+
+    With k the weight of f and theta_k f = Df - (k/12) E_2 f (the Serre derivative, modular
+    of weight k + 2, same character):
+        D(f E_2^j) = (theta_k f) E_2^j + ((k + j)/12) f E_2^{j+1} - (j/12) E_4 f E_2^{j-1}.
+    """
+    e2 = table.scaled("E2", (), 1, prec)
+    e4 = table.scaled("E4", (), 1, prec)
+    out: Graded = {}
+
+    def put(key: Key, s: QSeries) -> None:
+        out[key] = out[key] + s if key in out else s
+
+    for (w, j, kernel), f in g.items():
+        k = w - 2 * j
+        put((w + 2, j, kernel), f.qderiv() - (e2 * f).scale(k / 12))
+        put((w + 2, j + 1, kernel), f.scale((k + j) / 12))
+        if j:
+            put((w + 2, j - 1, kernel), (e4 * f).scale(-Fraction(j, 12)))
+    return out
 
 
 def _graded_atom(atom: ir.Atom, prec: int, table: AtomTable, chars: CharacterOf) -> Graded:

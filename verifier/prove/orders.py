@@ -71,6 +71,11 @@ def fraction_bounds(expr: ir.Expr, level: int) -> tuple[Bounds, Bounds]:
         an, ad = fraction_bounds(expr.left, level)
         bn, bd = fraction_bounds(expr.right, level)
         return _add(an, bd), _add(ad, bn)
+    if isinstance(expr, ir.Deriv):
+        # theta_k f, f and E_4 f have at least the orders of f at every cusp.
+        assert expr.base is not None
+        n, d = fraction_bounds(expr.base, level)
+        return _add(n, d), _add(d, d)
     if isinstance(expr, ir.Power):
         assert expr.base is not None
         n, d = fraction_bounds(expr.base, level)

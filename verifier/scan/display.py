@@ -32,6 +32,12 @@ _INNER_ENV = re.compile(r"\\(begin|end)\s*\{(aligned|gathered|split|multlined)\}
 _MATHCAL_O = re.compile(r"\\(mathcal|mathrm|mathit)\s*(\{\s*O\s*\}|O)")
 _FRAC_DIGITS = re.compile(r"\\([dt]?frac)\s*(\d)\s*(\d)")
 _EMPTY_GROUP = re.compile(r"\{\s*\}")
+# The derivative D = q d/dq = (2 pi i)^{-1} d/dtau, however it is spelled (MATH.md §1.5).
+_DERIVATIVE = re.compile(
+    r"q\s*\\[dt]?frac\s*\{\s*d\s*\}\s*\{\s*d\s*q\s*\}"
+    r"|\\[dt]?frac\s*\{\s*1\s*\}\s*\{\s*2\s*\\pi\s*i\s*\}\s*\\[dt]?frac\s*\{\s*d\s*\}\s*\{\s*d\s*\\tau\s*\}"
+    r"|\\[dt]?frac\s*\{\s*1\s*\}\s*\{\s*2\s*\\pi\s*i\s*\}\s*\\[dt]?frac\s*\{\s*d\s*\}\s*\{\s*d\s*z\s*\}"
+)
 _RELATION = re.compile(r"=|\\neq?(?![A-Za-z])")
 _TRAILING = re.compile(r"(?<![.])[.,;]\s*$")
 _NOT_EQUAL = re.compile(r"\\not\s*=")
@@ -131,6 +137,7 @@ def normalise_row(row: MappedText, macros: dict[str, macro_mod.Macro]) -> Row:
     text = text.blank(_LABEL).blank(_TAG).blank(_HSPACE).blank(_DROP).blank(_EMPTY_GROUP)
     text = text.sub(_SIZED, _sized_delimiter)
     text = text.sub(_MATHCAL_O, lambda m: "O")
+    text = text.sub(_DERIVATIVE, lambda m: "D " + " " * (len(m.group(0)) - 2))
     text = text.sub(_FRAC_DIGITS, lambda m: f"\\{m.group(1)}{{{m.group(2)}}}{{{m.group(3)}}}")
     text = text.blank(_TRAILING)
     text = text.sub(_NOT_EQUAL, lambda m: "\\neq")

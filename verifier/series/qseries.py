@@ -188,6 +188,11 @@ class QSeries:
     def __truediv__(self, other: QSeries) -> QSeries:
         return self * other.inverse()
 
+    def qderiv(self) -> QSeries:
+        """``D = q d/dq``: the coefficient of q^n is multiplied by n."""
+        coeffs = self.poly.coeffs()
+        return QSeries(fmpq_poly([c * (self.offset + i) for i, c in enumerate(coeffs)]), self.offset, self.prec)
+
     def inflate(self, d: int) -> QSeries:
         """``f(d tau)``: the series with ``q`` replaced by ``q^d``."""
         if d == 1:
