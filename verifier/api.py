@@ -15,6 +15,11 @@ from pathlib import Path
 from typing import Any
 
 from verifier import __version__
+from verifier.arith.elaborate import ArithmeticError_, to_arith, uses_arithmetic
+from verifier.arith.terms import Fun as tFun
+from verifier.arith.terms import Var as tVar
+from verifier.arith.terms import free_variables
+from verifier.arith.values import Values
 from verifier.budget import DEFAULT_MAX_SECONDS, decide_all
 from verifier.diagnostics import Diagnostic
 from verifier.elaborate import ir
@@ -28,7 +33,8 @@ from verifier.options import parse_group, parse_nome, parse_weight
 from verifier.parse import ast
 from verifier.parse.grammar import ParseFailure, parse_claim, parse_definition, parse_expression
 from verifier.parse.spaces import dimension_prefix, parse_space, split_membership
-from verifier.prove.evaluate import AtomTable
+from verifier.prove.arithmetic import ArithmeticClaim, decide_arithmetic
+from verifier.prove.evaluate import AtomTable, laurent_to
 from verifier.prove.membership import decide_dimension, decide_membership
 from verifier.prove.prover import DEFAULT_MAX_TERMS, Outcome, Prover, claim_level
 from verifier.scan import ScannedDocument, scan_path, scan_text
@@ -291,7 +297,7 @@ def _block(
     count = 0
     previous_side: MappedText | None = None
     for row in block.rows:
-        text = row.text
+        text, modulus, start_n = _qualifiers(row.text, block.options)
         stripped = text.text.lstrip()
         continuation = stripped.startswith(("=", "\\ne", "\\not="))
         offset = 0
@@ -338,7 +344,9 @@ def _block(
             start = left_node.span[0]
             if continuation and i == 0 and previous_side is not None:
                 start = offset + (len(text.text) - offset - len(stripped))
-            pending_claim = _claim(text, left_node, right_node, rel, start, row, claim_name, block, elaborator)
+            pending_claim = _claim(
+                text, left_node, right_node, rel, start, row, claim_name, block, elaborator, modulus, start_n
+            )
             if isinstance(pending_claim, ClaimResult):
                 report.claims.append(pending_claim)
             else:
@@ -358,6 +366,8 @@ def _claim(
     name: str | None,
     block: ClaimBlock,
     elaborator: Elaborator,
+    modulus: int | None = None,
+    start_n: int | None = None,
 ) -> _Pending | ClaimResult:
     loc = text.location(start)
     end = text.location(right_node.span[1] - 1)
@@ -365,6 +375,25 @@ def _claim(
         text.source_slice(left_node.span[0], right_node.span[1]).replace("&", " ").replace("\\\\", " ").split()
     )
     kind = "equality" if rel == "=" else "inequality"
+    if rel == "≡" and modulus is None:
+        return _error(
+            loc,
+            "syntax",
+            "a congruence needs its modulus",
+            "write \\pmod{M}",
+            source,
+            name,
+            row.label,
+            "congruence",
+            end,
+        )
+    if modulus is not None and rel == "=":
+        rel = "≡"
+    forms, matrices = elaborator.definitions, elaborator.matrices
+    if rel == "≡" or any(uses_arithmetic(n, forms, matrices) for n in (left_node, right_node)):
+        return _arithmetic_claim(
+            text, left_node, right_node, rel, loc, end, source, row, name, elaborator, modulus, start_n
+        )
     nome = parse_nome(block.options.get("nome", ""))
     if nome is None:
         return _error(
@@ -403,6 +432,121 @@ def _claim(
         return _error(block.tag, code, message, hint, source, name, row.label, kind, end)
     result = ClaimResult(loc, end, name, row.label, source, Outcome("error", kind, "not decided"))
     return _Pending(result, left, right, rel, Fraction(t) * nome, block.options.get("character"))
+
+
+_MODULUS = re.compile(
+    r"\\pmod\s*\{\s*(\d+)\s*\}|\\pmod\s*(\d+)|\(\s*\\(?:bmod|mod)\s*\{?\s*(\d+)\s*\}?\s*\)"
+    r"|\\(?:bmod|mod)\s*\{?\s*(\d+)\s*\}?"
+)
+_RANGE = re.compile(
+    r"(?:\\text\s*\{[^{}]*\}\s*|\\quad\s*|,\s*)*\(?\s*(?:\\text\s*\{\s*for(?:\s+all)?\s*\}\s*)?"
+    r"([a-z])\s*(?:\\geq?|>=|\\geqslant)\s*(-?\d+)\s*\)?\s*[.,;]?\s*$"
+)
+_RANGE_OPTION = re.compile(r"^\s*([a-z])\s*(?:\\geq?|>=|\\geqslant)\s*(-?\d+)\s*$")
+
+
+def _qualifiers(text: MappedText, options: dict[str, str]) -> tuple[MappedText, int | None, int | None]:
+    """Take ``\\pmod{M}`` and a trailing range ``(n \\geq 1)`` out of a claim's text."""
+    modulus = None
+    m = _MODULUS.search(text.text)
+    if m:
+        modulus = int(next(g for g in m.groups() if g))
+        text = MappedText(
+            text.text[: m.start()] + " " * (m.end() - m.start()) + text.text[m.end() :], text.origins, text.source
+        )
+    start = None
+    r = _RANGE.search(text.text)
+    if (r and "=" in text.text[: r.start()]) or (r and "\\equiv" in text.text[: r.start()]):
+        assert r is not None
+        start = int(r.group(2))
+        text = MappedText(
+            text.text[: r.start()] + " " * (r.end() - r.start()) + text.text[r.end() :], text.origins, text.source
+        )
+    if "for" in options:
+        o = _RANGE_OPTION.match(options["for"])
+        if o:
+            start = int(o.group(2))
+    return text, modulus, start
+
+
+def _arithmetic_claim(
+    text: MappedText,
+    left_node: ast.Node,
+    right_node: ast.Node,
+    rel: str,
+    loc: Location,
+    end: Location,
+    source: str,
+    row: Row,
+    name: str | None,
+    elaborator: Elaborator,
+    modulus: int | None,
+    start_n: int | None,
+) -> _Pending | ClaimResult:
+    """A claim about arithmetic functions (or a congruence), decided by :mod:`verifier.prove.arithmetic`."""
+    kind = "congruence" if modulus is not None else "arithmetic"
+    forms, matrices = elaborator.definitions, elaborator.matrices
+    sides: list[Any] = []
+    for node in (left_node, right_node):
+        if not uses_arithmetic(node, forms, matrices) and rel == "≡":
+            # A form in a congruence stands for its sequence of coefficients.
+            side = elaborator.side(node, text.text)
+            if isinstance(side, Problem):
+                return _error(
+                    text.location(side.span[0]), side.code, side.message, side.hint, source, name, row.label, kind, end
+                )
+            if side.printed:
+                return _error(
+                    loc,
+                    "unsupported",
+                    "congruences with printed expansions are not supported",
+                    "",
+                    source,
+                    name,
+                    row.label,
+                    kind,
+                    end,
+                )
+            sides.append(t_Fun("coef", side.expr))
+            continue
+        try:
+            sides.append(to_arith(node, text.text, forms, matrices, lambda f: f))
+        except ArithmeticError_ as exc:
+            return _error(
+                text.location(exc.span[0]), "unsupported", str(exc), exc.hint, source, name, row.label, kind, end
+            )
+    free = set().union(*(free_variables(s) for s in sides))
+    if len(free) > 1:
+        return _error(
+            loc,
+            "syntax",
+            f"the claim has several free variables ({', '.join(sorted(free))})",
+            "a claim for all n has one free variable",
+            source,
+            name,
+            row.label,
+            kind,
+            end,
+        )
+    var = next(iter(free)) if free else None
+    if var is None and any(isinstance(s, tFun) and s.name == "coef" and isinstance(s.arg, tVar) for s in sides):
+        var = "n"
+    start = start_n if start_n is not None else (0 if rel == "≡" and not free else 1)
+    claim = ArithmeticClaim(sides[0], sides[1], rel, var, start, modulus)
+    result = ClaimResult(loc, end, name, row.label, source, Outcome("error", kind, "not decided"))
+
+    def task(prover: Prover) -> Outcome:
+        def series_of(form: ir.Expr, prec: int) -> Any:
+            return laurent_to(form, prec, prover.table, prover.max_terms * 2)
+
+        return decide_arithmetic(prover, claim, Values(series_of))
+
+    return _Pending(result, _NO_SIDE, _NO_SIDE, "=", task=task)
+
+
+def t_Fun(name: str, form: ir.Expr) -> tFun:
+    """The coefficient sequence n -> a_n(form) as an arithmetic function of n."""
+    return tFun(f"a({form.text})", name, None, tVar("n", "n"), form)
 
 
 def _space_claim(

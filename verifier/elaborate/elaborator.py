@@ -169,7 +169,19 @@ class Elaborator:
             return _deriv(self.expr(node.operand, text), src, node)
         if isinstance(node, ast.Bracket):
             return self._bracket(node, text, src)
+        if isinstance(node, ast.BigSum):
+            return self._generating_sum(node, text)
+        if isinstance(node, ast.Call):
+            # name(expr) for a form is a product: E_4(E_6 + 1), q(1 - q).
+            return _mul(self._name(ast.Name(node.name_span, node.name), src), self.expr(node.argument, text), src, node)
         if isinstance(node, ast.Power):
+            if not isinstance(node.exponent, Fraction):
+                raise _err(
+                    "unsupported",
+                    "a power with a variable exponent belongs in an arithmetic expression or after q in a sum",
+                    "write q^n inside \\sum_{n \\ge 1} a(n) q^n",
+                    node,
+                )
             return _pow(self.expr(node.base, text), node.exponent, src, node)
         if isinstance(node, ast.Dots | ast.BigO):
             raise _err(
@@ -221,6 +233,47 @@ class Elaborator:
         e2 = _atom(AtomInfo("E2", Fraction(2), 1), Fraction(1), "E_2", node)
         correction = _mul(ir.Const(ir.Typ(Fraction(0)), "", -k / 12), _mul(e2, operand, src, node), src, node)
         return _add(_deriv(operand, src, node), correction, 1, node)
+
+    def _generating_sum(self, node: ast.BigSum, text: str) -> ir.Expr:
+        """``\\sum_{n \\ge L} a(n) q^n`` (L = 0 or 1) as a form: its generating function (MATH.md §8)."""
+        from verifier.arith.elaborate import ArithmeticError_, to_arith
+        from verifier.arith.genfun import Untranslatable, add, const, generating_function
+        from verifier.arith.values import NotEvaluable, Values
+
+        if node.kind != "at_least" or node.lower is None:
+            raise _err("unsupported", "a finite sum is an arithmetic expression, not a form", "", node)
+        body_factors = _factors(node.body)
+        qpow = [
+            f
+            for f in body_factors
+            if isinstance(f, ast.Power)
+            and isinstance(f.base, ast.Name)
+            and f.base.text == "q"
+            and isinstance(f.exponent, ast.Name)
+            and f.exponent.text == node.var
+        ]
+        if len(qpow) != 1:
+            raise _err("unsupported", f"a generating-function sum needs the factor q^{node.var}", "", node)
+        rest = [f for f in body_factors if f is not qpow[0]]
+        try:
+            lower = self.expr(node.lower, text)
+            if not isinstance(lower, ir.Const) or lower.value not in (0, 1):
+                raise _err("unsupported", "generating-function sums start at n = 0 or n = 1", "", node)
+            coefficient: Any = rest[0] if rest else ast.Number(node.span, 1)
+            arith = to_arith(coefficient, text, self.definitions, self.matrices, lambda f: f)
+            for f in rest[1:]:
+                arith = _arith_mul(arith, to_arith(f, text, self.definitions, self.matrices, lambda g: g))
+            values = Values()
+            g = generating_function(arith, node.var, values)
+            if lower.value == 1:
+                c0 = values.value(arith, {node.var: 0})
+                if c0:
+                    g = add(g, const(c0), -1)
+            return g
+        except ArithmeticError_ as exc:
+            raise ElaborationError(Problem("unsupported", str(exc), exc.hint, exc.span)) from exc
+        except (Untranslatable, NotEvaluable) as exc:
+            raise _err("unsupported", f"no modular generating function: {exc}", "", node) from exc
 
     def _bracket(self, node: ast.Bracket, text: str, src: str) -> ir.Expr:
         """[f, g]_n = sum_{r+s=n} (-1)^r C(n+k-1, s) C(n+l-1, r) D^r f D^s g (MATH.md §1.6)."""
@@ -284,6 +337,12 @@ class Elaborator:
         raise _err("unknown-symbol", f"unknown symbol {name}", hint, node)
 
 
+def _arith_mul(a: Any, b: Any) -> Any:
+    from verifier.arith import terms as t
+
+    return t.Bin(f"{a.text} {b.text}", "*", a, b)
+
+
 def _factors(node: ast.Node) -> list[ast.Node]:
     """The factors of a left-nested product chain, in order."""
     if isinstance(node, ast.BinOp) and node.op == "*":
@@ -307,6 +366,7 @@ def _operator(node: ast.Node) -> tuple[str, int | Fraction | None] | None:
         isinstance(node, ast.Power)
         and isinstance(node.base, ast.Name)
         and node.base.text == "D"
+        and isinstance(node.exponent, Fraction)
         and node.exponent.denominator == 1
         and node.exponent >= 1
     ):
@@ -328,7 +388,7 @@ def _deriv(e: ir.Expr, src: str, node: ast.Node) -> ir.Expr:
     if isinstance(e, ir.Const):
         return ir.Const(ir.Typ(None), src, Fraction(0))
     weight = None if t.weight is None else t.weight + 2
-    typ = ir.Typ(weight, t.depth + 1, t.level, t.den_weight * 2, t.printed, t.has_pole)
+    typ = ir.Typ(weight, t.depth + 1, t.level, t.den_weight * 2, t.printed, t.has_pole, t.mixed)
     return ir.Deriv(_check_size(typ, node), src, e)
 
 
@@ -380,7 +440,12 @@ def _big_o_exponent(node: ast.BigO) -> Fraction:
     inner = node.inner
     if isinstance(inner, ast.Name) and inner.text == "q":
         return Fraction(1)
-    if isinstance(inner, ast.Power) and isinstance(inner.base, ast.Name) and inner.base.text == "q":
+    if (
+        isinstance(inner, ast.Power)
+        and isinstance(inner.base, ast.Name)
+        and inner.base.text == "q"
+        and isinstance(inner.exponent, Fraction)
+    ):
         return inner.exponent
     raise _err("bad-expansion", "O(...) must contain a power of q", "write O(q^{m})", node)
 
@@ -412,8 +477,12 @@ def _neg(e: ir.Expr) -> ir.Expr:
 
 def _add(a: ir.Expr, b: ir.Expr, sign: int, node: ast.Node) -> ir.Expr:
     ta, tb = a.typ, b.typ
+    mixed = ta.mixed or tb.mixed
     if ta.printed or tb.printed:
         weight = None
+    elif mixed:
+        # A generating function already mixes weights; the proof splits them anyway.
+        weight = max((w for w in (ta.weight, tb.weight) if w is not None), default=None)
     elif ta.weight is None:
         weight = tb.weight
     elif tb.weight is None or ta.weight == tb.weight:
@@ -434,6 +503,7 @@ def _add(a: ir.Expr, b: ir.Expr, sign: int, node: ast.Node) -> ir.Expr:
         ta.den_weight + tb.den_weight,
         ta.printed or tb.printed,
         ta.has_pole or tb.has_pole,
+        mixed,
     )
     op = "+" if sign > 0 else "-"
     return ir.Sum(typ, f"{a.text} {op} {b.text}", a, b, sign)
@@ -462,6 +532,7 @@ def _mul(a: ir.Expr, b: ir.Expr, src: str, node: ast.Node) -> ir.Expr:
         ta.den_weight + tb.den_weight,
         printed,
         ta.has_pole or tb.has_pole,
+        ta.mixed or tb.mixed,
     )
     return ir.Product(_check_size(typ, node), src, a, b)
 
@@ -493,6 +564,7 @@ def _div(a: ir.Expr, b: ir.Expr, src: str, node: ast.Node) -> ir.Expr:
         ta.den_weight + tb.den_weight + den,
         printed,
         ta.has_pole or not isinstance(b, ir.Const) or tb.has_pole,
+        ta.mixed or tb.mixed,
     )
     if isinstance(a, ir.Const) and isinstance(b, ir.Const):
         return ir.Const(typ, src, a.value / b.value)
@@ -523,12 +595,12 @@ def _pow(base: ir.Expr, exponent: Fraction | int, src: str, node: ast.Node) -> i
         return ir.Const(ir.Typ(None if value == 0 else Fraction(0)), src, value)
     weight = None if tb.weight is None else tb.weight * e
     if e >= 0:
-        typ = ir.Typ(weight, tb.depth * e, tb.level, tb.den_weight * e, tb.printed, tb.has_pole)
+        typ = ir.Typ(weight, tb.depth * e, tb.level, tb.den_weight * e, tb.printed, tb.has_pole, tb.mixed)
     else:
         if tb.printed:
             raise _err("unsupported", "negative powers of a printed expansion are not supported", "", node)
         den = (tb.weight or Fraction(0)) * (-e) + tb.den_weight * (-e)
-        typ = ir.Typ(weight, tb.depth * (-e), tb.level, den, False, True)
+        typ = ir.Typ(weight, tb.depth * (-e), tb.level, den, False, True, tb.mixed)
     return ir.Power(_check_size(typ, node), src, base, e)
 
 

@@ -29,6 +29,9 @@ class Typ:
     den_weight: Fraction = Fraction(0)
     printed: bool = False
     has_pole: bool = False
+    # A sum of several weights (a generating function such as (E_4 - 1)/240); ``weight``
+    # is then the largest of them.  Proofs split it by weight (MATH.md §7.3).
+    mixed: bool = False
 
 
 @dataclass(frozen=True)

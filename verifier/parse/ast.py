@@ -64,10 +64,11 @@ class Neg(Node):
 
 @dataclass(frozen=True)
 class Power(Node):
-    """``base^exponent``; the exponent is an integer except in ``q^{1/24}``."""
+    """``base^exponent``: a rational constant (``q^{1/24}``, ``E_4^2``), or an expression
+    of summation variables (``(-1)^{n+d}``, ``q^n``)."""
 
     base: Node
-    exponent: Fraction
+    exponent: Fraction | Node
 
 
 @dataclass(frozen=True)
@@ -84,6 +85,27 @@ class Bracket(Node):
     left: Node
     right: Node
     n: int
+
+
+@dataclass(frozen=True)
+class Call(Node):
+    """``name(argument)``: an arithmetic function (``\\sigma_3(n)``) or, for a form, a product."""
+
+    name: str
+    name_span: Span
+    argument: Node
+
+
+@dataclass(frozen=True)
+class BigSum(Node):
+    """``\\sum`` over ``var``: ``kind`` is ``"from"`` (var = lower .. upper), ``"divides"``
+    (var | target) or ``"at_least"`` (var >= lower); ``upper`` None means no upper limit."""
+
+    kind: str
+    var: str
+    lower: Node | None
+    upper: Node | None
+    body: Node
 
 
 @dataclass(frozen=True)
@@ -130,6 +152,10 @@ def children(node: Node) -> tuple[Node, ...]:
         return (node.left, node.right)
     if isinstance(node, Prime):
         return (node.operand,)
+    if isinstance(node, Call):
+        return (node.argument,)
+    if isinstance(node, BigSum):
+        return tuple(n for n in (node.lower, node.upper, node.body) if n is not None)
     if isinstance(node, Neg):
         return (node.operand,)
     if isinstance(node, Power):

@@ -176,6 +176,25 @@ def _hint_for_token(exc: Any) -> str:
     return "check the expression around this point"
 
 
+def _constant(node: ast.Node) -> Fraction | None:
+    """The value of an exponent made of numbers only (folded at parse time), else None."""
+    if isinstance(node, ast.Number):
+        return Fraction(node.value)
+    if isinstance(node, ast.Neg):
+        inner = _constant(node.operand)
+        return None if inner is None else -inner
+    if isinstance(node, ast.BinOp) and node.op in "+-*/":
+        a, b = _constant(node.left), _constant(node.right)
+        if a is None or b is None:
+            return None
+        if node.op == "/":
+            if b == 0:
+                raise _BadNumber("an exponent has denominator 0", node.span[0])
+            return a / b
+        return a + b if node.op == "+" else a - b if node.op == "-" else a * b
+    return None
+
+
 def _span(meta: Any) -> ast.Span:
     return (meta.start_pos, meta.end_pos)
 
@@ -198,7 +217,7 @@ def _make_transformer() -> Any:
 
         def relation(self, meta: Any, items: list[Any]) -> ast.Relation:
             sides = tuple(items[0::2])
-            rels = tuple("=" if str(r) == "=" else "!=" for r in items[1::2])
+            rels = tuple({"=": "=", "\\equiv": "≡"}.get(str(r), "!=") for r in items[1::2])
             return ast.Relation(_span(meta), sides, rels)
 
         def rel(self, meta: Any, items: list[Any]) -> str:
@@ -261,23 +280,44 @@ def _make_transformer() -> Any:
         def exp_digit(self, meta: Any, items: list[Any]) -> Fraction:
             return Fraction(int(str(items[0])))
 
-        def exponent(self, meta: Any, items: list[Any]) -> Fraction:
-            return Fraction(items[0])
+        def call(self, meta: Any, items: list[Any]) -> ast.Call:
+            return ast.Call(_span(meta), str(items[0]), _tok_span(items[0]), items[1])
 
-        def num_int(self, meta: Any, items: list[Any]) -> Fraction:
-            return Fraction(int(str(items[0])))
+        def big_sum(self, meta: Any, items: list[Any]) -> ast.BigSum:
+            kind, var, lower, upper = items[0]
+            return ast.BigSum(_span(meta), kind, var, lower, upper, items[1])
 
-        def num_neg(self, meta: Any, items: list[Any]) -> Fraction:
-            return -Fraction(int(str(items[0])))
+        def sum_op(self, meta: Any, items: list[Any]) -> tuple[str, str, ast.Node | None, ast.Node | None]:
+            kind, var, lower = items[0]
+            upper = items[1] if len(items) > 1 else None
+            return kind, var, lower, upper
 
-        def num_frac(self, meta: Any, items: list[Any]) -> Fraction:
-            ints = [int(str(t)) for t in items if getattr(t, "type", "") == "INT"]
-            if ints[1] == 0:
-                raise _BadNumber("an exponent has denominator 0", meta.start_pos if meta and not meta.empty else 0)
-            return Fraction(ints[0], ints[1])
+        def index_from(self, meta: Any, items: list[Any]) -> tuple[str, str, ast.Node]:
+            return "from", str(items[0]), items[-1]
 
-        def num_negfrac(self, meta: Any, items: list[Any]) -> Fraction:
-            return -self.num_frac(meta, items)
+        def index_divides(self, meta: Any, items: list[Any]) -> tuple[str, str, ast.Node]:
+            return "divides", str(items[0]), items[-1]
+
+        def index_at_least(self, meta: Any, items: list[Any]) -> tuple[str, str, ast.Node]:
+            return "at_least", str(items[0]), items[-1]
+
+        def sum_upper(self, meta: Any, items: list[Any]) -> ast.Node | None:
+            item = items[0]
+            if getattr(item, "type", "") == "INFTY":
+                return None
+            if getattr(item, "type", "") == "DIGIT":
+                return ast.Number(_tok_span(item), int(str(item)))
+            if getattr(item, "type", "") == "NAME":
+                return ast.Name(_tok_span(item), str(item))
+            node: ast.Node = item
+            return node
+
+        def exp_name(self, meta: Any, items: list[Any]) -> ast.Node:
+            return ast.Name(_tok_span(items[0]), str(items[0]))
+
+        def exp_expr(self, meta: Any, items: list[Any]) -> Fraction | ast.Node:
+            value = _constant(items[0])
+            return value if value is not None else items[0]
 
         def integer(self, meta: Any, items: list[Any]) -> ast.Number:
             return ast.Number(_tok_span(items[0]), int(str(items[0])))

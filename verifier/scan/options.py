@@ -7,7 +7,7 @@ from dataclasses import dataclass
 
 from verifier.scan.text import matching_brace
 
-KNOWN_OPTIONS = ("name", "group", "weight", "character", "nome")
+KNOWN_OPTIONS = ("name", "group", "weight", "character", "nome", "for", "solve")
 
 
 @dataclass(frozen=True)

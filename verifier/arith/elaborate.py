@@ -1,0 +1,131 @@
+"""From the claim AST to arithmetic expressions (:mod:`verifier.arith.terms`).
+
+Recognised functions: ``\\sigma(n)``, ``\\sigma_k(n)``, ``\\tau(n)`` (Ramanujan's function),
+``r_s(n)`` (representations as a sum of s squares), ``r_Q(n)`` (by a defined Gram matrix Q),
+``p(n)`` (partitions), ``a_F(n)``/``c_F(n)`` (coefficients of a defined form F),
+``\\varphi(n)``, ``\\mu(n)`` and ``\\chi_D(n)`` (the Kronecker symbol (D/n)); single letters are
+variables; sums ``\\sum_{m=a}^{b}`` and ``\\sum_{d \\mid n}``.
+"""
+
+from __future__ import annotations
+
+import re
+from collections.abc import Callable
+from fractions import Fraction
+from typing import Any
+
+from verifier.arith import terms as t
+from verifier.parse import ast
+
+_SIGMA = re.compile(r"^\\sigma(?:_(?:\{\s*(\d+)\s*\}|(\d)))?$")
+_R = re.compile(r"^r_(?:\{\s*(\w+)\s*\}|(\w))$")
+_COEF = re.compile(r"^[ac]_(?:\{\s*(\\?\w+)\s*\}|(\w))$")
+_CHI = re.compile(r"^\\chi_(?:\{\s*(-?\d+)\s*\}|(\d))$")
+VARIABLES = frozenset("nmdklji")
+
+
+class ArithmeticError_(Exception):
+    """The expression is not an arithmetic expression qreferee knows; carries the span."""
+
+    def __init__(self, message: str, span: ast.Span, hint: str = "") -> None:
+        super().__init__(message)
+        self.span = span
+        self.hint = hint
+
+
+def function_kind(name: str, forms: dict[str, Any], matrices: dict[str, Any]) -> tuple[str, int | None, Any] | None:
+    """What ``name(...)`` is as an arithmetic function, or None."""
+    name = name.replace(" ", "")
+    m = _SIGMA.match(name)
+    if m:
+        return ("sigma", int(m.group(1) or m.group(2) or 1), None)
+    if name == "\\tau":
+        return ("tau", None, None)
+    m = _R.match(name)
+    if m:
+        sub = m.group(1) or m.group(2)
+        if sub.isdigit():
+            return ("r", int(sub), None)
+        if sub in matrices:
+            return ("rQ", None, matrices[sub])
+        return None
+    if name == "p":
+        return ("p", None, None)
+    if name in ("\\varphi", "\\phi"):
+        return ("phi", None, None)
+    if name == "\\mu":
+        return ("mu", None, None)
+    m = _CHI.match(name)
+    if m:
+        return ("chi", int(m.group(1) or m.group(2)), None)
+    m = _COEF.match(name)
+    if m:
+        sub = (m.group(1) or m.group(2)).lstrip("\\")
+        for key in (sub, "\\" + sub):
+            if key in forms:
+                return ("coef", None, forms[key])
+    return None
+
+
+def uses_arithmetic(node: ast.Node, forms: dict[str, Any], matrices: dict[str, Any]) -> bool:
+    """Whether a claim's AST contains arithmetic functions or finite sums (outside the
+    generating-function sums ``\\sum_{n \\ge 1} a(n) q^n``, which are forms)."""
+    if isinstance(node, ast.BigSum) and node.kind == "at_least":
+        return False
+    if isinstance(node, ast.Call) and function_kind(node.name, forms, matrices) is not None:
+        return True
+    if isinstance(node, ast.BigSum) and node.kind in ("from", "divides"):
+        return True
+    return any(uses_arithmetic(child, forms, matrices) for child in ast.children(node))
+
+
+def to_arith(
+    node: ast.Node, text: str, forms: dict[str, Any], matrices: dict[str, Any], form_of: Callable[[Any], Any]
+) -> t.A:
+    """Translate an AST node; raises :class:`ArithmeticError_`."""
+    src = text[node.span[0] : node.span[1]]
+
+    def go(n: ast.Node) -> t.A:
+        return to_arith(n, text, forms, matrices, form_of)
+
+    if isinstance(node, ast.Number):
+        return t.Num(src, Fraction(node.value))
+    if isinstance(node, ast.Name):
+        if node.arg is None and len(node.text) == 1 and node.text in VARIABLES:
+            return t.Var(src, node.text)
+        raise ArithmeticError_(
+            f"{node.text} is not an arithmetic function or a variable here",
+            node.span,
+            "write sigma_k(n), tau(n), r_s(n), p(n), a_F(n) for a defined form F, or a variable",
+        )
+    if isinstance(node, ast.Call):
+        kind = function_kind(node.name, forms, matrices)
+        if kind is None:
+            raise ArithmeticError_(f"unknown arithmetic function {node.name}", node.name_span)
+        name, index, form = kind
+        if name == "sigma" and index is not None and index < 0:
+            raise ArithmeticError_("sigma_k needs k >= 0", node.name_span)
+        return t.Fun(src, name, index, go(node.argument), form_of(form) if form is not None else None)
+    if isinstance(node, ast.Neg):
+        return t.Bin(src, "*", t.Num("-1", Fraction(-1)), go(node.operand))
+    if isinstance(node, ast.BinOp):
+        return t.Bin(src, node.op, go(node.left), go(node.right))
+    if isinstance(node, ast.Power):
+        base = go(node.base)
+        if isinstance(node.exponent, Fraction):
+            if node.exponent.denominator != 1 or node.exponent < 0:
+                raise ArithmeticError_("powers in arithmetic expressions are non-negative integers", node.span)
+            return t.Pow(src, base, t.Num(str(node.exponent), node.exponent))
+        return t.Pow(src, base, go(node.exponent))
+    if isinstance(node, ast.BigSum):
+        if node.kind == "at_least":
+            raise ArithmeticError_(
+                "an infinite sum is a generating function; it needs q^n in its body and a form on the other side",
+                node.span,
+            )
+        assert node.lower is not None
+        upper = go(node.upper) if node.upper is not None else None
+        if node.kind == "from" and upper is None:
+            raise ArithmeticError_("a sum from m = a needs an upper limit", node.span)
+        return t.Sum(src, node.kind, node.var, go(node.lower), upper, go(node.body))
+    raise ArithmeticError_("this construction has no arithmetic meaning", node.span)

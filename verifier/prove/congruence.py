@@ -1,0 +1,675 @@
+"""Decide congruences ``F = 0 (mod M)`` coefficient by coefficient (MATH.md §3.4, §3.5, §3.9).
+
+``F`` is given as homogeneous pieces ``sum_i f_i E_2^{j_i}`` with ``f_i`` in
+``M_{w_i - 2 j_i}(Gamma_0(N), chi_i)``: the difference of the two sides of a claim, split by
+weight, power of the quasimodular ``E_2`` and character.  Over ``C`` such a splitting is
+unique; modulo a prime it is not (``E_{p-1} = 1`` and ``E_2 = E_{p+1}`` mod p), so a piece
+that is not 0 mod M never refutes anything.  What this module proves:
+
+For each prime power ``p^e || M`` separately (a congruence mod M holds iff it holds mod every
+``p^e``, by the Chinese remainder theorem):
+
+1. A piece whose ``f_i`` is p-integral and 0 mod ``p^e`` through the Sturm bound of its own
+   weight is 0 mod ``p^e`` for every n (§3.4; ``E_2`` has integer coefficients), so it is
+   set aside.  This is how ``691 E_4^3 = 691`` (mod 691) enters the worked example of §3.4.
+2. The remaining pieces are made modular: ``E_2`` becomes ``E_{p+1}`` (p >= 5, e = 1) or 1
+   (mod 8 and mod 3); for any other prime power with ``E_2`` left there is no substitution
+   (§3.9) and nothing is proved.
+3. They must share one character, and their weights must be joined by multipliers
+   ``H = 1 (mod p^e)`` of level one (§3.5, corrected list): ``E_{p-1}^{p^{e-1}}`` for p >= 5,
+   powers of ``E_4`` and ``E_6`` for p = 2, 3.  Each piece is multiplied up to the least common
+   weight ``K`` reachable that way.
+4. Every ``f_i`` must be p-integral: checked through ``B``, which suffices because the forms
+   with rational coefficients have bounded denominators, and if ``p^c f`` (c >= 1 least) were
+   integral with ``a_n(f)`` integral for ``n <= B`` then ``p^c f = 0 (mod p)`` through ``B``, hence
+   everywhere (Sturm), contradicting the choice of ``c``.
+5. ``G = sum_i f_i E_{p+1}^{j_i} H_i`` lies in ``M_K(Gamma_0(N), chi)``, is p-integral, and
+   ``G = F (mod p^e)`` coefficientwise.  ``G = 0 (mod p^e)`` everywhere iff it is so for
+   ``n <= B = floor(K m_0(N) / 12)`` (§3.4, prime powers in the same space).  A nonzero residue
+   within ``B`` is therefore a true coefficient of ``F`` that is not 0 mod ``p^e``.
+
+Everything else (half-integral weight, poles, several characters, weights no multiplier
+joins, pieces with ``p`` in a denominator, ``E_2`` modulo higher prime powers) is reported
+as not proved, with the reason.  The known coefficients of ``F`` itself are always scanned:
+a coefficient with a denominator not prime to M means the congruence is undefined, and a
+coefficient not 0 mod M is reported as a witness (a refutation if it lies in the claim's
+range).  As a guard against inconsistent input, ``G`` and ``F`` are also compared mod ``p^e``
+through ``B``: they must agree, whatever the verdict.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+from fractions import Fraction
+from typing import Any
+
+import flint
+from flint import fmpz_mod_poly_ctx
+
+from verifier.forms.characters import QuadraticCharacter
+from verifier.forms.eisenstein import eisenstein_constant, eisenstein_series
+from verifier.prove.groups import group_name, sturm_bound
+from verifier.series.qseries import QSeries
+
+
+@dataclass(frozen=True)
+class Piece:
+    """One homogeneous piece ``f * E_2^j`` of ``F = left - right``.
+
+    ``weight`` is the total weight ``w``; ``f`` (``series``) is a holomorphic modular form of
+    weight ``w - 2 * e2_power`` on ``Gamma_0(level)`` with the quadratic character of the given
+    squarefree ``kernel`` (1 = trivial), known at least to :func:`needed_precision`.
+    """
+
+    weight: Fraction
+    e2_power: int
+    kernel: int
+    series: QSeries
+
+
+@dataclass
+class CongruenceDecision:
+    """The outcome of :func:`decide_congruence`.
+
+    ``proved`` is True only when ``F = 0 (mod M)`` is proved for every n.  ``details`` has one
+    dict per prime power of M (and nothing else).  ``witness``, when set, is the least exponent n
+    among the known coefficients of ``F`` at which the coefficient is M-integral but not 0 mod M
+    (``{"n", "value", "modulus", "prime_powers"}``): a refutation if n lies in the claim's range.
+    ``undefined``, when set, is the least n at which the coefficient of ``F`` has a denominator
+    not prime to M (``{"n", "value", "primes"}``).
+    """
+
+    proved: bool
+    reason: str
+    bound: int | None
+    details: list[dict[str, Any]]
+    witness: dict[str, Any] | None = None
+    undefined: dict[str, Any] | None = None
+
+
+# ---------------------------------------------------------------------------
+# Small arithmetic helpers
+# ---------------------------------------------------------------------------
+
+
+def _factor(m: int) -> list[tuple[int, int]]:
+    """``m = prod p^e`` for m >= 2, primes increasing."""
+    return sorted((int(p), int(e)) for p, e in flint.fmpz(m).factor())
+
+
+def _valuation(x: Fraction, p: int) -> int:
+    """The p-adic valuation of a nonzero rational."""
+    v = 0
+    num, den = x.numerator, x.denominator
+    while num % p == 0:
+        num //= p
+        v += 1
+    while den % p == 0:
+        den //= p
+        v -= 1
+    return v
+
+
+def _frac_str(x: Fraction) -> str:
+    return str(x.numerator) if x.denominator == 1 else f"{x.numerator}/{x.denominator}"
+
+
+def _residues(series: QSeries, stop: int, m: int) -> list[int | None]:
+    """Residues mod m of the coefficients of ``q^0 .. q^(stop-1)``; None where not m-integral.
+
+    The series must have valuation >= 0 and be known below ``stop``.
+    """
+    out: list[int | None] = [0] * stop
+    if stop <= 0 or series.is_zero():
+        return out
+    num = series.poly.numer()
+    den = int(series.poly.denom())
+    coprime = math.gcd(den, m) == 1
+    inv = pow(den, -1, m) if coprime else 0
+    for n in range(max(series.offset, 0), stop):
+        c = int(num[n - series.offset])
+        if coprime:
+            out[n] = c * inv % m
+        else:
+            x = Fraction(c, den)
+            out[n] = x.numerator * pow(x.denominator, -1, m) % m if math.gcd(x.denominator, m) == 1 else None
+    return out
+
+
+def _divisor_sums_mod(r: int, stop: int, m: int) -> list[int]:
+    """``sigma_r(n) mod m`` for ``0 <= n < stop`` (with sigma_r(0) := 0)."""
+    s = [0] * stop
+    for d in range(1, stop):
+        t = pow(d, r, m)
+        for n in range(d, stop, d):
+            s[n] += t
+    return [x % m for x in s]
+
+
+def _eisenstein_mod(k: int, stop: int, m: int) -> list[int]:
+    """``E_k mod m`` through ``q^(stop-1)``; ``-2k/B_k`` must be m-integral."""
+    c = eisenstein_constant(k)
+    if math.gcd(c.denominator, m) != 1:
+        raise ArithmeticError(f"E_{k} is not integral modulo {m}")
+    cm = c.numerator * pow(c.denominator, -1, m) % m
+    sig = _divisor_sums_mod(k - 1, stop, m)
+    out = [cm * x % m for x in sig]
+    if stop > 0:
+        out[0] = 1 % m
+    return out
+
+
+# ---------------------------------------------------------------------------
+# Multipliers H = 1 (mod p^e) and E_2 substitutions (MATH.md §3.5, §3.9)
+# ---------------------------------------------------------------------------
+
+
+@dataclass(frozen=True)
+class _Generator:
+    """``E_k^power``, a level-one form of weight ``k * power`` that is 1 mod p^e."""
+
+    k: int
+    power: int
+
+    @property
+    def weight(self) -> int:
+        return self.k * self.power
+
+    def name(self, exponent: int = 1) -> str:
+        total = self.power * exponent
+        return f"E_{self.k}" if total == 1 else f"E_{self.k}^{total}"
+
+
+def _generators(p: int, e: int) -> list[_Generator]:
+    """The multipliers of MATH.md §3.5 (corrected list) for p^e.
+
+    The base forms are ``E_{p-1}`` (p >= 5) and ``E_4``, ``E_6`` (p = 2, 3).  ``E_k = 1 (mod p^a)``
+    exactly when ``p^a`` divides the constant ``-2k/B_k`` (the divisor sums are integers and
+    ``sigma_{k-1}(1) = 1``), so ``a`` is read off the Bernoulli number: 1 for ``E_{p-1}`` (von
+    Staudt-Clausen), 4 and 1 for ``E_4`` at 2 and 3, 3 and 2 for ``E_6``.  Then
+    ``H = 1 + p^a X`` gives ``H^p = 1 + p^(a+1) X + ... = 1 (mod p^(a+1))`` (the middle binomial
+    terms carry ``p^(2a+1)`` for odd p, and ``2^(2a)`` with 2a >= a+1 for p = 2), so
+    ``E_k^(p^(e-a)) = 1 (mod p^e)``.
+    """
+    bases = [p - 1] if p >= 5 else [4, 6]
+    out: list[_Generator] = []
+    for k in bases:
+        a = _valuation(eisenstein_constant(k), p)
+        if a < 1:
+            raise ArithmeticError(f"E_{k} is not 1 mod {p}")  # cannot happen (von Staudt-Clausen)
+        out.append(_Generator(k, p ** max(0, e - a)))
+    return out
+
+
+def _substitution(p: int, e: int) -> str | None:
+    """How E_2 is made modular mod p^e (MATH.md §3.9): ``"E_{p+1}"``, ``"1"`` or None (no way)."""
+    if p >= 5 and e == 1:
+        return "E_{p+1}"
+    if (p == 2 and e <= 3) or (p == 3 and e == 1):
+        return "1"
+    return None
+
+
+def _effective_weight(weight: int, j: int, p: int, sub: str | None) -> int | None:
+    """Weight of ``f E_2^j`` after the substitution (``weight`` is the weight of f)."""
+    if j == 0:
+        return weight
+    if sub == "E_{p+1}":
+        return weight + j * (p + 1)
+    if sub == "1":
+        return weight
+    return None
+
+
+def _decompose(gap: int, gens: list[_Generator]) -> tuple[int, ...] | None:
+    """Exponents ``(a, b)`` with ``a w_0 + b w_1 = gap`` (a >= 0 as large as possible), or None."""
+    if gap < 0:
+        return None
+    w0 = gens[0].weight
+    if len(gens) == 1:
+        return (gap // w0,) if gap % w0 == 0 else None
+    w1 = gens[1].weight
+    for a in range(gap // w0, -1, -1):
+        rest = gap - a * w0
+        if rest % w1 == 0:
+            return (a, rest // w1)
+    return None
+
+
+def _common_weight(weights: list[int], gens: list[_Generator]) -> int | None:
+    """The least K >= max(weights) with every K - k reachable by the multipliers, or None."""
+    g = math.gcd(*(x.weight for x in gens))
+    if len({w % g for w in weights}) > 1:
+        return None
+    top = max(weights)
+    # Beyond the Frobenius number of the generators every multiple of g is reachable.
+    limit = top + math.prod(x.weight for x in gens) + g
+    for cand in range(top, limit + 1, g):
+        if all(_decompose(cand - w, gens) is not None for w in weights):
+            return cand
+    return None  # pragma: no cover - the Frobenius bound guarantees a hit
+
+
+def _classes(weights: list[int], gens: list[_Generator]) -> dict[int, list[int]]:
+    """Weights grouped by residue mod the gcd of the multiplier weights."""
+    g = math.gcd(*(x.weight for x in gens))
+    out: dict[int, list[int]] = {}
+    for w in weights:
+        out.setdefault(w % g, []).append(w)
+    return out
+
+
+# ---------------------------------------------------------------------------
+# Precision
+# ---------------------------------------------------------------------------
+
+
+def needed_precision(pieces_weights: list[tuple[Fraction, int]], modulus: int, level: int) -> int:
+    """How many coefficients (``q^0 .. q^(prec-1)``) :func:`decide_congruence` needs of every piece.
+
+    ``pieces_weights`` lists ``(total weight, E_2 power)`` of the pieces.  The result covers the
+    Sturm bound of each piece's own weight (step 1 of the module docstring) and, for every prime
+    power of the modulus, the bound of the common weight of every class of pieces the multipliers
+    could join (any subset of such a class needs no more).  Half-integral or negative weights
+    need nothing (they are never proved).
+    """
+    prec = 1
+    usable: list[tuple[int, int]] = []
+    for w, j in pieces_weights:
+        wf = Fraction(w) - 2 * j
+        if wf.denominator != 1 or wf < 0 or j < 0:
+            continue
+        usable.append((int(wf), j))
+        prec = max(prec, sturm_bound(int(wf), level) + 1)
+    m = abs(modulus)
+    if m < 2 or level < 1:
+        return prec
+    for p, e in _factor(m):
+        sub = _substitution(p, e)
+        gens = _generators(p, e)
+        effective = [k for wf, j in usable if (k := _effective_weight(wf, j, p, sub)) is not None]
+        for group in _classes(effective, gens).values():
+            k_common = _common_weight(group, gens)
+            if k_common is not None:
+                prec = max(prec, sturm_bound(k_common, level) + 1)
+    return prec
+
+
+# ---------------------------------------------------------------------------
+# The decision
+# ---------------------------------------------------------------------------
+
+
+@dataclass
+class _Item:
+    """A validated piece: integral weight ``wf`` of its modular coefficient."""
+
+    index: int
+    weight: Fraction
+    wf: int
+    j: int
+    kernel: int
+    series: QSeries
+
+    def label(self) -> str:
+        e2 = "" if self.j == 0 else (" E_2" if self.j == 1 else f" E_2^{self.j}")
+        chi = "" if self.kernel == 1 else f", {QuadraticCharacter(self.kernel).name}"
+        return f"piece {self.index} (weight {_frac_str(self.weight)}{e2}{chi})"
+
+
+@dataclass
+class _PrimePowerResult:
+    detail: dict[str, Any]
+    proved: bool
+    summary: str
+    bound: int | None = None
+    inconsistent: bool = False
+
+
+def _not_proved(reason: str, details: list[dict[str, Any]] | None = None) -> CongruenceDecision:
+    return CongruenceDecision(False, reason, None, details or [])
+
+
+def decide_congruence(pieces: list[Piece], modulus: int, level: int) -> CongruenceDecision:
+    """Decide whether every coefficient of ``F = sum f_i E_2^{j_i}`` is 0 mod ``modulus``.
+
+    Returns ``proved=True`` only through the argument of the module docstring (MATH.md §3.4,
+    §3.5 corrected, §3.9); otherwise ``proved=False`` and ``reason`` says why.  The pieces must
+    be known to :func:`needed_precision` (with fewer coefficients the answer is not proved).
+    """
+    if modulus == 0 or abs(modulus) < 2:
+        return _not_proved(f"the modulus must be an integer of absolute value at least 2, not {modulus}")
+    if level < 1:
+        return _not_proved(f"the level must be a positive integer, not {level}")
+    m = abs(modulus)
+
+    # -- validate and merge the pieces ---------------------------------------------
+    merged: dict[tuple[Fraction, int, int], _Item] = {}
+    for index, piece in enumerate(pieces):
+        w = Fraction(piece.weight)
+        j = piece.e2_power
+        if j < 0:
+            return _not_proved(f"piece {index} has a negative power of E_2 ({j})")
+        wf = w - 2 * j
+        zero = piece.series.is_zero()
+        # The zero form: no negative-weight form but 0, and the characteristic-0 Sturm bound
+        # (MATH.md §3.2; §3.6 in half-integral weight, which lives on some Gamma_0(4N)).
+        sturm_ok = wf.denominator == 1 or level % 4 == 0
+        if zero and (wf < 0 or (sturm_ok and piece.series.prec > sturm_bound(wf, level))):
+            continue
+        if wf.denominator != 1:
+            return _not_proved(
+                f"piece {index} has half-integral weight {_frac_str(wf)}: congruences in half-integral "
+                "weight are not covered (MATH.md §3.6 gives no congruence bound)"
+            )
+        if not zero and piece.series.valuation < 0:
+            return _not_proved(
+                f"piece {index} has a pole at infinity (q^{piece.series.valuation}): congruences with poles "
+                "are not covered (MATH.md §3.8, step 7)"
+            )
+        try:
+            chi = QuadraticCharacter(piece.kernel)
+        except ValueError:
+            return _not_proved(f"piece {index} has an invalid character kernel {piece.kernel}")
+        if not zero:
+            if wf < 0:
+                return _not_proved(f"piece {index} has negative weight {wf} but a nonzero series: not a modular form")
+            if level % chi.conductor:
+                return _not_proved(
+                    f"piece {index} has character {chi.name} of conductor {chi.conductor}, not a character "
+                    f"mod the level {level}"
+                )
+            if (int(wf) % 2 == 1) != (not chi.is_even):
+                return _not_proved(
+                    f"piece {index}: weight {wf} with character {chi.name} violates the parity condition "
+                    "(MATH.md §2.4), yet the series is nonzero: inconsistent input"
+                )
+            if wf == 0 and (piece.series.valuation > 0 or piece.series.poly.degree() > 0):
+                return _not_proved(
+                    f"piece {index} has weight 0 but is not constant: not a holomorphic modular form (MATH.md §10.7)"
+                )
+        key = (w, j, piece.kernel)
+        if key in merged:
+            old = merged[key]
+            old.series = old.series + piece.series
+        else:
+            merged[key] = _Item(index, w, int(wf), j, piece.kernel, piece.series)
+    items = list(merged.values())
+
+    # -- scan the known coefficients of F itself -----------------------------------
+    undefined, witness, f_res, f_prec = _scan(items, m)
+
+    # -- each prime power ----------------------------------------------------------
+    results = [_decide_prime_power(items, p, e, level, f_res, f_prec) for p, e in _factor(m)]
+    details = [r.detail for r in results]
+    bounds = [r.bound for r in results if r.bound is not None]
+    bound = max(bounds) if bounds else None
+
+    if undefined is not None:
+        primes = ", ".join(str(p) for p in undefined["primes"])
+        return CongruenceDecision(
+            False,
+            f"the congruence mod {m} is not defined: the coefficient of q^{undefined['n']} of left - right is "
+            f"{undefined['value']}, whose denominator is divisible by {primes}",
+            bound,
+            details,
+            witness,
+            undefined,
+        )
+    inconsistent = [r for r in results if r.inconsistent]
+    if witness is not None:
+        # A proof mod p^e and a coefficient that is not 0 mod p^e cannot both be right.
+        inconsistent += [r for r in results if r.proved and r.detail["modulus"] in witness["prime_powers"]]
+    if inconsistent:
+        return CongruenceDecision(
+            False,
+            "inconsistent input (the declared weights, characters or level cannot all be right): "
+            + "; ".join(r.summary for r in inconsistent),
+            bound,
+            details,
+            witness,
+        )
+    if witness is not None:
+        return CongruenceDecision(
+            False,
+            f"false: the coefficient of q^{witness['n']} of left - right is {witness['value']}, "
+            f"not 0 mod {m} (fails mod {', '.join(str(x) for x in witness['prime_powers'])})",
+            bound,
+            details,
+            witness,
+        )
+    if all(r.proved for r in results):
+        parts = " * ".join(str(r.detail["modulus"]) for r in results)
+        head = f"proved mod {m} = {parts}, one prime power at a time (Chinese remainder theorem): "
+        return CongruenceDecision(True, head + "; ".join(r.summary for r in results), bound, details)
+    failing = [r for r in results if not r.proved]
+    return CongruenceDecision(False, "; ".join(r.summary for r in failing), bound, details)
+
+
+def _scan(items: list[_Item], m: int) -> tuple[dict[str, Any] | None, dict[str, Any] | None, list[int | None], int]:
+    """Residues mod m of the known coefficients of ``F = sum f_i E_2^{j_i}``.
+
+    Returns (first undefined coefficient, first nonzero residue, residues, precision).
+    """
+    if not items:
+        return None, None, [], 0
+    prec = min(it.series.prec for it in items)
+    top_j = max(it.j for it in items)
+    total = QSeries.constant(0, prec)
+    if prec > 0:
+        e2 = eisenstein_series(2, prec)
+        powers = [QSeries.constant(1, prec)]
+        for _ in range(top_j):
+            powers.append(powers[-1] * e2)
+        for it in items:
+            total = total + it.series.truncate(prec) * powers[it.j]
+    if prec <= 0 or total.is_zero():
+        return None, None, [0] * max(prec, 0), max(prec, 0)
+    # Poles were refused, so the valuation is >= 0.
+    residues = _residues(total, prec, m)
+    undefined: dict[str, Any] | None = None
+    witness: dict[str, Any] | None = None
+    for n, r in enumerate(residues):
+        if r is None and undefined is None:
+            value = total[n]
+            primes = [p for p, _ in _factor(m) if value.denominator % p == 0]
+            undefined = {"n": n, "value": _frac_str(value), "primes": primes}
+        if r is not None and r != 0 and witness is None:
+            value = total[n]
+            failing = [p**e for p, e in _factor(m) if r % (p**e) != 0]
+            witness = {"n": n, "value": _frac_str(value), "modulus": m, "prime_powers": failing}
+        if undefined is not None and witness is not None:
+            break
+    return undefined, witness, residues, prec
+
+
+def _decide_prime_power(
+    items: list[_Item], p: int, e: int, level: int, f_res: list[int | None], f_prec: int
+) -> _PrimePowerResult:
+    """Steps 1-5 of the module docstring for one prime power."""
+    q = p**e
+    group = group_name(level)
+    detail: dict[str, Any] = {"prime": p, "exponent": e, "modulus": q, "proved": False}
+
+    def fail(reason: str, **more: Any) -> _PrimePowerResult:
+        detail["reason"] = reason
+        detail.update(more)
+        return _PrimePowerResult(detail, False, f"mod {q}: {reason}", bound=more.get("bound"))
+
+    # Step 1: pieces that are 0 mod q by themselves.
+    vanishing: list[dict[str, Any]] = []
+    active: list[_Item] = []
+    own_bound = 0
+    for it in items:
+        b = sturm_bound(it.wf, level)
+        own_bound = max(own_bound, b)
+        if it.series.prec <= b:
+            return fail(
+                f"{it.label()} is known only below q^{it.series.prec}; its own Sturm bound is {b}",
+                needed_precision=b + 1,
+            )
+        res = _residues(it.series, b + 1, q)
+        if all(r == 0 for r in res):
+            vanishing.append({"piece": it.index, "bound": b})
+        else:
+            active.append(it)
+    detail["vanishing_pieces"] = vanishing
+    if not active:
+        detail.update(proved=True, bound=own_bound, coefficients_compared=own_bound + 1)
+        why = (
+            "every piece is 0 mod "
+            f"{q} through the Sturm bound of its own weight (B <= {own_bound}, {group}, MATH.md §3.4)"
+        )
+        detail["reason"] = why
+        return _PrimePowerResult(detail, True, f"mod {q}: {why}", bound=own_bound)
+
+    # Step 2: E_2.
+    sub: str | None = None
+    if any(it.j > 0 for it in active):
+        sub = _substitution(p, e)
+        if sub is None:
+            labels = ", ".join(it.label() for it in active if it.j > 0)
+            return fail(
+                f"{labels} contains E_2 and is not 0 mod {q} by itself; modulo {q} no modular form is "
+                "known to be congruent to E_2 (MATH.md §3.9: only mod p >= 5, mod 8 and mod 3)"
+            )
+        detail["e2_replaced_by"] = f"E_{p + 1}" if sub == "E_{p+1}" else "1"
+
+    # Step 3: one character, joinable weights.
+    kernels = sorted({it.kernel for it in active})
+    if len(kernels) > 1:
+        names = ", ".join(QuadraticCharacter(k).name for k in kernels)
+        return fail(
+            f"the pieces not 0 mod {q} carry different characters ({names}); no single space contains them, "
+            "and a mismatch between components does not refute a congruence (MATH.md §3.9)"
+        )
+    gens = _generators(p, e)
+    effective: list[int] = []
+    for it in active:
+        k = _effective_weight(it.wf, it.j, p, sub)
+        assert k is not None
+        effective.append(k)
+    k_common = _common_weight(effective, gens)
+    multipliers_text = " and ".join(f"{g.name()} (weight {g.weight})" for g in gens)
+    if k_common is None:
+        ws = ", ".join(str(k) for k in sorted(set(effective)))
+        gcd = math.gcd(*(g.weight for g in gens))
+        return fail(
+            f"the pieces not 0 mod {q} have weights {ws}, which differ by amounts not divisible by {gcd}; "
+            f"the multipliers congruent to 1 mod {q} are {multipliers_text} (MATH.md §3.5), so no common "
+            "weight is reachable"
+        )
+    big_b = sturm_bound(k_common, level)
+    stop = big_b + 1
+    for it in active:
+        if it.series.prec < stop:
+            return fail(
+                f"{it.label()} is known only below q^{it.series.prec}; weight {k_common} needs a_0..a_{big_b}",
+                needed_precision=stop,
+                weight=k_common,
+                bound=big_b,
+            )
+
+    # Step 4: p-integrality of every active piece through B.
+    residues: list[list[int]] = []
+    for it in active:
+        res = _residues(it.series, stop, q)
+        bad = next((n for n, r in enumerate(res) if r is None), None)
+        if bad is not None:
+            return fail(
+                f"{it.label()} has {p} in the denominator of its coefficient of q^{bad} "
+                f"({_frac_str(it.series[bad])}); the method needs {p}-integral pieces (MATH.md §3.4)",
+                weight=k_common,
+                bound=big_b,
+            )
+        residues.append([int(r) for r in res if r is not None])
+
+    # Step 5: G = sum f_i E_{p+1}^{j_i} H_i mod q, through q^B.
+    ctx: Any = fmpz_mod_poly_ctx(q)
+    gen_series = [ctx(_eisenstein_mod(g.k, stop, q)).pow_trunc(g.power, stop) for g in gens]
+    for g, s in zip(gens, gen_series, strict=True):
+        # Defence in depth: the multipliers must be 1 mod q through B (they are, by §3.5).
+        if any(int(c) != (1 if n == 0 else 0) for n, c in enumerate(_padded(s, stop))):
+            return _inconsistent(detail, q, f"the multiplier {g.name()} is not 1 mod {q}")
+    e2_sub = None
+    if sub == "E_{p+1}":
+        # E_{p+1} is p-integral and = E_2 mod p (Kummer, MATH.md §3.9); checked through B anyway.
+        try:
+            e2_sub = ctx(_eisenstein_mod(p + 1, stop, q))
+        except ArithmeticError:
+            return _inconsistent(detail, q, f"E_{p + 1} is not {p}-integral")
+        if _padded(e2_sub, stop) != _padded(ctx(_eisenstein_mod(2, stop, q)), stop):
+            return _inconsistent(detail, q, f"E_{p + 1} is not congruent to E_2 mod {p}")
+    total = ctx([0])
+    used: list[dict[str, Any]] = []
+    for it, k, coeffs in zip(active, effective, residues, strict=True):
+        term = ctx(coeffs)
+        if it.j and e2_sub is not None:
+            term = term.mul_low(e2_sub.pow_trunc(it.j, stop), stop)
+        exps = _decompose(k_common - k, gens)
+        assert exps is not None
+        factors: list[str] = []
+        for g, s, a in zip(gens, gen_series, exps, strict=True):
+            if a:
+                term = term.mul_low(s.pow_trunc(a, stop), stop)
+                factors.append(g.name(a))
+        total = total + term
+        used.append(
+            {
+                "piece": it.index,
+                "weight": _frac_str(it.weight),
+                "e2_power": it.j,
+                "modular_weight": it.wf,
+                "weight_after_substitution": k,
+                "multiplier": " * ".join(factors) or "1",
+            }
+        )
+    g_res = _padded(total, stop)
+    detail.update(multipliers=used, weight=k_common, bound=big_b, coefficients_compared=stop, level=level)
+
+    # Guard: G = F (mod q) coefficientwise; compare where F is known.
+    for n in range(min(stop, f_prec)):
+        fr = f_res[n]
+        if fr is not None and fr % q != g_res[n]:
+            return _inconsistent(
+                detail,
+                q,
+                f"the modular form built for the proof differs from left - right mod {q} at q^{n}",
+            )
+
+    sub_text = ""
+    if sub == "E_{p+1}":
+        sub_text = f"E_2 -> E_{p + 1} (= E_2 mod {p}, MATH.md §3.9); "
+    elif sub == "1":
+        sub_text = "E_2 -> 1 (E_2 = 1 mod 24, MATH.md §3.9); "
+    mult = sorted({u["multiplier"] for u in used if u["multiplier"] != "1"})
+    mult_text = f"multipliers {', '.join(mult)} (= 1 mod {q}, MATH.md §3.5); " if mult else ""
+    vanish_text = f"{len(vanishing)} piece(s) 0 mod {q} by themselves; " if vanishing else ""
+    bad_n = next((n for n, r in enumerate(g_res) if r != 0), None)
+    if bad_n is not None:
+        detail["first_nonzero"] = bad_n
+        return fail(
+            f"{vanish_text}{sub_text}{mult_text}the weight-{k_common} form on {group} has coefficient of q^{bad_n} "
+            f"= {g_res[bad_n]} mod {q}, not 0 (so left - right is not 0 mod {q} there)",
+            weight=k_common,
+            bound=big_b,
+        )
+    why = (
+        f"{vanish_text}{sub_text}{mult_text}weight {k_common} on {group}: a_0..a_{big_b} = 0 mod {q} "
+        f"(Sturm bound B = {big_b}, MATH.md §3.4)"
+    )
+    detail.update(proved=True, reason=why)
+    return _PrimePowerResult(detail, True, f"mod {q}: {why}", bound=big_b)
+
+
+def _padded(poly: Any, stop: int) -> list[int]:
+    """Coefficients ``0 .. stop-1`` of an ``fmpz_mod_poly`` as ints."""
+    cs = [int(c) for c in poly.coeffs()][:stop]
+    return cs + [0] * (stop - len(cs))
+
+
+def _inconsistent(detail: dict[str, Any], q: int, reason: str) -> _PrimePowerResult:
+    detail["reason"] = reason
+    detail["proved"] = False
+    return _PrimePowerResult(detail, False, f"mod {q}: {reason}", inconsistent=True)
