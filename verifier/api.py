@@ -20,7 +20,7 @@ from verifier.arith.terms import Fun as tFun
 from verifier.arith.terms import Var as tVar
 from verifier.arith.terms import free_variables
 from verifier.arith.values import Values
-from verifier.budget import DEFAULT_MAX_SECONDS, decide_all
+from verifier.budget import DEFAULT_MAX_SECONDS, decide_all, time_limit
 from verifier.diagnostics import Diagnostic
 from verifier.elaborate import ir
 from verifier.elaborate.elaborator import Elaborator, Problem, normal_name
@@ -37,6 +37,8 @@ from verifier.prove.arithmetic import ArithmeticClaim, decide_arithmetic
 from verifier.prove.evaluate import AtomTable, laurent_to
 from verifier.prove.membership import decide_dimension, decide_membership
 from verifier.prove.prover import DEFAULT_MAX_TERMS, Outcome, Prover, claim_level
+from verifier.prove.solve import decide_solve
+from verifier.prove.suggest import suggestion
 from verifier.scan import ScannedDocument, scan_path, scan_text
 from verifier.scan.display import Row
 from verifier.scan.document import ClaimBlock, DefineTag
@@ -162,6 +164,7 @@ class _Pending:
     unit: Fraction = Fraction(1)  # the author's exponent is the internal one divided by this
     character: str | None = None  # the tag's character= option
     task: Callable[[Prover], Outcome] | None = None  # claims about spaces are decided by this
+    suggest: Callable[[Prover], str | None] | None = None  # a corrected claim, tried after a refutation
 
 
 def check_document(
@@ -194,6 +197,16 @@ def check_document(
             start = time.perf_counter()
             p.result.outcome = p.task(prover)
             p.result.seconds = time.perf_counter() - start
+    for p in pending:
+        o = p.result.outcome
+        if p.suggest is not None and o.verdict == "refuted" and o.kind == "equality":
+            try:
+                with time_limit(max_seconds):
+                    o.suggestion = p.suggest(prover)
+            except Exception:  # a suggestion is a courtesy; it never changes a verdict
+                o.suggestion = None
+            if o.suggestion:
+                o.message += f"; suggestion: {o.suggestion}"
     return report
 
 
@@ -394,6 +407,8 @@ def _claim(
         return _arithmetic_claim(
             text, left_node, right_node, rel, loc, end, source, row, name, elaborator, modulus, start_n
         )
+    if "solve" in block.options:
+        return _solve_claim(text, left_node, right_node, rel, loc, end, source, row, name, block, elaborator)
     nome = parse_nome(block.options.get("nome", ""))
     if nome is None:
         return _error(
@@ -420,7 +435,10 @@ def _claim(
         elaborator.nome = Fraction(1)
     # q -> q^T makes every exponent integral (eta offsets, q^{1/24}, the nome); MATH.md §4.1.
     t = rescale_factor(*sides)
-    left, right = (rescale_side(s, t) for s in sides)
+    try:
+        left, right = (rescale_side(s, t) for s in sides)
+    except ValueError as exc:
+        return _error(loc, "unsupported", str(exc), "", source, name, row.label, kind, end)
     if left.printed or right.printed:
         kind = "prefix"
     try:
@@ -431,7 +449,29 @@ def _claim(
         code, message, hint = problem
         return _error(block.tag, code, message, hint, source, name, row.label, kind, end)
     result = ClaimResult(loc, end, name, row.label, source, Outcome("error", kind, "not decided"))
-    return _Pending(result, left, right, rel, Fraction(t) * nome, block.options.get("character"))
+    definitions, matrices = dict(elaborator.definitions), dict(elaborator.matrices)
+
+    def make_build(lt: ast.Node, rt: ast.Node, fixed: dict[str, Fraction]) -> Any:
+        def build(values: dict[str, Fraction]) -> tuple[ir.Side, ir.Side] | str:
+            local = Elaborator(definitions)
+            local.matrices, local.nome, local.unknowns = matrices, nome, {**values, **fixed}
+            sides = []
+            for node in (lt, rt):
+                side = local.side(node, text.text)
+                if isinstance(side, Problem):
+                    return side.message
+                sides.append(side)
+            factor = rescale_factor(*sides)
+            return rescale_side(sides[0], factor), rescale_side(sides[1], factor)
+
+        return build
+
+    def suggest(prover: Prover) -> str | None:
+        if left.printed or right.printed:
+            return None
+        return suggestion(prover, left_node, right_node, make_build)
+
+    return _Pending(result, left, right, rel, Fraction(t) * nome, block.options.get("character"), suggest=suggest)
 
 
 _MODULUS = re.compile(
@@ -542,6 +582,56 @@ def _arithmetic_claim(
         return decide_arithmetic(prover, claim, Values(series_of))
 
     return _Pending(result, _NO_SIDE, _NO_SIDE, "=", task=task)
+
+
+def _solve_claim(
+    text: MappedText,
+    left_node: ast.Node,
+    right_node: ast.Node,
+    rel: str,
+    loc: Location,
+    end: Location,
+    source: str,
+    row: Row,
+    name: str | None,
+    block: ClaimBlock,
+    elaborator: Elaborator,
+) -> _Pending | ClaimResult:
+    """``solve=a,b``: find the values of the unknowns that make the identity true."""
+    unknowns = [u.strip() for u in re.split(r"[,\s]+", block.options["solve"]) if u.strip()]
+    if rel != "=" or not unknowns:
+        return _error(
+            loc,
+            "bad-option",
+            "solve= needs unknowns and an equality",
+            "write solve=a,b",
+            source,
+            name,
+            row.label,
+            "solve",
+            end,
+        )
+    definitions = dict(elaborator.definitions)
+    matrices = dict(elaborator.matrices)
+
+    def build(values: dict[str, Fraction]) -> tuple[ir.Side, ir.Side] | str:
+        local = Elaborator(definitions)
+        local.matrices = matrices
+        local.unknowns = values
+        sides = []
+        for node in (left_node, right_node):
+            side = local.side(node, text.text)
+            if isinstance(side, Problem):
+                return side.message
+            sides.append(side)
+        t = rescale_factor(*sides)
+        left, right = (rescale_side(s, t) for s in sides)
+        if left.printed or right.printed:
+            return "solve= works on identities between forms, not printed expansions"
+        return left, right
+
+    result = ClaimResult(loc, end, name, row.label, source, Outcome("error", "solve", "not decided"))
+    return _Pending(result, _NO_SIDE, _NO_SIDE, "=", task=lambda prover: decide_solve(prover, build, unknowns))
 
 
 def t_Fun(name: str, form: ir.Expr) -> tFun:

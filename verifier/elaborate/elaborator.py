@@ -61,6 +61,8 @@ class Elaborator:
         # The nome of the claim being elaborated: 1 for q = e^{2 pi i tau}, 1/2 for
         # Jacobi's e^{pi i tau} (tag option nome=).
         self.nome = Fraction(1)
+        # Values of the unknowns of a solve= claim while it is elaborated (see prove/solve.py).
+        self.unknowns: dict[str, Fraction] = {}
 
     # -- public -------------------------------------------------------------------
     def side(self, node: ast.Node, text: str) -> ir.Side | Problem:
@@ -172,6 +174,9 @@ class Elaborator:
         if isinstance(node, ast.BigSum):
             return self._generating_sum(node, text)
         if isinstance(node, ast.Call):
+            op = _operator(ast.Name(node.name_span, node.name))
+            if op is not None:  # D(f g), T_2(f), \partial_4(f)
+                return self._apply(op, self.expr(node.argument, text), src, node)
             # name(expr) for a form is a product: E_4(E_6 + 1), q(1 - q).
             return _mul(self._name(ast.Name(node.name_span, node.name), src), self.expr(node.argument, text), src, node)
         if isinstance(node, ast.Power):
@@ -215,6 +220,18 @@ class Elaborator:
 
     def _apply(self, op: tuple[str, int | Fraction | None], operand: ir.Expr, src: str, node: ast.Node) -> ir.Expr:
         kind, value = op
+        if kind.startswith("hecke"):
+            t = operand.typ
+            if t.printed or t.depth or t.den_weight or t.mixed or t.weight is None:
+                raise _err(
+                    "unsupported",
+                    "Hecke operators act here on modular forms (no E_2, quotients or expansions)",
+                    "",
+                    node,
+                )
+            if t.weight.denominator != 1:
+                raise _err("unsupported", "Hecke operators of half-integral weight are not supported", "", node)
+            return ir.Hecke(t, src, operand, int(value or 1), kind[-1])
         if kind == "D":
             for _ in range(int(value or 1)):
                 operand = _deriv(operand, src, node)
@@ -300,6 +317,9 @@ class Elaborator:
     def _name(self, node: ast.Name, src: str) -> ir.Expr:
         name = normal_name(node.text)
         scale = _scale_of(node)
+        if name in self.unknowns and node.arg is None:
+            value = self.unknowns[name]
+            return ir.Const(ir.Typ(Fraction(0) if value else None), src, value)
         if name == "q":
             if node.arg is not None:
                 raise _err("syntax", "q takes no argument", "", node)
@@ -350,11 +370,12 @@ def _factors(node: ast.Node) -> list[ast.Node]:
     return [node]
 
 
+_HECKE = re.compile(r"^([TU])_(?:\{\s*(\d+)\s*\}|(\d))$")
 _SERRE = re.compile(r"^\\partial(?:_(?:\{\s*(\d+(?:/\d+)?)\s*\}|(\d)))?$")
 
 
 def _operator(node: ast.Node) -> tuple[str, int | Fraction | None] | None:
-    """D, D^r (r >= 1), \\partial or \\partial_k: a differential operator; None otherwise."""
+    """D, D^r (r >= 1), \\partial or \\partial_k, T_n or U_n: an operator; None otherwise."""
     if isinstance(node, ast.Name) and node.arg is None:
         if node.text == "D":
             return ("D", 1)
@@ -362,6 +383,9 @@ def _operator(node: ast.Node) -> tuple[str, int | Fraction | None] | None:
         if m:
             value = m.group(1) or m.group(2)
             return ("serre", Fraction(value) if value else None)
+        h = _HECKE.match(node.text.replace(" ", ""))
+        if h and int(h.group(2) or h.group(3)) >= 1:
+            return ("hecke" + h.group(1), int(h.group(2) or h.group(3)))
     if (
         isinstance(node, ast.Power)
         and isinstance(node.base, ast.Name)
@@ -520,10 +544,10 @@ def _mul(a: ir.Expr, b: ir.Expr, src: str, node: ast.Node) -> ir.Expr:
         return _eta_expr(ea[0] * eb[0], ea[1] + eb[1], src, node)
     ta, tb = a.typ, b.typ
     printed = ta.printed or tb.printed
-    if printed or _is_zero(a) or _is_zero(b):
+    if printed or ta.weight is None or tb.weight is None:
+        # A printed expansion has no weight; a zero factor (weight None) makes the product 0.
         weight = None
     else:
-        assert ta.weight is not None and tb.weight is not None
         weight = ta.weight + tb.weight
     typ = ir.Typ(
         weight,
@@ -650,7 +674,7 @@ def degree(expr: ir.Expr) -> Fraction:
     if isinstance(expr, ir.Quotient):
         assert expr.left is not None
         return degree(expr.left)
-    if isinstance(expr, ir.Deriv):
+    if isinstance(expr, ir.Deriv | ir.Hecke):
         assert expr.base is not None
         return degree(expr.base)
     if isinstance(expr, ir.Power):

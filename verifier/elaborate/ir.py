@@ -110,6 +110,15 @@ class Deriv(Expr):
 
 
 @dataclass(frozen=True)
+class Hecke(Expr):
+    """``T_n base`` (``U_n`` when ``kind`` is "U"): a Hecke operator on a modular form (MATH.md §1.7)."""
+
+    base: Expr | None = None
+    n: int = 1
+    kind: str = "T"
+
+
+@dataclass(frozen=True)
 class Side:
     """One side of a claim: an expression and, for printed expansions, where it stops.
 

@@ -67,6 +67,8 @@ def rescale_expr(expr: ir.Expr, t: int) -> ir.Expr:
         if expr.key == "eta":
             return dataclasses.replace(expr, params=tuple((d * t, r) for d, r in expr.params))
         return dataclasses.replace(expr, scale=Fraction(expr.scale) * t)
+    if isinstance(expr, ir.Hecke):
+        raise ValueError("a claim with Hecke operators cannot be rescaled (its exponents must be integral)")
     if isinstance(expr, ir.Deriv):
         # (Df)(q^T) = T^{-1} D(f(q^T)): the claim in q^T carries a factor 1/T per derivative.
         assert expr.base is not None

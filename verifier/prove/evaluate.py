@@ -109,6 +109,9 @@ def laurent(expr: ir.Expr, prec: int, table: AtomTable) -> QSeries:
     if isinstance(expr, ir.Deriv):
         assert expr.base is not None
         return laurent(expr.base, prec, table).qderiv()
+    if isinstance(expr, ir.Hecke):
+        pieces = _hecke_pieces(expr, prec, table)
+        return next(iter(pieces.values()), QSeries.constant(0, prec))
     if isinstance(expr, ir.Power):
         assert expr.base is not None
         base = laurent(expr.base, prec, table)
@@ -221,6 +224,8 @@ def graded_fraction(expr: ir.Expr, prec: int, table: AtomTable, chars: Character
         an, ad = graded_fraction(expr.left, prec, table, chars)
         bn, bd = graded_fraction(expr.right, prec, table, chars)
         return graded_mul(an, bd), graded_mul(ad, bn)
+    if isinstance(expr, ir.Hecke):
+        return _hecke_pieces(expr, prec, table), one
     if isinstance(expr, ir.Deriv):
         assert expr.base is not None
         n, d = graded_fraction(expr.base, prec, table, chars)
@@ -237,6 +242,39 @@ def graded_fraction(expr: ir.Expr, prec: int, table: AtomTable, chars: Character
             n, d, e = d, n, -e
         return _g_pow(n, e, prec), _g_pow(d, e, prec)
     raise TypeError(f"{type(expr).__name__} has no modular meaning")
+
+
+def _hecke_pieces(expr: ir.Hecke, prec: int, table: AtomTable) -> Graded:
+    """T_n (or U_n) of a modular form, at the form's own level and character (MATH.md §1.7)."""
+    import math
+
+    from verifier.forms import registry
+    from verifier.prove.hecke import hecke, required_input_precision
+
+    assert expr.base is not None
+    level = 1
+    for a in ir.atoms_of(expr.base):
+        n_a = registry.level(a.key, int(a.scale), a.params)
+        level = level * n_a // math.gcd(level, n_a)
+
+    def chars(atom: ir.Atom) -> int:
+        return int(registry.character(atom.key, int(atom.scale), atom.params, level).kernel)
+
+    need = required_input_precision(expr.n, prec)
+    num, den = graded_fraction(expr.base, need, table, chars)
+    if not _is_one(den) or len(num) > 1:
+        raise registry.NotModular("a Hecke operator needs one modular form of one weight and character")
+    if not num:
+        return {}
+    (w, j, kernel), series = next(iter(num.items()))
+    if j:
+        raise registry.NotModular("Hecke operators do not act on quasimodular forms here")
+    if expr.kind == "U":
+        if level % expr.n:
+            raise registry.NotModular(f"U_{expr.n} needs {expr.n} to divide the level {level}; write T_{expr.n}")
+        coeffs = [series[m * expr.n] if m * expr.n < series.prec else 0 for m in range(prec)]
+        return {(w, 0, kernel): QSeries.from_coefficients(coeffs, 0, prec)}
+    return {(w, 0, kernel): hecke(series, expr.n, w, kernel, level, prec)}
 
 
 def graded_derivative(g: Graded, prec: int, table: AtomTable) -> Graded:

@@ -71,6 +71,13 @@ def fraction_bounds(expr: ir.Expr, level: int) -> tuple[Bounds, Bounds]:
         an, ad = fraction_bounds(expr.left, level)
         bn, bd = fraction_bounds(expr.right, level)
         return _add(an, bd), _add(ad, bn)
+    if isinstance(expr, ir.Hecke):
+        # T_n maps holomorphic forms to holomorphic forms; forms with poles are refused.
+        assert expr.base is not None
+        n, d = fraction_bounds(expr.base, level)
+        if min(n.values()) < 0 or min(d.values()) < 0:
+            raise registry.NotModular("Hecke operators on forms with poles at cusps are not supported")
+        return _const(level), _const(level)
     if isinstance(expr, ir.Deriv):
         # theta_k f, f and E_4 f have at least the orders of f at every cusp.
         assert expr.base is not None

@@ -3,10 +3,13 @@
 from __future__ import annotations
 
 import difflib
+import re
 from dataclasses import dataclass
 
 from verifier.scan.text import matching_brace
 
+LIST_OPTIONS = ("solve",)
+_MORE_NAMES = re.compile(r"\s*,\s*(\\?[A-Za-z](?:_\{?\w+\}?)?)(?![\w=])(?!\s*=)")
 KNOWN_OPTIONS = ("name", "group", "weight", "character", "nome", "for", "solve")
 
 
@@ -79,6 +82,11 @@ def parse_options(text: str) -> tuple[dict[str, str], list[OptionProblem]]:
                     depth -= 1
                 i += 1
             value = text[vstart:i]
+            if key in LIST_OPTIONS:
+                # solve=a,b: a list of names may go unbraced; it ends at the next key=value.
+                while (m := _MORE_NAMES.match(text, i)) is not None:
+                    value += "," + m.group(1)
+                    i = m.end()
         if key not in KNOWN_OPTIONS:
             close_names = difflib.get_close_matches(key, KNOWN_OPTIONS, n=2)
             if close_names:
