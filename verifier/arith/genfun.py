@@ -348,11 +348,23 @@ def _substitute_other(f: t.Fun, n: str, m: str, other: str) -> t.Fun:
 
 def _divisor_sum(s: t.Sum, var: str, values: Values) -> ir.Expr:
     d = s.var
+    if isinstance(s.lower, t.Bin) and s.lower.op == "/" and isinstance(s.lower.left, t.Var):
+        # sum over the divisors of n/c: the same sum at n/c, i.e. tau -> c tau.
+        if s.lower.left.name == var and not t.free_variables(s.lower.right):
+            c = values.value(s.lower.right, {})
+            if c.denominator == 1 and c > 0:
+                inner = t.Sum(s.text, s.kind, s.var, s.lower.left, s.upper, s.body)
+                return rescale_expr(_divisor_sum(inner, var, values), int(c))
     if not (isinstance(s.lower, t.Var) and s.lower.name == var):
-        raise Untranslatable(f"{s.text}: only sums over the divisors of {var} are translated")
+        raise Untranslatable(f"{s.text}: only sums over the divisors of {var} or {var}/c are translated")
     total: ir.Expr | None = None
-    for coeff, a, b, sign in _divisor_monomials(s.body, var, d, values):
-        piece = _parity_split(a, b, sign)
+    for coeff, a, b, sign, psi, phi in _divisor_monomials(s.body, var, d, values):
+        if psi == 1 and phi == 1:
+            piece = _parity_split(a, b, sign)
+        elif sign is not None:
+            raise Untranslatable(f"{s.text}: signs and characters together are not translated")
+        else:
+            piece = _character_sum(a, b, psi, phi)
         piece = mul(const(coeff), piece)
         total = piece if total is None else add(total, piece)
     assert total is not None
@@ -360,16 +372,17 @@ def _divisor_sum(s: t.Sum, var: str, values: Values) -> ir.Expr:
 
 
 Sign = tuple[int, int, int, int] | None  # (alpha, beta, gamma, delta) of (-1)^{alpha n + beta d + gamma n/d + delta}
+DivMono = tuple[Fraction, int, int, Sign, int, int]  # coeff, power of d, power of n/d, sign, psi(n/d), phi(d)
 
 
-def _divisor_monomials(body: t.A, n: str, d: str, values: Values) -> list[tuple[Fraction, int, int, Sign]]:
-    out: list[tuple[Fraction, int, int, Sign]] = [(Fraction(1), 0, 0, None)]
+def _divisor_monomials(body: t.A, n: str, d: str, values: Values) -> list[DivMono]:
+    out: list[DivMono] = [(Fraction(1), 0, 0, None, 1, 1)]
     for f in _factors(body):
         out = [_mul_div(x, y) for x in out for y in _divisor_factor(f, n, d, values)]
     return out
 
 
-def _mul_div(x: tuple[Fraction, int, int, Sign], y: tuple[Fraction, int, int, Sign]) -> tuple[Fraction, int, int, Sign]:
+def _mul_div(x: DivMono, y: DivMono) -> DivMono:
     sign: Sign
     if x[3] is None:
         sign = y[3]
@@ -377,7 +390,9 @@ def _mul_div(x: tuple[Fraction, int, int, Sign], y: tuple[Fraction, int, int, Si
         sign = x[3]
     else:
         sign = tuple((p + q) % 2 for p, q in zip(x[3], y[3], strict=True))  # type: ignore[assignment]
-    return (x[0] * y[0], x[1] + y[1], x[2] + y[2], sign)
+    if (x[4] != 1 and y[4] != 1) or (x[5] != 1 and y[5] != 1):
+        raise Untranslatable("a product of two characters of the same argument")
+    return (x[0] * y[0], x[1] + y[1], x[2] + y[2], sign, x[4] * y[4], x[5] * y[5])
 
 
 def _is_codivisor(e: t.A, n: str, d: str) -> bool:
@@ -391,26 +406,63 @@ def _is_codivisor(e: t.A, n: str, d: str) -> bool:
     )
 
 
-def _divisor_factor(f: t.A, n: str, d: str, values: Values) -> list[tuple[Fraction, int, int, Sign]]:
+def _divisor_factor(f: t.A, n: str, d: str, values: Values) -> list[DivMono]:
     if not t.free_variables(f):
-        return [(values.value(f, {}), 0, 0, None)]
+        return [(values.value(f, {}), 0, 0, None, 1, 1)]
     if isinstance(f, t.Var) and f.name == d:
-        return [(Fraction(1), 1, 0, None)]
+        return [(Fraction(1), 1, 0, None, 1, 1)]
     if isinstance(f, t.Var) and f.name == n:  # n = d * (n/d)
-        return [(Fraction(1), 1, 1, None)]
+        return [(Fraction(1), 1, 1, None, 1, 1)]
     if _is_codivisor(f, n, d):
-        return [(Fraction(1), 0, 1, None)]
+        return [(Fraction(1), 0, 1, None, 1, 1)]
+    if isinstance(f, t.Fun) and f.name == "chi":
+        from verifier.forms.characters import is_fundamental_discriminant
+
+        assert f.index is not None
+        if not is_fundamental_discriminant(f.index):
+            raise Untranslatable(f"{f.text}: only characters of fundamental discriminants are translated")
+        kernel = QuadraticCharacterKernel(f.index)
+        if isinstance(f.arg, t.Var) and f.arg.name == d:
+            return [(Fraction(1), 0, 0, None, 1, kernel)]
+        if _is_codivisor(f.arg, n, d):
+            return [(Fraction(1), 0, 0, None, kernel, 1)]
     if isinstance(f, t.Pow):
         if not t.free_variables(f.base) and values.value(f.base, {}) == -1:
-            return [(Fraction(1), 0, 0, _linear_parity(f.exponent, n, d, values))]
+            return [(Fraction(1), 0, 0, _linear_parity(f.exponent, n, d, values), 1, 1)]
         if not t.free_variables(f.exponent):
             k = values.value(f.exponent, {})
             if k.denominator == 1 and 0 <= k <= 64:
-                out: list[tuple[Fraction, int, int, Sign]] = [(Fraction(1), 0, 0, None)]
+                out: list[DivMono] = [(Fraction(1), 0, 0, None, 1, 1)]
                 for _ in range(int(k)):
                     out = [_mul_div(x, y) for x in out for y in _divisor_factor(f.base, n, d, values)]
                 return out
-    raise Untranslatable(f"{f.text}: divisor sums are translated for powers of d and n/d and signs (-1)^(...)")
+    raise Untranslatable(
+        f"{f.text}: divisor sums are translated for powers of d and n/d, signs (-1)^(...) and characters chi_D"
+    )
+
+
+def QuadraticCharacterKernel(disc: int) -> int:  # noqa: N802 - reads like the class it stands for
+    """The kernel of the character (disc / .)."""
+    from verifier.forms.characters import QuadraticCharacter
+
+    return int(QuadraticCharacter.from_integer(disc).kernel)
+
+
+def _character_sum(a: int, b: int, psi: int, phi: int) -> ir.Expr:
+    """sum_{n>=1} (sum_{d|n} psi(n/d) phi(d) d^a (n/d)^b) q^n via E_k^{psi,phi} (MATH.md §1.8)."""
+    from verifier.forms.characters import QuadraticCharacter
+    from verifier.forms.eisenstein_chars import constant_term, is_defined
+
+    if a < b:  # swap the roles of d and n/d
+        a, b, psi, phi = b, a, phi, psi
+    k = a - b + 1
+    chi_psi, chi_phi = QuadraticCharacter(psi), QuadraticCharacter(phi)
+    if not is_defined(k, chi_psi, chi_phi):
+        raise Untranslatable(f"no Eisenstein series of weight {k} with these characters (parity)")
+    eis = ir.Atom(ir.Typ(Fraction(k)), f"E_{k}^(psi,phi)", "Echar", Fraction(1), (k, psi, phi))
+    c0 = constant_term(k, chi_psi, chi_phi)
+    gen = mul(const(Fraction(1, 2)), add(eis, const(c0), -1))
+    return deriv(gen, b)
 
 
 def _linear_parity(e: t.A, n: str, d: str, values: Values) -> tuple[int, int, int, int]:

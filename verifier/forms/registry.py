@@ -162,6 +162,11 @@ def level(key: str, scale: int, params: tuple[Any, ...]) -> int:
         return int(n)
     if key == "theta":
         return int(quadratic_form(params).level) * scale
+    if key == "Echar":
+        from verifier.forms.characters import QuadraticCharacter
+
+        _, psi, phi = params
+        return QuadraticCharacter(psi).conductor * QuadraticCharacter(phi).conductor * scale
     return scale
 
 
@@ -171,6 +176,9 @@ def character(key: str, scale: int, params: tuple[Any, ...], at_level: int) -> A
 
     if key == "eta":
         return eta_quotient(params).character(at_level)
+    if key == "Echar":
+        _, psi, phi = params
+        return QuadraticCharacter(psi) * QuadraticCharacter(phi)
     if key == "theta":
         form = quadratic_form(params)
         chi = form.character
@@ -203,6 +211,12 @@ def build_series(key: str, params: tuple[Any, ...], prec: int) -> QSeries:
     if key == "theta":
         series: QSeries = quadratic_form(params).series(prec)
         return series
+    if key == "Echar":
+        from verifier.forms.characters import QuadraticCharacter
+        from verifier.forms.eisenstein_chars import eisenstein_character_series
+
+        k, psi, phi = params
+        return eisenstein_character_series(k, QuadraticCharacter(psi), QuadraticCharacter(phi), prec)
     if key.startswith("E"):
         from verifier.forms.eisenstein import eisenstein_series
 

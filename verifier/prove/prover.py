@@ -270,7 +270,8 @@ class Prover:
         depth = max((_nonzero_depth(g, setup) for g in (nl, nr)), default=0)
         weight = wl if wl is not None else wr
         cleared = left.expr.typ.den_weight + right.expr.typ.den_weight
-        characters = sorted({c["character"] for c in components}) or ["trivial"]
+        top = max((Fraction(c["weight"]) for c in components), default=Fraction(0))
+        characters = sorted({c["character"] for c in components if Fraction(c["weight"]) == top}) or ["trivial"]
         character = characters[0] if len(characters) == 1 else "mixed: " + ", ".join(characters)
         space = space_of(weight, level, depth, character, not setup.has_poles)
         proof_space = space
