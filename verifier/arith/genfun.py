@@ -441,7 +441,7 @@ def _divisor_factor(f: t.A, n: str, d: str, values: Values) -> list[DivMono]:
     )
 
 
-def QuadraticCharacterKernel(disc: int) -> int:  # noqa: N802 - reads like the class it stands for
+def QuadraticCharacterKernel(disc: int) -> int:
     """The kernel of the character (disc / .)."""
     from verifier.forms.characters import QuadraticCharacter
 
