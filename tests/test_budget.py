@@ -29,5 +29,5 @@ def test_a_claim_over_its_time_budget_is_an_error_and_the_rest_is_checked() -> N
     )
     report = check_text(text, "t.tex", max_seconds=0.02)
     heavy, light = report.claims
-    assert (heavy.verdict, heavy.outcome.code) == ("error", "budget")
+    assert (heavy.verdict, heavy.outcome.code) == ("error", "time-budget")
     assert light.verdict == "proved"

@@ -70,7 +70,7 @@ def decide_timed(prover: Prover, job: Job, max_seconds: float | None) -> tuple[O
             "error",
             kind,
             f"stopped after {max_seconds:g} s (the time budget); deciding it needs about {need} coefficients",
-            code="budget",
+            code="time-budget",
             hint="raise --max-seconds if this is intended",
         )
     return outcome, time.perf_counter() - start

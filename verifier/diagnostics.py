@@ -71,6 +71,8 @@ CODES: dict[str, tuple[str, str]] = {
     # prove
     "zero-division": ("prove", "A side divides by a form that is identically zero."),
     "budget": ("prove", "Proving the claim needs more coefficients than the budget allows."),
+    "time-budget": ("prove", "The claim ran past its time budget (--max-seconds) and was stopped."),
+    "internal": ("prove", "qreferee found an inconsistency in its own computation; the claim is not decided."),
 }
 
 
