@@ -59,6 +59,7 @@ class ClaimResult:
     source: str
     outcome: Outcome
     seconds: float = 0.0
+    reading: str = ""  # the claim as the parser saw it (after the author's macros were expanded)
 
     @property
     def verdict(self) -> str:
@@ -91,6 +92,7 @@ class ClaimResult:
             "components": o.components,
             "table": o.table,
             "suggestion": o.suggestion,
+            "reading": self.reading,
         }
 
 
@@ -449,6 +451,7 @@ def _claim(
         code, message, hint = problem
         return _error(block.tag, code, message, hint, source, name, row.label, kind, end)
     result = ClaimResult(loc, end, name, row.label, source, Outcome("error", kind, "not decided"))
+    result.reading = " ".join(text.text[left_node.span[0] : right_node.span[1]].split())
     definitions, matrices = dict(elaborator.definitions), dict(elaborator.matrices)
 
     def make_build(lt: ast.Node, rt: ast.Node, fixed: dict[str, Fraction]) -> Any:

@@ -6,8 +6,17 @@ Heavy imports (FLINT, lark) happen only when a command runs, so ``--help`` is in
 from __future__ import annotations
 
 import argparse
+import contextlib
+import importlib
+import os
 import sys
+import tempfile
 from collections.abc import Sequence
+from pathlib import Path
+from typing import TYPE_CHECKING
+
+if TYPE_CHECKING:
+    from verifier.api import Report
 
 EXIT_ALL_PROVED = 0
 EXIT_FINDINGS = 1  # some claim refuted or unproven
@@ -30,8 +39,30 @@ exit status: 0 every claim proved; 1 some claim refuted or unproven;
 examples:
   qreferee check paper.tex
   qreferee check notes.md --format json
+  qreferee check paper.tex --format html -o report.html
+  qreferee check paper.tex --format sarif -o qreferee.sarif
+  qreferee check paper.tex --annotate paper-checked.tex
   qreferee explain mixed-weight
 """
+
+# Modules that add their own subcommands: each has register(subparsers), which adds a
+# subparser with set_defaults(func=...), func(args) -> exit status.
+PLUGIN_MODULES = ("verifier.watch", "verifier.screen")
+
+FORMATS = ("text", "json", "html", "sarif")
+
+ANNOTATE_HELP = (
+    "also write a copy of the manuscript (one FILE) to OUT with each claim's verdict next to it. "
+    "LaTeX: a coloured note after each tagged display, on the same line, so line numbers are kept; "
+    "Markdown: a blockquote line under each claim block. Only claims of FILE itself are placed; "
+    "claims in \\input files are counted in a summary. To get FILE back byte for byte, delete every span "
+    "from \\iffalse<qreferee>\\fi to \\iffalse</qreferee>\\fi (LaTeX) or every line containing "
+    "<!-- qreferee-note --> (Markdown)"
+)
+
+
+class UsageError(Exception):
+    """A request the command refuses (exit status 2), with the message to print."""
 
 
 def build_parser() -> argparse.ArgumentParser:
@@ -54,10 +85,19 @@ def build_parser() -> argparse.ArgumentParser:
     check.add_argument("files", nargs="+", metavar="FILE", help="a .tex (or other LaTeX) or .md file")
     check.add_argument(
         "--format",
-        choices=("text", "json"),
+        choices=FORMATS,
         default="text",
-        help="text: one 'file:line:col: severity: verdict: message' line per claim; json: the full report",
+        help="text: one 'file:line:col: severity: verdict: message' line per claim; json: the full report; "
+        "html: a self-contained page; sarif: SARIF 2.1.0 for code-scanning tools",
     )
+    check.add_argument(
+        "-o",
+        "--output",
+        metavar="FILE",
+        default=None,
+        help="write the report to FILE instead of standard output ('-'), atomically and never over an input",
+    )
+    check.add_argument("--annotate", metavar="OUT", default=None, help=ANNOTATE_HELP)
     check.add_argument(
         "--max-terms",
         type=int,
@@ -68,6 +108,14 @@ def build_parser() -> argparse.ArgumentParser:
     check.add_argument("-v", "--verbose", action="store_true", help="also print each claim as it was read")
     explain = sub.add_parser("explain", help="describe a diagnostic code")
     explain.add_argument("code", nargs="?", help="a code such as mixed-weight; none lists all codes")
+    for name in PLUGIN_MODULES:
+        try:
+            module = importlib.import_module(name)
+        except ImportError:
+            continue  # not installed (yet): the other commands work without it
+        register = getattr(module, "register", None)
+        if callable(register):
+            register(sub)
     return parser
 
 
@@ -80,8 +128,14 @@ def main(argv: Sequence[str] | None = None) -> int:
         return EXIT_INPUT_ERROR
     if args.command == "explain":
         return _explain(args.code)
+    func = getattr(args, "func", None)
     try:
+        if callable(func):
+            return int(func(args))
         return _check(args)
+    except UsageError as exc:
+        print(f"qreferee: {exc}", file=sys.stderr)
+        return EXIT_INPUT_ERROR
     except KeyboardInterrupt:
         return 130
     except Exception as exc:  # a bug, not a finding: say so distinctly
@@ -108,6 +162,16 @@ def _check(args: argparse.Namespace) -> int:
     from verifier.api import Report, check_path
     from verifier.prove.prover import DEFAULT_MAX_TERMS
 
+    if args.annotate is not None and len(args.files) != 1:
+        raise UsageError("--annotate takes exactly one manuscript")
+    inputs = [Path(f) for f in args.files]
+    targets = [Path(t) for t in (args.output, args.annotate) if t is not None and t != "-"]
+    _refuse_inputs(targets, inputs)
+    if args.output is not None and args.annotate is not None and _same_file(Path(args.output), Path(args.annotate)):
+        raise UsageError("--output and --annotate name the same file")
+
+    annotate_source = _read_for_annotation(Path(args.files[0])) if args.annotate is not None else None
+
     max_terms = args.max_terms if args.max_terms else DEFAULT_MAX_TERMS
     combined = Report()
     for name in args.files:
@@ -115,12 +179,113 @@ def _check(args: argparse.Namespace) -> int:
         combined.claims.extend(report.claims)
         combined.diagnostics.extend(report.diagnostics)
         combined.files.extend(report.files)
-    if args.format == "json":
+    # \input files are inputs too.
+    _refuse_inputs(targets, [Path(f) for f in combined.files])
+
+    if args.annotate is not None and annotate_source is not None:
+        _annotate(Path(args.files[0]), annotate_source, Path(args.annotate), combined)
+    rendered = _render(combined, args.format, args.verbose)
+    if args.output is None or args.output == "-":
+        sys.stdout.write(rendered)
+    else:
+        write_atomic(Path(args.output), rendered.encode("utf-8"))
+    return combined.exit_code
+
+
+def _render(report: Report, fmt: str, verbose: bool) -> str:
+    if fmt == "json":
         from verifier.report import json_report
 
-        sys.stdout.write(json_report.render(combined))
-    else:
-        from verifier.report import text
+        return json_report.render(report)
+    if fmt == "html":
+        from verifier.report import html
 
-        sys.stdout.write(text.render(combined, verbose=args.verbose))
-    return combined.exit_code
+        return html.render(report)
+    if fmt == "sarif":
+        from verifier.report import sarif
+
+        return sarif.render(report)
+    from verifier.report import text
+
+    return text.render(report, verbose=verbose)
+
+
+def _read_for_annotation(source: Path) -> str | None:
+    """The manuscript's text for --annotate (None if unreadable: the check reports that)."""
+    from verifier.annotate import has_annotations
+    from verifier.scan import is_markdown
+
+    try:
+        data = source.read_bytes()
+    except OSError:
+        return None
+    # surrogateescape keeps undecodable bytes, so the copy differs from the input only by the notes.
+    text = data.decode("utf-8", errors="surrogateescape")
+    markdown = is_markdown(source.name)
+    if has_annotations(text, markdown=markdown):
+        how = (
+            "delete the lines containing <!-- qreferee-note -->"
+            if markdown
+            else "delete each span from \\iffalse<qreferee>\\fi to \\iffalse</qreferee>\\fi"
+        )
+        raise UsageError(f"{source} already contains qreferee annotations; strip them first ({how})")
+    return text
+
+
+def _annotate(source: Path, text: str, out: Path, report: Report) -> None:
+    from verifier.annotate import annotate
+    from verifier.scan import is_markdown
+
+    if not report.files:
+        raise UsageError(f"cannot annotate {source}: it could not be read")
+    annotated = annotate(text, report, report.files[0], markdown=is_markdown(source.name))
+    write_atomic(out, annotated.encode("utf-8", errors="surrogateescape"))
+
+
+def _same_file(a: Path, b: Path) -> bool:
+    try:
+        if a.resolve() == b.resolve():
+            return True
+        return a.exists() and b.exists() and os.path.samefile(a, b)
+    except OSError:
+        return False
+
+
+def _refuse_inputs(targets: list[Path], inputs: list[Path]) -> None:
+    """Refuse to write any output over a file the run reads."""
+    for target in targets:
+        for source in inputs:
+            if _same_file(target, source):
+                raise UsageError(f"refusing to write {target}: it is the input {source}")
+
+
+def write_atomic(path: Path, data: bytes) -> None:
+    """Write ``data`` to ``path`` through a temporary file in the same folder and os.replace.
+
+    Readers see the old file or the new one, never a half-written one.  A new file gets the
+    usual permissions (0666 less the umask); an existing file keeps its permissions.
+    """
+    folder = path.parent if str(path.parent) else Path(".")
+    try:
+        mode = path.stat().st_mode & 0o7777
+    except OSError:
+        umask = os.umask(0)
+        os.umask(umask)
+        mode = 0o666 & ~umask
+    try:
+        fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=folder)
+    except OSError as exc:
+        raise UsageError(f"cannot write {path}: {exc.strerror or exc}") from exc
+    try:
+        with os.fdopen(fd, "wb") as handle:
+            handle.write(data)
+            handle.flush()
+            os.fsync(handle.fileno())
+        os.chmod(tmp, mode)
+        os.replace(tmp, path)
+    except BaseException as exc:
+        with contextlib.suppress(OSError):
+            os.unlink(tmp)
+        if isinstance(exc, OSError):
+            raise UsageError(f"cannot write {path}: {exc.strerror or exc}") from exc
+        raise

@@ -82,13 +82,6 @@ class Elaborator:
                         term,
                     )
                 if isinstance(term, ast.Dots):
-                    if sign < 0:
-                        raise _err(
-                            "bad-expansion",
-                            "'- \\cdots' is not a printed expansion",
-                            "write + \\cdots",
-                            term,
-                        )
                     dots = True
                 elif isinstance(term, ast.BigO):
                     m = _big_o_exponent(term) * self.nome

@@ -232,7 +232,13 @@ class Prover:
 
         nl, dl, nr, dr, p = self._cleared(left, right, need, chars)
         for den, side in ((dl, left), (dr, right)):
-            if not _graded_nonzero(den, setup):
+            # A known nonzero coefficient proves a denominator nonzero; "identically zero" needs
+            # every piece to vanish through a bound valid for the denominator itself.
+            if any(not s.is_zero() for s in den.values()):
+                continue
+            den_setup = Setup(level, side.expr.typ.den_weight, orders.fraction_bounds(side.expr, level)[1])
+            known = min((s.prec for s in den.values()), default=need)
+            if all(den_setup.bound(w - 2 * j) < known for (w, j, _) in den):
                 return Outcome(
                     "error",
                     kind,
@@ -240,6 +246,12 @@ class Prover:
                     code="zero-division",
                     hint="check the denominator",
                 )
+            return Outcome(
+                "unproven",
+                kind,
+                f"could not decide whether the denominator of {side.expr.text} vanishes",
+                code="unsupported",
+            )
         components: list[dict[str, Any]] = []
         differing: list[tuple[Fraction, int, int]] = []
         terms = 0
@@ -486,11 +498,6 @@ def _nonzero_depth(g: Graded, setup: Setup) -> int:
     """Highest E_2-power whose coefficient form is nonzero (checked to its bound)."""
     depths = [j for (w, j, _), s in g.items() if _first_nonzero(s, setup.bound(w - 2 * j) + 1) is not None]
     return max(depths, default=0)
-
-
-def _graded_nonzero(g: Graded, setup: Setup) -> bool:
-    """Whether some piece is nonzero; a piece vanishing through its bound is 0."""
-    return any(_first_nonzero(series, setup.bound(w - 2 * j) + 1) is not None for (w, j, _), series in g.items())
 
 
 def _space_text(space: dict[str, Any]) -> str:

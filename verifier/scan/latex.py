@@ -27,7 +27,7 @@ from verifier.scan.options import parse_options
 from verifier.scan.text import MappedText, SourceFile, blank_comments
 
 ENVIRONMENTS = ("equation", "align", "gather", "multline", "flalign")
-_TAG_LINE = re.compile(r"^[ \t]*%@(?P<kind>claim|define)(?P<rest>(?![A-Za-z]).*)$", re.M)
+_TAG_LINE = re.compile(r"^\ufeff?[ \t]*%@(?P<kind>claim|define)(?P<rest>(?![A-Za-z]).*)$", re.M)
 _INCLUDE = re.compile(
     r"\\(?P<cmd>input|include|subfile)(?![A-Za-z])\s*(?:\{(?P<braced>[^{}]*)\}|(?P<bare>[^\s{}\\%]+))"
 )

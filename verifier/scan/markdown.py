@@ -19,7 +19,7 @@ from verifier.scan.options import parse_options
 from verifier.scan.text import MappedText, SourceFile
 
 _TAG = re.compile(r"<!--\s*@(?P<kind>claim|define)(?![A-Za-z])(?P<rest>.*?)-->", re.S)
-_FENCE_OPEN = re.compile(r"(?P<fence>`{3,}|~{3,})[ \t]*math[ \t]*\n")
+_FENCE_OPEN = re.compile(r"(?P<fence>`{3,}|~{3,})[ \t]*math[ \t]*\r?\n")
 
 
 def scan_markdown_source(source: SourceFile) -> ScannedDocument:
@@ -85,7 +85,7 @@ def _tag(source: SourceFile, m: re.Match[str], macros: dict[str, macro_mod.Macro
             )
             return
         start = fence.end()
-        closing = re.compile(r"^[ \t]*" + re.escape(fence.group("fence")) + r"[ \t]*$", re.M)
+        closing = re.compile(r"^[ \t]*" + re.escape(fence.group("fence")) + r"[ \t]*\r?$", re.M)
         found = closing.search(text, start)
         close = found.start() if found else -1
         opener = fence.group("fence") + "math"

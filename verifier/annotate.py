@@ -1,0 +1,483 @@
+r"""An annotated copy of a manuscript: every tagged claim carries its verdict.
+
+Only the claims of the main file are placed next to their display; claims read from
+``\input``/``\include`` files, claims whose display cannot be found (an orphan tag, an
+unclosed display) and document diagnostics are listed in a summary instead.  The input
+is never modified: the command line writes the copy to another file.
+
+LaTeX
+=====
+
+Every insertion is one span on one line, between two markers that typeset nothing
+(``\iffalse ... \fi`` skips its text, so no package is needed)::
+
+    \iffalse<qreferee>\fi ... \iffalse</qreferee>\fi
+
+No line is added or removed, so every line of the copy keeps its number (and pdflatex's
+messages about the copy point at the source's lines).  The spans are:
+
+* just before ``\begin{document}``: ``\usepackage{xcolor}`` (only when the preamble does
+  not load xcolor) and the definitions, by ``\providecommand``, of ``\qrefereeNote``,
+  ``\qrefereeColor`` and ``\qrefereeSummary``, and (by ``\definecolor``, when a colour
+  package is loaded) of colours named ``qreferee`` + verdict or severity.  A file without
+  ``\begin{document}`` (a part meant for ``\input``) gets the definitions, and no
+  ``\usepackage``, at its very start; its notes are coloured when the document that
+  inputs it loads color or xcolor;
+* right after the end of each tagged display (``\end{align}``, ``\]``, ``$$``), on the
+  same line: one note per claim of the display, as a paragraph of its own below the
+  display (never inside the math, never a margin note);
+* just before ``\end{document}`` (at the start, for a file without one): the summary.
+
+To get the source back byte for byte, delete every span from ``\iffalse<qreferee>\fi`` to
+the next ``\iffalse</qreferee>\fi``, for instance with::
+
+    perl -pe 's{\\iffalse<qreferee>\\fi.*?\\iffalse</qreferee>\\fi}{}g' copy.tex > source.tex
+
+or call :func:`strip_annotations`.  The text inside a span is ASCII and its backslashes
+are escaped, so a span never contains the closing marker early.
+
+Markdown
+========
+
+Every insertion is a whole line that contains the marker ``<!-- qreferee-note -->``.
+After the line that closes each tagged math block come a blockquote line with the
+verdict (one list item per claim when the block holds several) and a line holding only
+the marker, an HTML comment that ends the blockquote so that the following text is not
+drawn into it.  The summary goes at the end of the file.  Both render in any Markdown
+viewer.  To get the source back, delete every line that contains the marker::
+
+    sed '/<!-- qreferee-note -->/d' copy.md > source.md
+
+with one exception: if the source did not end with a line break, the copy gained a
+``\n`` before its first note line at the end, and that ``\n`` must go too
+(:func:`strip_annotations` does this).
+
+A manuscript that already contains either marker is refused (strip it first).
+"""
+
+from __future__ import annotations
+
+import re
+import unicodedata
+from collections.abc import Iterable
+from dataclasses import dataclass, field
+
+from verifier.api import ClaimResult, Report
+from verifier.diagnostics import Diagnostic
+from verifier.report.text import CAUTION
+from verifier.scan.text import blank_comments
+
+LATEX_OPEN = r"\iffalse<qreferee>\fi"
+LATEX_CLOSE = r"\iffalse</qreferee>\fi"
+MARKDOWN_MARK = "<!-- qreferee-note -->"
+
+_LATEX_SPAN = re.compile(re.escape(LATEX_OPEN) + r".*?" + re.escape(LATEX_CLOSE))
+
+VERDICT_ORDER = ("error", "refuted", "unproven", "proved")
+_COLOURS = {
+    "proved": "0,0.45,0.1",
+    "refuted": "0.75,0,0",
+    "unproven": "0.8,0.45,0",
+    "error": "0.55,0,0.55",
+    "warning": "0.8,0.45,0",
+    "note": "0.3,0.3,0.3",
+    "summary": "0.2,0.2,0.2",
+}
+_SYMBOL = {"proved": "✅", "refuted": "❌", "unproven": "⚠️", "error": "⛔"}
+
+
+class AlreadyAnnotated(ValueError):
+    """The manuscript already contains qreferee's markers."""
+
+
+@dataclass
+class _Block:
+    """A tagged display of the main file: tag line, last line, where its note goes."""
+
+    first_line: int
+    last_line: int
+    insert_at: int
+    claims: list[ClaimResult] = field(default_factory=list)
+
+
+# ---------------------------------------------------------------------------
+# Public entry points
+# ---------------------------------------------------------------------------
+
+
+def has_annotations(text: str, markdown: bool) -> bool:
+    """True if ``text`` already holds qreferee's markers (LaTeX or Markdown)."""
+    if markdown:
+        return MARKDOWN_MARK in text
+    return LATEX_OPEN in text or LATEX_CLOSE in text
+
+
+def annotate(text: str, report: Report, main_file: str, markdown: bool) -> str:
+    """The annotated copy of ``text``, the main file of ``report`` (named ``main_file`` there).
+
+    Raises :class:`AlreadyAnnotated` if ``text`` already contains the markers.
+    """
+    if has_annotations(text, markdown):
+        raise AlreadyAnnotated("the manuscript already contains qreferee annotations; strip them first")
+    if markdown:
+        return _annotate_markdown(text, report, main_file)
+    return _annotate_latex(text, report, main_file)
+
+
+def strip_annotations(text: str, markdown: bool) -> str:
+    """The inverse of :func:`annotate`: the source, byte for byte."""
+    if not markdown:
+        return _LATEX_SPAN.sub("", text)
+    lines = _lines(text)
+    kept = [line for line in lines if MARKDOWN_MARK not in line]
+    if lines and MARKDOWN_MARK in lines[-1] and not lines[-1].endswith("\n") and kept:
+        # The source had no final line break; annotate added exactly one "\n".
+        kept[-1] = kept[-1][:-1]
+    return "".join(kept)
+
+
+# ---------------------------------------------------------------------------
+# Shared
+# ---------------------------------------------------------------------------
+
+
+def _lines(text: str) -> list[str]:
+    """Lines with their terminators (only ``\\n`` ends a line, as in the scanners)."""
+    parts = text.split("\n")
+    lines = [p + "\n" for p in parts[:-1]]
+    if parts[-1]:
+        lines.append(parts[-1])
+    return lines
+
+
+def _line_of(text: str, offset: int) -> int:
+    return text.count("\n", 0, offset) + 1
+
+
+def _assign(blocks: list[_Block], claims: Iterable[ClaimResult]) -> list[ClaimResult]:
+    """Give each claim to the block whose lines hold it; return the claims left over."""
+    left: list[ClaimResult] = []
+    for c in claims:
+        home = next((b for b in blocks if b.first_line <= c.location.line <= b.last_line), None)
+        if home is None:
+            left.append(c)
+        else:
+            home.claims.append(c)
+    return left
+
+
+def _summary_counts(report: Report) -> str:
+    s = report.summary
+    total = sum(s.values())
+    return (
+        f"{total} claim{'s' if total != 1 else ''}: {s['proved']} proved, {s['refuted']} refuted, "
+        f"{s['unproven']} unproven, {s['error']} error{'s' if s['error'] != 1 else ''}"
+    )
+
+
+def _claim_id(c: ClaimResult) -> str:
+    who = c.name or c.label
+    return f"[{who}] line {c.location.line}" if who else f"line {c.location.line}"
+
+
+def _claim_message(c: ClaimResult) -> str:
+    o = c.outcome
+    code = f" [{o.code}]" if o.code else ""
+    hint = f" (hint: {o.hint})" if o.hint else ""
+    suggestion = getattr(o, "suggestion", None)
+    fix = f" (suggested: {suggestion})" if suggestion else ""
+    return " ".join(f"{o.message}{code}{hint}{fix}".split())
+
+
+def _diagnostic_text(d: Diagnostic) -> str:
+    hint = f" (hint: {d.hint})" if d.hint else ""
+    return " ".join(f"{d.location}: {d.severity}: {d.message} [{d.code}]{hint}".split())
+
+
+# ---------------------------------------------------------------------------
+# LaTeX
+# ---------------------------------------------------------------------------
+
+_TAG_LINE = re.compile(r"^[ \t]*%@(?P<kind>claim|define)(?![A-Za-z]).*$", re.M)
+_ENVIRONMENTS = ("equation", "align", "gather", "multline", "flalign")
+_DISPLAY_OPEN = re.compile(r"\\\[|\$\$|\\begin\s*\{(?P<env>(?:" + "|".join(_ENVIRONMENTS) + r")\*?)\}")
+_BEGIN_DOCUMENT = re.compile(r"\\begin\s*\{document\}")
+_END_DOCUMENT = re.compile(r"\\end\s*\{document\}")
+_PACKAGES = re.compile(r"\\(?:usepackage|RequirePackage)\s*(?:\[[^\]]*\])?\s*\{([^{}]*)\}")
+
+_TEX_ESCAPES = {
+    "\\": r"\textbackslash{}",
+    "{": r"\{",
+    "}": r"\}",
+    "$": r"\$",
+    "&": r"\&",
+    "#": r"\#",
+    "%": r"\%",
+    "_": r"\_",
+    "^": r"\textasciicircum{}",
+    "~": r"\textasciitilde{}",
+    "<": r"\textless{}",
+    ">": r"\textgreater{}",
+    "|": r"\textbar{}",
+}
+_ASCII_FALLBACK = {
+    "−": "-",
+    "–": "-",
+    "—": "-",
+    "·": "*",
+    "×": "x",
+    "≠": "!=",
+    "≤": "<=",
+    "≥": ">=",
+    "∈": " in ",
+    "…": "...",
+    "⋯": "...",
+    "τ": "tau",
+    "Γ": "Gamma",
+    "Δ": "Delta",
+    "Θ": "Theta",
+    "η": "eta",
+    "θ": "theta",
+    "χ": "chi",
+    "σ": "sigma",
+}
+
+
+def _ascii(text: str) -> str:
+    """``text`` on one line, in printable ASCII (other characters spelled out or replaced)."""
+    out: list[str] = []
+    for ch in " ".join(text.split()):
+        if " " <= ch <= "~":
+            out.append(ch)
+            continue
+        plain = _ASCII_FALLBACK.get(ch)
+        if plain is None:
+            plain = unicodedata.normalize("NFKD", ch).encode("ascii", "ignore").decode("ascii") or "?"
+        out.append("".join(p for p in plain if " " <= p <= "~"))
+    return "".join(out)
+
+
+def tex_escape(text: str) -> str:
+    """``text`` as LaTeX text in the roman font: ASCII, one line, special characters escaped."""
+    return "".join(_TEX_ESCAPES.get(ch, ch) for ch in _ascii(text))
+
+
+def tt_escape(text: str) -> str:
+    """``text`` for the typewriter font: special characters by their ASCII code (``\\char92{}``)."""
+    return "".join(f"\\char{ord(ch)}{{}}" if ch in _TEX_ESCAPES else ch for ch in _ascii(text))
+
+
+def _latex_setup(with_package: bool) -> str:
+    colours = "".join(rf"\definecolor{{qreferee{name}}}{{rgb}}{{{rgb}}}" for name, rgb in _COLOURS.items())
+    parts = [
+        r"\usepackage{xcolor}" if with_package else "",
+        r"\ifdefined\definecolor" + colours + r"\fi",
+        r"\providecommand{\qrefereeColor}[2]{\ifdefined\textcolor\textcolor{qreferee#1}{#2}\else#2\fi}",
+        # A note: a paragraph of its own below the display, then the text after the display
+        # goes on unindented, as it would after the display itself.
+        r"\providecommand{\qrefereeNote}[3]{\par\begingroup\noindent\raggedright\small"
+        r"\frenchspacing\qrefereeColor{#1}{\rule[-0.3ex]{0.75em}{1.9ex}~\textbf{qreferee: #1}}~#2:~\texttt{#3}"
+        r"\par\endgroup\addvspace{\smallskipamount}\csname @doendpe\endcsname}",
+        r"\providecommand{\qrefereeSummary}[2]{\par\medskip\begingroup\noindent\raggedright\small\frenchspacing"
+        r"\qrefereeColor{summary}{\textbf{qreferee summary:}}~#1.\par\texttt{#2}\par\endgroup}",
+    ]
+    return "".join(parts)
+
+
+def _latex_note(c: ClaimResult) -> str:
+    verdict = c.verdict if c.verdict in _COLOURS else "error"
+    return rf"\qrefereeNote{{{verdict}}}{{{tex_escape(_claim_id(c))}}}{{{tt_escape(_claim_message(c))}}}"
+
+
+def _latex_span(body: str) -> str:
+    assert "\n" not in body and LATEX_CLOSE not in body
+    return LATEX_OPEN + body + LATEX_CLOSE
+
+
+def _latex_blocks(text: str) -> list[_Block]:
+    """Every tagged display of a LaTeX source, found as the scanner finds it."""
+    bare = blank_comments(text)
+    tags = list(_TAG_LINE.finditer(text))
+    starts = [m.start() for m in tags]
+    blocks: list[_Block] = []
+    for m in tags:
+        if m.group("kind") != "claim":
+            continue
+        i = m.end()
+        while i < len(bare) and bare[i] in " \t\r\n":
+            i += 1
+        opener = _DISPLAY_OPEN.match(bare, i)
+        next_tag = next((t for t in starts if t > m.start()), None)
+        if opener is None or (next_tag is not None and next_tag < i):
+            continue
+        env = opener.group("env")
+        if env:
+            closer = re.compile(r"\\end\s*\{" + re.escape(env) + r"\}").search(bare, opener.end())
+            end = closer.end() if closer else -1
+        else:
+            token = "\\]" if opener.group(0) == "\\[" else "$$"
+            found = bare.find(token, opener.end())
+            end = found + len(token) if found >= 0 else -1
+        if end < 0:
+            continue
+        blocks.append(_Block(_line_of(text, m.start()), _line_of(text, end - 1), end))
+    return blocks
+
+
+def _annotate_latex(text: str, report: Report, main_file: str) -> str:
+    bare = blank_comments(text)
+    begin = _BEGIN_DOCUMENT.search(bare)
+    end = _END_DOCUMENT.search(bare, begin.end()) if begin else None
+    body_start = begin.end() if begin else 0
+    body_end = end.start() if end else len(text)
+    blocks = [b for b in _latex_blocks(text) if body_start <= b.insert_at <= body_end]
+    mine = [c for c in report.claims if c.location.file == main_file]
+    unplaced = _assign(blocks, mine)
+    elsewhere = [c for c in report.claims if c.location.file != main_file]
+
+    insertions: list[tuple[int, str]] = []
+    for b in blocks:
+        if b.claims:
+            insertions.append((b.insert_at, _latex_span("".join(_latex_note(c) for c in b.claims))))
+
+    summary = tex_escape(_summary_counts(report))
+    if elsewhere:
+        files = sorted({c.location.file for c in elsewhere})
+        summary += tex_escape(f"; {len(elsewhere)} of them in other files ({', '.join(files)}), not marked here")
+    caution = tt_escape(CAUTION) if report.claims else ""
+    summary_body = rf"\qrefereeSummary{{{summary}}}{{{caution}}}" + "".join(_latex_note(c) for c in unplaced)
+    summary_body += "".join(
+        rf"\qrefereeNote{{{d.severity if d.severity in _COLOURS else 'error'}}}"
+        rf"{{{tex_escape(d.code)}}}{{{tt_escape(_diagnostic_text(d))}}}"
+        for d in report.diagnostics
+    )
+
+    if begin is not None:
+        preamble = bare[: begin.start()]
+        loaded = {p.strip() for m in _PACKAGES.finditer(preamble) for p in m.group(1).split(",")}
+        insertions.append((begin.start(), _latex_span(_latex_setup(with_package="xcolor" not in loaded))))
+        insertions.append((end.start() if end else len(text), _latex_span(summary_body)))
+    else:
+        start = 1 if text.startswith("\ufeff") else 0
+        insertions.append((start, _latex_span(_latex_setup(with_package=False) + summary_body)))
+    return _apply(text, insertions)
+
+
+def _apply(text: str, insertions: list[tuple[int, str]]) -> str:
+    out: list[str] = []
+    last = 0
+    for offset, piece in sorted(insertions, key=lambda x: x[0]):
+        out.append(text[last:offset])
+        out.append(piece)
+        last = offset
+    out.append(text[last:])
+    return "".join(out)
+
+
+# ---------------------------------------------------------------------------
+# Markdown
+# ---------------------------------------------------------------------------
+
+_MD_TAG = re.compile(r"<!--\s*@(?P<kind>claim|define)(?![A-Za-z])(?P<rest>.*?)-->", re.S)
+_FENCE_OPEN = re.compile(r"(?P<fence>`{3,}|~{3,})[ \t]*math[ \t]*\r?\n")
+_FENCE_LINE = re.compile(r"^[ \t]{0,3}(`{3,}|~{3,})[^\n]*$", re.M)
+
+
+def _fenced_ranges(text: str) -> list[tuple[int, int]]:
+    ranges: list[tuple[int, int]] = []
+    opener: re.Match[str] | None = None
+    for m in _FENCE_LINE.finditer(text):
+        fence = m.group(1)
+        if opener is None:
+            opener = m
+        elif (
+            fence[0] == opener.group(1)[0]
+            and len(fence) >= len(opener.group(1))
+            and not m.group(0).strip()[len(fence) :]
+        ):
+            ranges.append((opener.start(), m.end()))
+            opener = None
+    if opener is not None:
+        ranges.append((opener.start(), len(text)))
+    return ranges
+
+
+def _markdown_blocks(text: str) -> list[_Block]:
+    """Every tagged math block of a Markdown source, found as the scanner finds it."""
+    fenced = _fenced_ranges(text)
+    blocks: list[_Block] = []
+    for m in _MD_TAG.finditer(text):
+        if m.group("kind") != "claim" or any(a <= m.start() < b for a, b in fenced):
+            continue
+        i = m.end()
+        while i < len(text) and text[i] in " \t\r\n":
+            i += 1
+        if text.startswith("$$", i):
+            close = text.find("$$", i + 2)
+            end = close + 2 if close >= 0 else -1
+        else:
+            fence = _FENCE_OPEN.match(text, i)
+            if fence is None:
+                continue
+            closing = re.compile(r"^[ \t]*" + re.escape(fence.group("fence")) + r"[ \t]*\r?$", re.M)
+            found = closing.search(text, fence.end())
+            end = found.end() if found else -1
+        if end < 0:
+            continue
+        newline = text.find("\n", end - 1)
+        insert_at = len(text) if newline < 0 else newline + 1
+        blocks.append(_Block(_line_of(text, m.start()), _line_of(text, end - 1), insert_at))
+    return blocks
+
+
+def _md_code(text: str) -> str:
+    """``text`` as a Markdown code span (safe from emphasis, links and HTML)."""
+    text = " ".join(text.split()).replace("<!--", "<!- -").replace("-->", "- ->")
+    longest = max((len(r) for r in re.findall(r"`+", text)), default=0)
+    fence = "`" * (longest + 1)
+    pad = " " if text.startswith("`") or text.endswith("`") or not text.strip() else ""
+    return f"{fence}{pad}{text}{pad}{fence}"
+
+
+def _md_claim(c: ClaimResult) -> str:
+    verdict = c.verdict
+    who = c.name or c.label
+    what = f"{who}: {_claim_message(c)}" if who else _claim_message(c)
+    return f"{_SYMBOL.get(verdict, '')} **qreferee: {verdict}** {_md_code(what)}"
+
+
+def _md_lines(items: list[str], indent: str) -> list[str]:
+    if len(items) == 1:
+        return [f"{indent}> {items[0]} {MARKDOWN_MARK}"]
+    return [f"{indent}> - {item} {MARKDOWN_MARK}" for item in items]
+
+
+def _annotate_markdown(text: str, report: Report, main_file: str) -> str:
+    blocks = _markdown_blocks(text)
+    mine = [c for c in report.claims if c.location.file == main_file]
+    unplaced = _assign(blocks, mine)
+    lines = _lines(text)
+    insertions: list[tuple[int, str]] = []
+    for b in blocks:
+        if not b.claims:
+            continue
+        closing_line = lines[b.last_line - 1] if b.last_line <= len(lines) else ""
+        indent = closing_line[: len(closing_line) - len(closing_line.lstrip(" \t"))]
+        new = [*_md_lines([_md_claim(c) for c in b.claims], indent), f"{indent}{MARKDOWN_MARK}"]
+        insertions.append((b.insert_at, _join_lines(text, b.insert_at, new, closing_line)))
+
+    summary = [f"**qreferee summary**: {_summary_counts(report)}"]
+    summary += [f"line {c.location.line}: {_md_claim(c)}" for c in unplaced]
+    summary += [_md_code(_diagnostic_text(d)) for d in report.diagnostics]
+    items = [MARKDOWN_MARK] + ([f"> {summary[0]} {MARKDOWN_MARK}"] + [f"> - {s} {MARKDOWN_MARK}" for s in summary[1:]])
+    insertions.append((len(text), _join_lines(text, len(text), items, lines[-1] if lines else "")))
+    return _apply(text, insertions)
+
+
+def _join_lines(text: str, at: int, new: list[str], previous_line: str) -> str:
+    """Whole new lines to insert at ``at`` (just after a line break, or at the very end)."""
+    if at < len(text) or text.endswith("\n") or not text:
+        eol = "\r\n" if previous_line.endswith("\r\n") else "\n"
+        return "".join(line + eol for line in new)
+    # The last line has no line break: give it one "\n"; the copy then ends without one too.
+    return "\n" + "\n".join(new)
