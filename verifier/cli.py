@@ -105,6 +105,16 @@ def build_parser() -> argparse.ArgumentParser:
         metavar="N",
         help="most coefficients one claim may compute (default 50000); over it the claim is an error",
     )
+    check.add_argument(
+        "--max-seconds",
+        type=float,
+        default=60.0,
+        metavar="S",
+        help="time budget of one claim in seconds (default 60); over it the claim is an error",
+    )
+    check.add_argument(
+        "--jobs", type=int, default=1, metavar="N", help="decide claims in N processes (same results as one)"
+    )
     check.add_argument("-v", "--verbose", action="store_true", help="also print each claim as it was read")
     explain = sub.add_parser("explain", help="describe a diagnostic code")
     explain.add_argument("code", nargs="?", help="a code such as mixed-weight; none lists all codes")
@@ -175,7 +185,7 @@ def _check(args: argparse.Namespace) -> int:
     max_terms = args.max_terms if args.max_terms else DEFAULT_MAX_TERMS
     combined = Report()
     for name in args.files:
-        report = check_path(name, max_terms=max_terms)
+        report = check_path(name, max_terms=max_terms, jobs=max(args.jobs, 1), max_seconds=args.max_seconds)
         combined.claims.extend(report.claims)
         combined.diagnostics.extend(report.diagnostics)
         combined.files.extend(report.files)
@@ -184,7 +194,7 @@ def _check(args: argparse.Namespace) -> int:
 
     if args.annotate is not None and annotate_source is not None:
         _annotate(Path(args.files[0]), annotate_source, Path(args.annotate), combined)
-    rendered = _render(combined, args.format, args.verbose)
+    rendered = render_report(combined, args.format, args.verbose)
     if args.output is None or args.output == "-":
         sys.stdout.write(rendered)
     else:
@@ -192,7 +202,8 @@ def _check(args: argparse.Namespace) -> int:
     return combined.exit_code
 
 
-def _render(report: Report, fmt: str, verbose: bool) -> str:
+def render_report(report: Report, fmt: str, verbose: bool) -> str:
+    """The report in one of the output formats (text, json, html, sarif)."""
     if fmt == "json":
         from verifier.report import json_report
 

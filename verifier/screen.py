@@ -853,7 +853,12 @@ def register(subparsers: argparse._SubParsersAction[argparse.ArgumentParser]) ->
     parser.add_argument(
         "submission", metavar="SUBMISSION", help="a folder, .zip, .tar.gz or .tgz (or the main .tex file itself)"
     )
-    parser.add_argument("--format", choices=("text", "json"), default="text", help="text lines or the JSON report")
+    parser.add_argument(
+        "--format",
+        choices=("text", "json", "html", "sarif"),
+        default="text",
+        help="text lines, the JSON report, a self-contained HTML page, or SARIF 2.1.0",
+    )
     parser.add_argument("-o", "--output", metavar="FILE", help="write the report to FILE instead of standard output")
     parser.add_argument("--untagged", action="store_true", help="also check displays that carry no tag")
     parser.add_argument("--jobs", type=int, default=None, metavar="N", help="decide claims in N processes")
@@ -901,10 +906,16 @@ def run_screen_args(args: argparse.Namespace) -> int:
         return 2
     if args.format == "json":
         out = json.dumps(result.to_dict(), indent=2, ensure_ascii=False) + "\n"
+    elif args.format in ("html", "sarif"):
+        from verifier.cli import render_report
+
+        out = render_report(result.report, args.format, args.verbose)
     else:
         out = render_text(result, verbose=args.verbose)
     if args.output:
-        Path(args.output).write_text(out, encoding="utf-8")
+        from verifier.cli import write_atomic
+
+        write_atomic(Path(args.output), out.encode("utf-8"))
     else:
         sys.stdout.write(out)
     return result.exit_code
