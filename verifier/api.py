@@ -425,6 +425,9 @@ def _claim(
             end,
         )
     elaborator.nome = nome
+    elaborator.allow_mixed = any(
+        isinstance(n, ast.BigSum) and n.kind == "at_least" for side in (left_node, right_node) for n in ast.walk(side)
+    )
     sides: list[ir.Side] = []
     try:
         for node in (left_node, right_node):
@@ -435,6 +438,7 @@ def _claim(
             sides.append(side)
     finally:
         elaborator.nome = Fraction(1)
+        elaborator.allow_mixed = False
     # q -> q^T makes every exponent integral (eta offsets, q^{1/24}, the nome); MATH.md §4.1.
     t = rescale_factor(*sides)
     try:

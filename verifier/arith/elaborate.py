@@ -79,6 +79,10 @@ def uses_arithmetic(node: ast.Node, forms: dict[str, Any], matrices: dict[str, A
     return any(uses_arithmetic(child, forms, matrices) for child in ast.children(node))
 
 
+def _is_product_call(node: ast.Node, forms: dict[str, Any], matrices: dict[str, Any]) -> bool:
+    return isinstance(node, ast.Call) and function_kind(node.name, forms, matrices) is None and node.name in VARIABLES
+
+
 def to_arith(
     node: ast.Node, text: str, forms: dict[str, Any], matrices: dict[str, Any], form_of: Callable[[Any], Any]
 ) -> t.A:
@@ -98,6 +102,9 @@ def to_arith(
             node.span,
             "write sigma_k(n), tau(n), r_s(n), p(n), a_F(n) for a defined form F, or a variable",
         )
+    if isinstance(node, ast.Call) and function_kind(node.name, forms, matrices) is None and node.name in VARIABLES:
+        # n(5 sigma_3(n) - ...) and d (n/d): a variable times a bracket.
+        return t.Bin(src, "*", t.Var(node.name, node.name), go(node.argument))
     if isinstance(node, ast.Call):
         kind = function_kind(node.name, forms, matrices)
         if kind is None:
@@ -110,6 +117,11 @@ def to_arith(
         return t.Bin(src, "*", t.Num("-1", Fraction(-1)), go(node.operand))
     if isinstance(node, ast.BinOp):
         return t.Bin(src, node.op, go(node.left), go(node.right))
+    if isinstance(node, ast.Power) and _is_product_call(node.base, forms, matrices):
+        # d (n/d)^2 parses as a call raised to the power; in LaTeX the power is on the bracket.
+        assert isinstance(node.base, ast.Call)
+        inner = ast.Power(node.span, node.base.argument, node.exponent)
+        return t.Bin(src, "*", t.Var(node.base.name, node.base.name), go(inner))
     if isinstance(node, ast.Power):
         base = go(node.base)
         if isinstance(node.exponent, Fraction):

@@ -12,8 +12,10 @@ Translations (each one exact):
 * sum_{m=L}^{n-c} m^a n^e X(m) Y(n-m) -> D^e( D^a G_X^{>=L} * G_Y^{>=c} ) (convolutions, L, c in {0, 1});
 * sum_{d | n} (-1)^{alpha n + beta d + gamma n/d} d^a (n/d)^b: split by the parities of d and n/d
   into S(n), S(n/2), S(n/4) with S(n) = sum_{d|n} d^a (n/d)^b = n^min(a,b) sigma_|a-b|(n).
+* sum_{d | n} psi(n/d) phi(d) d^a (n/d)^b with quadratic characters of fundamental
+  discriminants -> D^min(a,b) of (E_k^{psi,phi} - constant)/2 (§1.8).
 Pointwise products of two arithmetic functions, sigma_k with k even, p(n), phi, mu and
-characters have no translation here: such claims are decided only by direct values.
+progressions a(Mn + r) have no translation here: such claims are decided only by direct values.
 """
 
 from __future__ import annotations
@@ -318,6 +320,12 @@ def _conv_factor(
             for _ in range(int(k)):
                 out = [_mul_conv(a, b) for a in out for b in _conv_factor(f.base, n, m, other, values)]
             return out
+    if isinstance(f, t.Bin) and f.op == "*":
+        return [
+            _mul_conv(a, b)
+            for a in _conv_factor(f.left, n, m, other, values)
+            for b in _conv_factor(f.right, n, m, other, values)
+        ]
     if isinstance(f, t.Bin) and f.op in "+-" and not isinstance(f.left, t.Fun):
         left = _conv_factor(f.left, n, m, other, values)
         right = _conv_factor(f.right, n, m, other, values)

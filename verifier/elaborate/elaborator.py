@@ -63,6 +63,9 @@ class Elaborator:
         self.nome = Fraction(1)
         # Values of the unknowns of a solve= claim while it is elaborated (see prove/solve.py).
         self.unknowns: dict[str, Fraction] = {}
+        # Set while a claim with a generating-function sum is elaborated: its other side may
+        # mix weights (1 - E_2)/24, which the proof splits by weight.
+        self.allow_mixed = False
 
     # -- public -------------------------------------------------------------------
     def side(self, node: ast.Node, text: str) -> ir.Side | Problem:
@@ -130,7 +133,15 @@ class Elaborator:
         for sign, node in terms:
             e = self.expr(node, text)
             if acc is not None:
-                acc = _add(acc, e, sign, node)
+                try:
+                    acc = _add(acc, e, sign, node)
+                except ElaborationError as exc:
+                    if exc.problem.code != "mixed-weight" or not self.allow_mixed:
+                        raise
+                    # A claim about a generating function compares weight by weight (MATH.md §7.3).
+                    from verifier.arith.genfun import add as mixed_add
+
+                    acc = mixed_add(acc, e, sign)
             else:
                 acc = e if sign > 0 else _neg(e)
         assert acc is not None
@@ -173,6 +184,16 @@ class Elaborator:
             # name(expr) for a form is a product: E_4(E_6 + 1), q(1 - q).
             return _mul(self._name(ast.Name(node.name_span, node.name), src), self.expr(node.argument, text), src, node)
         if isinstance(node, ast.Power):
+            if (
+                isinstance(node.base, ast.Call)
+                and _operator(ast.Name(node.base.name_span, node.base.name)) is None
+                and isinstance(node.exponent, Fraction)
+            ):
+                # E_4(E_6)^2 is E_4 times E_6^2, as LaTeX reads it: the power is on the bracket.
+                call = node.base
+                head = self._name(ast.Name(call.name_span, call.name), src)
+                power = _pow(self.expr(call.argument, text), node.exponent, src, node)
+                return _mul(head, power, src, node)
             if not isinstance(node.exponent, Fraction):
                 raise _err(
                     "unsupported",
