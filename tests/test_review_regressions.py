@@ -79,3 +79,18 @@ def test_markdown_tags_inside_code_fences_are_examples() -> None:
     text = "```latex\n<!-- @claim -->\n$$ E_4 = E_6 $$\n```\n\n<!-- @claim -->\n$$ E_4^2 = E_8 $$\n"
     report = check_text(text, "note.md")
     assert [(c.location.line, c.verdict) for c in report.claims] == [(7, "proved")]
+
+
+def test_normalised_eigenform_claims() -> None:
+    # Delta and eta(tau)^2 eta(11 tau)^2 are normalised Hecke eigenforms (MATH.md §1.7, §9);
+    # E_4 has a_1 = 240 (MATH.md §9), E_4/240 has a_1 = 1 and M_4(SL2(Z)) is one-dimensional (§6.1).
+    text = (
+        "%@claim\n\\[ \\Delta \\text{ is a normalised eigenform} \\]\n"
+        "%@claim\n\\[ \\eta(\\tau)^2\\eta(11\\tau)^2 \\text{ is a normalised Hecke eigenform} \\]\n"
+        "%@claim\n\\[ E_4 \\text{ is a normalised eigenform} \\]\n"
+        "%@claim\n\\[ \\frac{E_4}{240} \\text{ is a normalised eigenform} \\]\n"
+        "%@claim\n\\[ \\frac{E_4^3 + \\Delta}{721} \\text{ is a normalised eigenform} \\]\n"
+    )
+    report = check_text(text)
+    assert [c.verdict for c in report.claims] == ["proved", "proved", "refuted", "proved", "refuted"]
+    assert report.claims[2].outcome.first_difference == {"n": 1, "left": "240", "right": "1"}

@@ -35,7 +35,7 @@ from verifier.parse.grammar import ParseFailure, parse_claim, parse_definition, 
 from verifier.parse.spaces import dimension_prefix, parse_space, split_membership
 from verifier.prove.arithmetic import ArithmeticClaim, decide_arithmetic
 from verifier.prove.evaluate import AtomTable, laurent_to
-from verifier.prove.membership import decide_dimension, decide_membership
+from verifier.prove.membership import decide_dimension, decide_eigenform, decide_membership
 from verifier.prove.prover import DEFAULT_MAX_TERMS, Outcome, Prover, claim_level
 from verifier.prove.solve import decide_solve
 from verifier.prove.suggest import suggestion
@@ -646,6 +646,11 @@ def t_Fun(name: str, form: ir.Expr) -> tFun:
     return tFun(f"a({form.text})", name, None, tVar("n", "n"), form)
 
 
+_EIGENFORM = re.compile(
+    r"\\(?:text|mathrm|textrm)\s*\{\s*is\s+an?\s+normali[sz]ed\s+(?:Hecke\s+)?eigen\s*-?\s*form\s*\}"
+)
+
+
 def _space_claim(
     text: MappedText, row: Row, name: str | None, block: ClaimBlock, elaborator: Elaborator
 ) -> _Pending | None:
@@ -654,12 +659,13 @@ def _space_claim(
     lead = len(body) - len(body.lstrip())
     dim_end = dimension_prefix(body)
     member = split_membership(body)
-    if dim_end is None and member is None:
+    eigen = _EIGENFORM.search(body)
+    if dim_end is None and member is None and eigen is None:
         return None
     loc = text.location(lead)
     end = text.location(len(body.rstrip()) - 1)
     source = " ".join(text.source_slice(lead, len(body.rstrip())).replace("&", " ").split())
-    kind = "dimension" if dim_end is not None else "membership"
+    kind = "dimension" if dim_end is not None else ("membership" if member is not None else "eigenform")
 
     def failed(at: int, code: str, message: str, hint: str = "") -> _Pending:
         result = _error(text.location(at), code, message, hint, source, name, row.label, kind, end)
@@ -676,6 +682,15 @@ def _space_claim(
         result = ClaimResult(loc, end, name, row.label, source, Outcome("error", kind, "not decided"))
         stated = int(value)
         return _Pending(result, _NO_SIDE, _NO_SIDE, "=", task=lambda prover: decide_dimension(dim_spec, stated))
+    if eigen is not None and member is None:
+        parsed_form = parse_expression(body[: eigen.start()])
+        if isinstance(parsed_form, ParseFailure):
+            return failed(parsed_form.offset, parsed_form.code, parsed_form.message, parsed_form.hint)
+        form_side = elaborator.side(parsed_form, body)
+        if isinstance(form_side, Problem):
+            return failed(form_side.span[0], form_side.code, form_side.message, form_side.hint)
+        result = ClaimResult(loc, end, name, row.label, source, Outcome("error", kind, "not decided"))
+        return _Pending(result, form_side, form_side, "=", task=lambda prover: decide_eigenform(prover, form_side))
     assert member is not None
     spec = parse_space(body[member[1] :])
     if isinstance(spec, str):

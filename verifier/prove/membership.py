@@ -218,3 +218,63 @@ def decide_dimension(spec: SpaceSpec, stated: int) -> Outcome:
     if verdict == "refuted":
         msg = f"{what} is {dim}, not {stated} (genus {g}, elliptic points {e2}, {e3}, {einf} cusps)"
     return Outcome(verdict, "dimension", msg, space, "dimension-formula", None, 0)
+
+
+def decide_eigenform(prover: Prover, side: ir.Side) -> Outcome:
+    """``f \\text{ is a normalised eigenform}``: a_1 = 1 and T_n f = a_n f for all n (MATH.md §1.7)."""
+    from verifier.prove.hecke import decide_normalised_eigenform, normalised_eigenform_input_precision
+
+    kind = "eigenform"
+    expr = side.expr
+    t = expr.typ
+    if side.printed or t.depth or t.den_weight or t.mixed or t.weight is None or t.weight.denominator != 1:
+        return Outcome(
+            "error",
+            kind,
+            "eigenform claims need one modular form of integral weight (no E_2, quotients or expansions)",
+            code="unsupported",
+        )
+    if rescale_factor(side) != 1:
+        return Outcome(
+            "refuted",
+            kind,
+            "the q-expansion has non-integral exponents; it is not a form on Gamma_0(N)",
+            method="hecke",
+        )
+    try:
+        level = 1
+        for atom in ir.atoms_of(expr):
+            n = registry.level(atom.key, int(atom.scale), atom.params)
+            level = level * n // math.gcd(level, n)
+
+        def chars(atom: ir.Atom) -> int:
+            return int(registry.character(atom.key, int(atom.scale), atom.params, level).kernel)
+
+        need = normalised_eigenform_input_precision(t.weight, level)
+        num, _ = graded_fraction(expr, need, prover.table, chars)
+    except registry.NotModular as exc:
+        return Outcome("error", kind, f"not modular: {exc}", code="not-modular")
+    if len(num) != 1:
+        return Outcome("unproven", kind, "the form has pieces of several characters or weights", method="hecke")
+    (w, _, kernel) = next(iter(num))
+    # The series of f itself (num is the numerator of f; a constant denominator divides it).
+    series = laurent_to(expr, need, prover.table, prover.max_terms * 2)
+    decision = decide_normalised_eigenform(series, w, kernel, level)
+    space = space_of(w, level, 0, QuadraticCharacter(kernel).name)
+    if decision.proved:
+        return Outcome(
+            "proved",
+            kind,
+            f"a normalised eigenform of all T_n on {space['group']}: {decision.reason}",
+            space,
+            "hecke",
+            decision.bound,
+        )
+    fd = None
+    if decision.index is not None and decision.left is not None and decision.right is not None:
+        fd = {
+            "n": decision.index,
+            "left": _frac_str(Fraction(decision.left)),
+            "right": _frac_str(Fraction(decision.right)),
+        }
+    return Outcome("refuted", kind, decision.reason, space, "hecke", decision.bound, first_difference=fd)
