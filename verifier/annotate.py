@@ -65,6 +65,7 @@ from dataclasses import dataclass, field
 from verifier.api import ClaimResult, Report
 from verifier.diagnostics import Diagnostic
 from verifier.report.text import CAUTION
+from verifier.scan.markdown import fenced_ranges as _fenced_ranges
 from verifier.scan.text import blank_comments
 
 LATEX_OPEN = r"\iffalse<qreferee>\fi"
@@ -380,26 +381,6 @@ def _apply(text: str, insertions: list[tuple[int, str]]) -> str:
 
 _MD_TAG = re.compile(r"<!--\s*@(?P<kind>claim|define)(?![A-Za-z])(?P<rest>.*?)-->", re.S)
 _FENCE_OPEN = re.compile(r"(?P<fence>`{3,}|~{3,})[ \t]*math[ \t]*\r?\n")
-_FENCE_LINE = re.compile(r"^[ \t]{0,3}(`{3,}|~{3,})[^\n]*$", re.M)
-
-
-def _fenced_ranges(text: str) -> list[tuple[int, int]]:
-    ranges: list[tuple[int, int]] = []
-    opener: re.Match[str] | None = None
-    for m in _FENCE_LINE.finditer(text):
-        fence = m.group(1)
-        if opener is None:
-            opener = m
-        elif (
-            fence[0] == opener.group(1)[0]
-            and len(fence) >= len(opener.group(1))
-            and not m.group(0).strip()[len(fence) :]
-        ):
-            ranges.append((opener.start(), m.end()))
-            opener = None
-    if opener is not None:
-        ranges.append((opener.start(), len(text)))
-    return ranges
 
 
 def _markdown_blocks(text: str) -> list[_Block]:

@@ -456,22 +456,7 @@ def _claim(
         return _error(block.tag, code, message, hint, source, name, row.label, kind, end)
     result = ClaimResult(loc, end, name, row.label, source, Outcome("error", kind, "not decided"))
     result.reading = " ".join(text.text[left_node.span[0] : right_node.span[1]].split())
-    definitions, matrices = dict(elaborator.definitions), dict(elaborator.matrices)
-
-    def make_build(lt: ast.Node, rt: ast.Node, fixed: dict[str, Fraction]) -> Any:
-        def build(values: dict[str, Fraction]) -> tuple[ir.Side, ir.Side] | str:
-            local = Elaborator(definitions)
-            local.matrices, local.nome, local.unknowns = matrices, nome, {**values, **fixed}
-            sides = []
-            for node in (lt, rt):
-                side = local.side(node, text.text)
-                if isinstance(side, Problem):
-                    return side.message
-                sides.append(side)
-            factor = rescale_factor(*sides)
-            return rescale_side(sides[0], factor), rescale_side(sides[1], factor)
-
-        return build
+    make_build = _side_builder(elaborator, text, nome)
 
     def suggest(prover: Prover) -> str | None:
         if left.printed or right.printed:
@@ -591,6 +576,35 @@ def _arithmetic_claim(
     return _Pending(result, _NO_SIDE, _NO_SIDE, "=", task=task)
 
 
+def _side_builder(
+    elaborator: Elaborator, text: MappedText, nome: Fraction
+) -> Callable[[ast.Node, ast.Node, dict[str, Fraction]], Callable[[dict[str, Fraction]], Any]]:
+    """Elaborate a claim's two sides again with values for unknown names (solve=, suggestions).
+
+    The definitions and matrices known at this point of the document are captured now.
+    """
+    definitions, matrices = dict(elaborator.definitions), dict(elaborator.matrices)
+
+    def make_build(
+        lt: ast.Node, rt: ast.Node, fixed: dict[str, Fraction]
+    ) -> Callable[[dict[str, Fraction]], tuple[ir.Side, ir.Side] | str]:
+        def build(values: dict[str, Fraction]) -> tuple[ir.Side, ir.Side] | str:
+            local = Elaborator(definitions)
+            local.matrices, local.nome, local.unknowns = matrices, nome, {**values, **fixed}
+            sides = []
+            for node in (lt, rt):
+                side = local.side(node, text.text)
+                if isinstance(side, Problem):
+                    return side.message
+                sides.append(side)
+            factor = rescale_factor(*sides)
+            return rescale_side(sides[0], factor), rescale_side(sides[1], factor)
+
+        return build
+
+    return make_build
+
+
 def _solve_claim(
     text: MappedText,
     left_node: ast.Node,
@@ -618,24 +632,13 @@ def _solve_claim(
             "solve",
             end,
         )
-    definitions = dict(elaborator.definitions)
-    matrices = dict(elaborator.matrices)
+    build_sides = _side_builder(elaborator, text, Fraction(1))(left_node, right_node, {})
 
     def build(values: dict[str, Fraction]) -> tuple[ir.Side, ir.Side] | str:
-        local = Elaborator(definitions)
-        local.matrices = matrices
-        local.unknowns = values
-        sides = []
-        for node in (left_node, right_node):
-            side = local.side(node, text.text)
-            if isinstance(side, Problem):
-                return side.message
-            sides.append(side)
-        t = rescale_factor(*sides)
-        left, right = (rescale_side(s, t) for s in sides)
-        if left.printed or right.printed:
+        sides: tuple[ir.Side, ir.Side] | str = build_sides(values)
+        if not isinstance(sides, str) and (sides[0].printed or sides[1].printed):
             return "solve= works on identities between forms, not printed expansions"
-        return left, right
+        return sides
 
     result = ClaimResult(loc, end, name, row.label, source, Outcome("error", "solve", "not decided"))
     return _Pending(result, _NO_SIDE, _NO_SIDE, "=", task=lambda prover: decide_solve(prover, build, unknowns))

@@ -167,3 +167,26 @@ def children(node: Node) -> tuple[Node, ...]:
     if isinstance(node, Definition):
         return (node.body,)
     return ()
+
+
+def constant_value(node: Node) -> Fraction | None:
+    """The value of a node made only of numbers (3, 441/691, \\frac{1}{24}, 691^{-1}), else None.
+
+    Raises ZeroDivisionError for a zero denominator.
+    """
+    if isinstance(node, Number):
+        return Fraction(node.value)
+    if isinstance(node, Neg):
+        inner = constant_value(node.operand)
+        return None if inner is None else -inner
+    if isinstance(node, BinOp):
+        a, b = constant_value(node.left), constant_value(node.right)
+        if a is None or b is None:
+            return None
+        if node.op == "/":
+            return a / b
+        return a + b if node.op == "+" else a - b if node.op == "-" else a * b
+    if isinstance(node, Power) and isinstance(node.exponent, Fraction) and node.exponent.denominator == 1:
+        base = constant_value(node.base)
+        return None if base is None else base ** int(node.exponent)
+    return None

@@ -177,22 +177,11 @@ def _hint_for_token(exc: Any) -> str:
 
 
 def _constant(node: ast.Node) -> Fraction | None:
-    """The value of an exponent made of numbers only (folded at parse time), else None."""
-    if isinstance(node, ast.Number):
-        return Fraction(node.value)
-    if isinstance(node, ast.Neg):
-        inner = _constant(node.operand)
-        return None if inner is None else -inner
-    if isinstance(node, ast.BinOp) and node.op in "+-*/":
-        a, b = _constant(node.left), _constant(node.right)
-        if a is None or b is None:
-            return None
-        if node.op == "/":
-            if b == 0:
-                raise _BadNumber("an exponent has denominator 0", node.span[0])
-            return a / b
-        return a + b if node.op == "+" else a - b if node.op == "-" else a * b
-    return None
+    """An exponent made of numbers only is folded at parse time (ast.constant_value)."""
+    try:
+        return ast.constant_value(node)
+    except ZeroDivisionError as exc:
+        raise _BadNumber("an exponent has denominator 0", node.span[0]) from exc
 
 
 def _span(meta: Any) -> ast.Span:

@@ -25,6 +25,7 @@ from verifier.arith.genfun import Untranslatable, add, const, generating_functio
 from verifier.arith.values import NotEvaluable, Values
 from verifier.elaborate import ir
 from verifier.prove.evaluate import laurent_to
+from verifier.prove.groups import prime_factors
 from verifier.prove.prover import Outcome, Prover, _frac_str
 
 CHECK = 60  # n checked directly before any proof is attempted
@@ -50,22 +51,9 @@ def _differs(a: Fraction, b: Fraction, modulus: int | None) -> bool:
     if modulus is None:
         return a != b
     diff = a - b
-    if diff.denominator % modulus == 0 or any(diff.denominator % p == 0 for p in _primes(modulus)):
+    if diff.denominator % modulus == 0 or any(diff.denominator % p == 0 for p in prime_factors(modulus)):
         return True  # not M-integral: certainly not 0 mod M
     return diff.numerator % modulus != 0
-
-
-def _primes(m: int) -> list[int]:
-    out, p = [], 2
-    while p * p <= m:
-        if m % p == 0:
-            out.append(p)
-            while m % p == 0:
-                m //= p
-        p += 1
-    if m > 1:
-        out.append(m)
-    return out
 
 
 def decide_arithmetic(prover: Prover, claim: ArithmeticClaim, values: Values) -> Outcome:
@@ -176,7 +164,7 @@ def _refuted(kind: str, claim: ArithmeticClaim, n: int, a: Fraction, b: Fraction
 
 
 def _residue(x: Fraction, m: int) -> str:
-    if x.denominator % m == 0 or any(x.denominator % p == 0 for p in _primes(m)):
+    if x.denominator % m == 0 or any(x.denominator % p == 0 for p in prime_factors(m)):
         return "not integral"
     return str(x.numerator * pow(x.denominator, -1, m) % m)
 

@@ -19,23 +19,11 @@ PREFIX = "\u00a7coef"  # names of the unknowns; no LaTeX name can start with thi
 
 
 def numeric_value(node: ast.Node) -> Fraction | None:
-    """The value of a node made only of numbers (3, \\frac{441}{691}, 691^{-1})."""
-    if isinstance(node, ast.Number):
-        return Fraction(node.value)
-    if isinstance(node, ast.Neg):
-        v = numeric_value(node.operand)
-        return None if v is None else -v
-    if isinstance(node, ast.BinOp) and node.op in "*/":
-        a, b = numeric_value(node.left), numeric_value(node.right)
-        if a is None or b is None or (node.op == "/" and b == 0):
-            return None
-        return a * b if node.op == "*" else a / b
-    if isinstance(node, ast.Power) and isinstance(node.exponent, Fraction) and node.exponent.denominator == 1:
-        base = numeric_value(node.base)
-        if base is None or (base == 0 and node.exponent < 0):
-            return None
-        return base ** int(node.exponent)
-    return None
+    """The value of a node made only of numbers (3, \\frac{441}{691}, 691^{-1}); None otherwise."""
+    try:
+        return ast.constant_value(node)
+    except ZeroDivisionError:
+        return None
 
 
 def _split(term: ast.Node) -> tuple[Fraction, ast.Node | None]:

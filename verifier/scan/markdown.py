@@ -26,7 +26,7 @@ def scan_markdown_source(source: SourceFile) -> ScannedDocument:
     """Scan one Markdown source."""
     doc = ScannedDocument(files=[source.display])
     text = source.text
-    fenced = _fenced_ranges(text)
+    fenced = fenced_ranges(text)
     # A tag shown inside a fenced code block is an example, not a claim.
     events: list[tuple[int, object]] = [
         (m.start(), m) for m in _TAG.finditer(text) if not any(a <= m.start() < b for a, b in fenced)
@@ -113,7 +113,7 @@ def _tag(source: SourceFile, m: re.Match[str], macros: dict[str, macro_mod.Macro
 _FENCE_LINE = re.compile(r"^[ \t]{0,3}(`{3,}|~{3,})[^\n]*$", re.M)
 
 
-def _fenced_ranges(text: str) -> list[tuple[int, int]]:
+def fenced_ranges(text: str) -> list[tuple[int, int]]:
     """Offsets ``[start, end)`` of fenced code blocks (an unclosed fence runs to the end)."""
     ranges: list[tuple[int, int]] = []
     opener: re.Match[str] | None = None
