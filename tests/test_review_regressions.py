@@ -94,3 +94,20 @@ def test_normalised_eigenform_claims() -> None:
     report = check_text(text)
     assert [c.verdict for c in report.claims] == ["proved", "proved", "refuted", "proved", "refuted"]
     assert report.claims[2].outcome.first_difference == {"n": 1, "left": "240", "right": "1"}
+
+
+def test_divisor_sums_over_n_over_c_keep_n_in_the_body() -> None:
+    # sum_{d | n/c} n/d = c * sigma(n/c) (set n = c m: sum_{d | m} c m/d = c sigma(m)); checked
+    # by hand, and the false variant differs first at n = c, beyond the first 60 values for c = 62.
+    assert verdicts("%@claim\n\\[ \\sum_{d \\mid n/62} \\frac{n}{d} = \\sigma(n/62) \\]\n") == [("refuted", None)]
+    assert verdicts("%@claim\n\\[ \\sum_{d \\mid n/62} \\frac{n}{d} = 62\\sigma(n/62) \\]\n") == [("proved", None)]
+    assert verdicts("%@claim\n\\[ \\sum_{d\\mid n/2} \\frac{n}{d} = 2\\sigma(n/2) \\]\n") == [("proved", None)]
+    # A false congruence whose first counterexample lies beyond n = 60 is still refuted.
+    text = "%@claim\n\\[ \\sum_{d \\mid n/62} \\frac{n}{d} \\equiv \\sigma(n/62) \\pmod{5} \\]\n"
+    assert verdicts(text) == [("refuted", None)]
+
+
+def test_coefficients_of_forms_with_fractional_exponents_are_an_error_not_a_crash() -> None:
+    # eta(tau) = q^{1/24}(1 - q - ...): a_G(n) is not defined for an integer index (MATH.md §4.1).
+    report = check_text("%@define G = \\eta(\\tau)\n%@claim\n\\[ a_G(1) = -1 \\]\n%@claim\n\\[ E_4^2 = E_8 \\]\n")
+    assert [c.verdict for c in report.claims] == ["error", "proved"]

@@ -19,8 +19,8 @@ from verifier.arith.elaborate import ArithmeticError_, to_arith, uses_arithmetic
 from verifier.arith.terms import Fun as tFun
 from verifier.arith.terms import Var as tVar
 from verifier.arith.terms import free_variables
-from verifier.arith.values import Values
-from verifier.budget import DEFAULT_MAX_SECONDS, decide_all, time_limit
+from verifier.arith.values import NotEvaluable, Values
+from verifier.budget import DEFAULT_MAX_SECONDS, TimeExceeded, decide_all, internal_error, time_limit
 from verifier.diagnostics import Diagnostic
 from verifier.elaborate import ir
 from verifier.elaborate.elaborator import Elaborator, Problem, normal_name
@@ -197,7 +197,19 @@ def check_document(
     for p in pending:
         if p.task is not None:
             start = time.perf_counter()
-            p.result.outcome = p.task(prover)
+            try:
+                with time_limit(max_seconds):
+                    p.result.outcome = p.task(prover)
+            except TimeExceeded:
+                p.result.outcome = Outcome(
+                    "error",
+                    p.result.outcome.kind,
+                    f"stopped after {max_seconds:g} s (the time budget)",
+                    code="time-budget",
+                    hint="raise --max-seconds if this is intended",
+                )
+            except Exception as exc:  # a bug: this claim only
+                p.result.outcome = internal_error(p.result.outcome.kind, exc)
             p.result.seconds = time.perf_counter() - start
     for p in pending:
         o = p.result.outcome
@@ -569,6 +581,8 @@ def _arithmetic_claim(
 
     def task(prover: Prover) -> Outcome:
         def series_of(form: ir.Expr, prec: int) -> Any:
+            if rescale_factor(ir.Side(form, False)) != 1:
+                raise NotEvaluable("the form has fractional exponents (q^{1/24}, ...); its a(n) is not defined")
             return laurent_to(form, prec, prover.table, prover.max_terms * 2)
 
         return decide_arithmetic(prover, claim, Values(series_of))

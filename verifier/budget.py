@@ -73,7 +73,19 @@ def decide_timed(prover: Prover, job: Job, max_seconds: float | None) -> tuple[O
             code="time-budget",
             hint="raise --max-seconds if this is intended",
         )
+    except Exception as exc:  # a bug in qreferee: this claim gets an error, the others are still checked
+        outcome = internal_error("equality" if rel == "=" else "inequality", exc)
     return outcome, time.perf_counter() - start
+
+
+def internal_error(kind: str, exc: BaseException) -> Outcome:
+    """The outcome of a claim whose decision crashed (never a verdict about the mathematics)."""
+    return Outcome(
+        "error",
+        kind,
+        f"internal error while deciding this claim ({type(exc).__name__}: {exc}); please report it",
+        code="internal",
+    )
 
 
 _WORKER: Prover | None = None

@@ -212,9 +212,13 @@ def _basic(e: t.A, var: str, values: Values) -> ir.Expr:
             form = e.form
             return ir.Atom(ir.Typ(form.weight), "Theta_Q", "theta", Fraction(d), (form.gram,))
         if e.name == "coef":
+            from verifier.elaborate.rescale import rescale_factor
+
             form_expr: ir.Expr = e.form
             if form_expr.typ.printed:
                 raise Untranslatable("the defined form is a printed expansion")
+            if rescale_factor(ir.Side(form_expr, False)) != 1:
+                raise Untranslatable("the defined form has fractional exponents")
             return rescale_expr(form_expr, d) if d != 1 else form_expr
         raise Untranslatable(f"{e.text} has no modular generating function")
     if isinstance(e, t.Sum):
@@ -361,7 +365,10 @@ def _divisor_sum(s: t.Sum, var: str, values: Values) -> ir.Expr:
         if s.lower.left.name == var and not t.free_variables(s.lower.right):
             c = values.value(s.lower.right, {})
             if c.denominator == 1 and c > 0:
-                inner = t.Sum(s.text, s.kind, s.var, s.lower.left, s.upper, s.body)
+                # sum_{d | n/c} body(n, d) at n = c m is sum_{d | m} body(c m, d): translate that sum
+                # in m (renamed n), then tau -> c tau puts it back at n = c m.
+                body = _times_variable(s.body, var, s.var, int(c))
+                inner = t.Sum(s.text, s.kind, s.var, s.lower.left, s.upper, body)
                 return rescale_expr(_divisor_sum(inner, var, values), int(c))
     if not (isinstance(s.lower, t.Var) and s.lower.name == var):
         raise Untranslatable(f"{s.text}: only sums over the divisors of {var} or {var}/c are translated")
@@ -403,6 +410,31 @@ def _mul_div(x: DivMono, y: DivMono) -> DivMono:
     return (x[0] * y[0], x[1] + y[1], x[2] + y[2], sign, x[4] * y[4], x[5] * y[5])
 
 
+def _times_variable(e: t.A, n: str, d: str, c: int) -> t.A:
+    """``e`` with n replaced by c n (n/d becoming c (n/d))."""
+    scale = t.Num(str(c), Fraction(c))
+    if _is_codivisor(e, n, d):
+        return t.Bin(e.text, "*", scale, e)
+    if isinstance(e, t.Var):
+        return t.Bin(e.text, "*", scale, e) if e.name == n else e
+    if isinstance(e, t.Bin):
+        return t.Bin(e.text, e.op, _times_variable(e.left, n, d, c), _times_variable(e.right, n, d, c))
+    if isinstance(e, t.Pow):
+        return t.Pow(e.text, _times_variable(e.base, n, d, c), _times_variable(e.exponent, n, d, c))
+    if isinstance(e, t.Fun):
+        return t.Fun(e.text, e.name, e.index, _times_variable(e.arg, n, d, c), e.form)
+    if isinstance(e, t.Sum):
+        return t.Sum(
+            e.text,
+            e.kind,
+            e.var,
+            _times_variable(e.lower, n, d, c),
+            None if e.upper is None else _times_variable(e.upper, n, d, c),
+            _times_variable(e.body, n, d, c),
+        )
+    return e
+
+
 def _is_codivisor(e: t.A, n: str, d: str) -> bool:
     return (
         isinstance(e, t.Bin)
@@ -423,6 +455,12 @@ def _divisor_factor(f: t.A, n: str, d: str, values: Values) -> list[DivMono]:
         return [(Fraction(1), 1, 1, None, 1, 1)]
     if _is_codivisor(f, n, d):
         return [(Fraction(1), 0, 1, None, 1, 1)]
+    if isinstance(f, t.Bin) and f.op == "*":
+        return [
+            _mul_div(x, y)
+            for x in _divisor_factor(f.left, n, d, values)
+            for y in _divisor_factor(f.right, n, d, values)
+        ]
     if isinstance(f, t.Fun) and f.name == "chi":
         from verifier.forms.characters import is_fundamental_discriminant
 

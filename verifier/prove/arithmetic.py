@@ -29,6 +29,7 @@ from verifier.prove.groups import prime_factors
 from verifier.prove.prover import Outcome, Prover, _frac_str
 
 CHECK = 60  # n checked directly before any proof is attempted
+EXTENDED = 400  # n checked directly before a claim is left unproven
 
 
 @dataclass(frozen=True)
@@ -57,7 +58,25 @@ def _differs(a: Fraction, b: Fraction, modulus: int | None) -> bool:
 
 
 def decide_arithmetic(prover: Prover, claim: ArithmeticClaim, values: Values) -> Outcome:
-    """Decide an arithmetic claim (see the module docstring)."""
+    """Decide an arithmetic claim (see the module docstring).
+
+    When no proof applies, the direct comparison goes on to n = start + EXTENDED before the
+    claim is called unproven, so that a counterexample a little further out still refutes it.
+    """
+    outcome = _decide(prover, claim, values)
+    if outcome.verdict == "unproven" and claim.var is not None and claim.rel != "!=":
+        further = _first_direct_difference(claim, values, claim.start + CHECK + 1, claim.start + EXTENDED)
+        if isinstance(further, tuple):
+            kind = "congruence" if claim.modulus is not None else "arithmetic"
+            return _refuted(kind, claim, *further)
+        if further is None:
+            outcome.message = outcome.message.replace(
+                f"{claim.start} <= n <= {claim.start + CHECK}", f"{claim.start} <= n <= {claim.start + EXTENDED}"
+            )
+    return outcome
+
+
+def _decide(prover: Prover, claim: ArithmeticClaim, values: Values) -> Outcome:
     kind = "congruence" if claim.modulus is not None else ("arithmetic" if claim.var else "value")
     if claim.var is None:
         return _at_a_value(claim, values, kind)
