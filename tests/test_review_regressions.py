@@ -111,3 +111,57 @@ def test_coefficients_of_forms_with_fractional_exponents_are_an_error_not_a_cras
     # eta(tau) = q^{1/24}(1 - q - ...): a_G(n) is not defined for an integer index (MATH.md §4.1).
     report = check_text("%@define G = \\eta(\\tau)\n%@claim\n\\[ a_G(1) = -1 \\]\n%@claim\n\\[ E_4^2 = E_8 \\]\n")
     assert [c.verdict for c in report.claims] == ["error", "proved"]
+
+
+# -- Half-integral weight with constant factors (a soundness campaign's findings) ------------
+# Jacobi's identity theta_2 theta_3 theta_4 = 2 eta(tau)^3 in the nome e^{pi i tau}, i.e.
+# 2 eta(2 tau)^3 in the nome q = e^{2 pi i tau} (Whittaker and Watson, A Course of Modern
+# Analysis, §21.41).  The cubic theta function a(q) = sum q^{m^2 + mn + n^2}, the theta series
+# of the Gram matrix [[2, 1], [1, 2]], equals (eta(tau)^3 + 9 eta(9 tau)^3) / eta(3 tau)
+# (J. M. Borwein, P. B. Borwein and F. G. Garvan, "Some cubic modular identities of Ramanujan",
+# Trans. AMS 343 (1994), eq. (2.2)-(2.3), from memory).
+JACOBI_CLAIMS = [
+    ("\\theta_2\\theta_3\\theta_4 = 2\\eta(2\\tau)^3", "proved"),
+    ("2\\theta_2\\theta_3\\theta_4 = 4\\eta(2\\tau)^3", "proved"),
+    ("2\\theta_2\\theta_3\\theta_4 = \\theta_2\\theta_3\\theta_4 + \\theta_2\\theta_3\\theta_4", "proved"),
+    ("2\\theta_2\\theta_3\\theta_4 \\neq 4\\eta(2\\tau)^3", "refuted"),
+    (
+        "\\frac{\\eta(\\tau)^{3} + \\eta(\\tau)^{3}}{\\eta(3\\tau)} \\neq 2\\frac{\\eta(\\tau)^{3}}{\\eta(3\\tau)}",
+        "refuted",
+    ),
+]
+
+
+def test_constant_factors_on_half_integral_weight_claims() -> None:
+    for claim, expected in JACOBI_CLAIMS:
+        report = check_text(f"%@claim\n\\[ {claim} \\]\n")
+        (result,) = report.claims
+        assert result.verdict == expected, (claim, result.outcome.message)
+        assert "lies beyond" not in result.outcome.message
+
+
+def test_cubic_theta_function_of_the_hexagonal_lattice() -> None:
+    text = (
+        "%@define A = \\begin{pmatrix}2&1\\\\1&2\\end{pmatrix}\n"
+        "%@claim\n\\[ \\Theta_A = \\frac{\\eta(\\tau)^{3} + 9\\eta(9\\tau)^{3}}{\\eta(3\\tau)} \\]\n"
+        "%@claim\n\\[ \\Theta_A = \\frac{\\eta(\\tau)^{3} + 8\\eta(9\\tau)^{3}}{\\eta(3\\tau)} \\]\n"
+    )
+    report = check_text(text)
+    assert [c.verdict for c in report.claims] == ["proved", "refuted"]
+    # a(q) = 1 + 6q + ... (six vectors of norm 1); eta(tau)^3 / eta(3 tau) = 1 - 3q + ... and
+    # eta(9 tau)^3 / eta(3 tau) = q + ..., so the false variant gives 1 + 5q: it differs at q^1.
+    assert report.claims[1].outcome.first_difference == {"n": 1, "left": "6", "right": "5"}
+
+
+def test_constant_factors_in_the_other_nome() -> None:
+    text = (
+        "%@claim nome={e^{\\pi i\\tau}}\n"
+        "\\[ \\frac{5}{7}\\theta_2\\theta_3\\theta_4 = \\frac{5}{7}\\left(2\\eta(\\tau)^{3}\\right) \\]\n"
+        "%@claim nome={e^{\\pi i\\tau}}\n"
+        "\\[ \\frac{5}{7}\\theta_2\\theta_3\\theta_4 = \\frac{5}{7}\\left(3\\eta(\\tau)^{3}\\right) \\]\n"
+    )
+    report = check_text(text)
+    assert [c.verdict for c in report.claims] == ["proved", "refuted"]
+    # eta(tau)^3 = e^{2 pi i tau / 8} + ... is p^{1/4} + ... in the nome p = e^{pi i tau}, so the
+    # sides start 10/7 p^{1/4} and 15/7 p^{1/4}.
+    assert report.claims[1].outcome.first_difference == {"n": "1/4", "left": "10/7", "right": "15/7"}

@@ -26,6 +26,7 @@ from verifier.arith.values import NotEvaluable, Values
 from verifier.elaborate import ir
 from verifier.prove.evaluate import laurent_to
 from verifier.prove.groups import prime_factors
+from verifier.prove.outcome import Witness, differ_modulo
 from verifier.prove.prover import Outcome, Prover, _frac_str
 
 CHECK = 60  # n checked directly before any proof is attempted
@@ -48,13 +49,7 @@ def _fmt(x: Fraction) -> str:
     return _frac_str(x)
 
 
-def _differs(a: Fraction, b: Fraction, modulus: int | None) -> bool:
-    if modulus is None:
-        return a != b
-    diff = a - b
-    if diff.denominator % modulus == 0 or any(diff.denominator % p == 0 for p in prime_factors(modulus)):
-        return True  # not M-integral: certainly not 0 mod M
-    return diff.numerator % modulus != 0
+_differs = differ_modulo
 
 
 def decide_arithmetic(prover: Prover, claim: ArithmeticClaim, values: Values) -> Outcome:
@@ -91,7 +86,8 @@ def _decide(prover: Prover, claim: ArithmeticClaim, values: Values) -> Outcome:
                 kind,
                 f"the sides differ at n = {n}: left {_fmt(a)}, right {_fmt(b)}",
                 method="computation",
-                first_difference=_fd(n, a, b),
+                first_difference=_fd(n, a, b, claim.modulus),
+                relation="!=",
             )
         return _refuted(kind, claim, n, a, b)
     if claim.rel == "!=":
@@ -167,8 +163,8 @@ def _without_constant(prover: Prover, g: ir.Expr) -> ir.Expr:
     return g if c0 == 0 else add(g, const(c0), -1)
 
 
-def _fd(n: int, a: Fraction, b: Fraction) -> dict[str, Any]:
-    return {"n": n, "left": _fmt(a), "right": _fmt(b)}
+def _fd(n: int | None, a: Fraction, b: Fraction, modulus: int | None = None) -> dict[str, Any]:
+    return Witness(n, a, b, modulus).to_dict()
 
 
 def _refuted(kind: str, claim: ArithmeticClaim, n: int, a: Fraction, b: Fraction) -> Outcome:
@@ -179,7 +175,15 @@ def _refuted(kind: str, claim: ArithmeticClaim, n: int, a: Fraction, b: Fraction
         )
     else:
         msg = f"at n = {n}: left {_fmt(a)}, right {_fmt(b)}"
-    return Outcome("refuted", kind, msg, method="computation", first_difference=_fd(n, a, b), terms_compared=n + 1)
+    return Outcome(
+        "refuted",
+        kind,
+        msg,
+        method="computation",
+        first_difference=_fd(n, a, b, claim.modulus),
+        terms_compared=n + 1,
+        relation=claim.rel,
+    )
 
 
 def _residue(x: Fraction, m: int) -> str:
@@ -217,7 +221,8 @@ def _at_a_value(claim: ArithmeticClaim, values: Values, kind: str) -> Outcome:
         kind,
         f"computed exactly: {what}",
         method="computation",
-        first_difference=None if equal else {"n": None, "left": _fmt(a), "right": _fmt(b)},
+        first_difference=None if equal else _fd(None, a, b, claim.modulus),
+        relation=claim.rel,
     )
 
 

@@ -154,21 +154,35 @@ def graded_add(a: Graded, b: Graded, sign: int = 1) -> Graded:
     return out
 
 
-def graded_mul(a: Graded, b: Graded) -> Graded:
-    """``a * b``: weights and E_2-powers add, characters multiply.
+def _odd_integral(weight: Fraction) -> bool:
+    return weight.denominator == 1 and weight.numerator % 2 == 1
 
-    Two half-integral weights multiply to an integral one, and the theta multipliers
-    combine to chi_{-4}^{lambda_1 + lambda_2 + 1} (MATH.md §3.6): the kernel gains -1
-    when the sum of the two weights is odd.
+
+def product_kernel(wa: Fraction, ka: int, wb: Fraction, kb: int) -> int:
+    """The character kernel of f g, for f of weight ``wa`` and kernel ``ka``, g of ``wb``, ``kb``.
+
+    Characters of half-integral weight are taken relative to the theta multiplier j(gamma, tau)
+    (Shimura's convention), integral ones relative to (c tau + d)^k.  Since
+    j(gamma, tau)^2 = chi_{-4}(d) (c tau + d), a form of integral weight k and character chi
+    transforms as (chi chi_{-4}^k)(d) j^{2k}: in the theta convention its character is
+    chi chi_{-4}^k.  In that single convention characters of a product simply multiply, so
+    each factor is converted to it, multiplied, and the product converted back.  A factor
+    of odd integral weight therefore changes the character of a half-integral product by
+    chi_{-4}, and two half-integral weights of odd integral sum gain chi_{-4}
+    (Shimura, "On modular forms of half integral weight", Ann. of Math. 97 (1973), §1).
     """
+    flips = _odd_integral(wa) + _odd_integral(wb) + _odd_integral(wa + wb)
+    kernel = ka * kb * (-1 if flips % 2 else 1)
+    return int(squarefree_kernel(kernel))
+
+
+def graded_mul(a: Graded, b: Graded) -> Graded:
+    """``a * b``: weights and E_2-powers add, characters multiply (see :func:`product_kernel`)."""
     out: Graded = {}
     for (wa, ja, ka), sa in a.items():
         for (wb, jb, kb), sb in b.items():
-            kernel = ka * kb
-            ca, cb = wa - 2 * ja, wb - 2 * jb
-            if ca.denominator == 2 and cb.denominator == 2 and (ca + cb) % 2:
-                kernel = -kernel
-            k = (wa + wb, ja + jb, squarefree_kernel(kernel))
+            kernel = product_kernel(wa - 2 * ja, ka, wb - 2 * jb, kb)
+            k = (wa + wb, ja + jb, kernel)
             p = sa * sb
             out[k] = out[k] + p if k in out else p
     return out

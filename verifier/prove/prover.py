@@ -14,7 +14,7 @@ computing that range exactly.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 from fractions import Fraction
 from typing import Any
 
@@ -32,7 +32,10 @@ from verifier.prove.evaluate import (
     graded_mul,
     laurent_to,
 )
+from verifier.prove.outcome import Outcome, frac_str
 from verifier.series.qseries import QSeries
+
+__all__ = ["Outcome", "Prover", "Setup", "claim_level", "space_of"]
 
 DEFAULT_MAX_TERMS = 50_000
 # Coefficients of weight-k forms to q^n have about k*log2(n) bits: bound terms x weight,
@@ -40,29 +43,7 @@ DEFAULT_MAX_TERMS = 50_000
 MAX_WORK = 20_000_000
 
 
-@dataclass
-class Outcome:
-    """The verdict on one claim and everything that supports it."""
-
-    verdict: str  # proved | refuted | unproven | error
-    kind: str  # equality | inequality | prefix
-    message: str
-    space: dict[str, Any] | None = None
-    method: str | None = None
-    bound: int | None = None
-    terms_compared: int = 0
-    first_difference: dict[str, Any] | None = None
-    components: list[dict[str, Any]] = field(default_factory=list)
-    code: str | None = None
-    hint: str = ""
-    # For refutations: coefficients around the first difference, rows [n, left, right]
-    # (exact values as strings, n as the author writes exponents).
-    table: list[list[Any]] = field(default_factory=list)
-    suggestion: str | None = None  # a corrected claim, when one is known
-
-
-def _frac_str(x: Fraction) -> str:
-    return str(x.numerator) if x.denominator == 1 else f"{x.numerator}/{x.denominator}"
+_frac_str = frac_str
 
 
 def _wstr(w: Fraction | None) -> str:
@@ -319,19 +300,27 @@ class Prover:
         if wl is not None and wr is not None and wl != wr:
             notes = f"; the sides have different weights ({_wstr(wl)} and {_wstr(wr)})"
         if witness is None:
+            # A component judged nonzero, yet the two sides agree as far as they were computed:
+            # without a coefficient that differs there is no verdict of difference.
             wt, j, n = differing[0]
             part = f"the weight-{_frac_str(wt)} part{' of E_2^' + str(j) if j else ''}"
-            detail = f"{part} is nonzero at q^{self._exp(n)}"
-            beyond = f"the first differing coefficient lies beyond q^{self._exp(self.max_terms)}"
-            msg = f"the sides differ ({detail}; {beyond})"
-            fd = None
-        else:
-            n_w, left_c, right_c = witness
-            msg = (
-                f"coefficients of q^{self._exp(n_w)} differ: left {_frac_str(left_c)}, "
-                f"right {_frac_str(right_c)}{notes}"
+            return Outcome(
+                "unproven",
+                kind,
+                f"{part} of the cleared difference looks nonzero at q^{self._exp(n)}, but the two sides "
+                f"agree through q^{self._exp(self.max_terms - 1)} (or could not be expanded that far); "
+                "no coefficient witnesses a difference",
+                space,
+                method,
+                bound,
+                terms,
+                components=components,
+                code="no-witness",
+                hint="please report this claim: qreferee's split into components disagrees with the expansions",
             )
-            fd = {"n": self._exponent(n_w), "left": _frac_str(left_c), "right": _frac_str(right_c)}
+        n_w, left_c, right_c = witness
+        msg = f"coefficients of q^{self._exp(n_w)} differ: left {_frac_str(left_c)}, right {_frac_str(right_c)}{notes}"
+        fd = {"n": self._exponent(n_w), "left": _frac_str(left_c), "right": _frac_str(right_c)}
         verdict = "refuted" if kind == "equality" else "proved"
         if kind == "inequality":
             msg = "the sides differ: " + msg
@@ -428,6 +417,7 @@ class Prover:
                 terms,
                 fd,
                 table=table,
+                relation="!=",
             )
         if not exact_range:
             # A printed polynomial with no \cdots and no O(...): it claims every coefficient.
@@ -455,7 +445,9 @@ class Prover:
                 None,
                 terms,
             )
-        return Outcome("refuted", "prefix", f"the expansions agree on {rng}", space, "expansion", None, terms)
+        return Outcome(
+            "refuted", "prefix", f"the expansions agree on {rng}", space, "expansion", None, terms, relation="!="
+        )
 
 
 def _heaviest(left: ir.Side, right: ir.Side) -> Fraction:
