@@ -16,6 +16,7 @@ internal inconsistency, never as a proof.
 
 from __future__ import annotations
 
+import dataclasses
 from dataclasses import dataclass
 from fractions import Fraction
 from typing import Any
@@ -91,12 +92,27 @@ def _decide(prover: Prover, claim: ArithmeticClaim, values: Values) -> Outcome:
             )
         return _refuted(kind, claim, n, a, b)
     if claim.rel == "!=":
+        # No n differs so far: the claim is refuted exactly when the equality can be proved.
+        equal = _decide(prover, dataclasses.replace(claim, rel="="), values)
+        if equal.verdict == "proved":
+            return Outcome(
+                "refuted",
+                kind,
+                f"the sides are equal: {equal.message}",
+                equal.space,
+                equal.method,
+                equal.bound,
+                equal.terms_compared,
+                components=equal.components,
+                relation="!=",
+            )
         return Outcome(
             "unproven",
             kind,
             f"the sides agree for {claim.start} <= n <= {claim.start + CHECK}",
             method="computation",
             terms_compared=CHECK + 1,
+            relation="!=",
         )
     try:
         left = generating_function(claim.left, claim.var, values)
