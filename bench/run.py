@@ -813,7 +813,8 @@ def section_level(quick: bool) -> bool:
     print("\n== 4. a level-N eta-quotient identity: the whole pipeline vs the same series in python-flint ==")
     from verifier.api import check_text
 
-    # Jacobi's four-square identity in eta form (MATH.md §4.7), with tau -> d tau so that it
+    # Jacobi's identity theta_3^4 = theta_2^4 + theta_4^4 in eta form (Whittaker-Watson, Ch. XXI;
+    # docs/method.md#theta-nome), with tau -> d tau so that it
     # lives on Gamma_0(4d), raised to the power e: weight 2e, Sturm bound floor(2e m_0(4d)/12).
     cases = [(250, 1), (300, 3)] if quick else [(250, 1), (300, 3), (1000, 3)]
     check_text("%@claim\n\\[ E_4^2 = E_8 \\]\n", "warm-up.tex")  # grammar and imports, once

@@ -2,17 +2,17 @@ r"""Claims about arithmetic functions, checked by brute force independently of t
 
 Nothing here uses the engine's values or series as the expected answer.  Direct values come from
 small implementations in this file: ``sympy.divisor_sigma`` for sigma_k; tau(n) from the product
-q prod (1 - q^n)^24 in plain integers (MATH.md §1.4); r_s(n) by counting the solutions of
+q prod (1 - q^n)^24 in plain integers (docs/method.md#delta-eta-j); r_s(n) by counting the solutions of
 x_1^2 + ... + x_s^2 = n one coordinate at a time; r_Q(n) by enumerating a box of lattice points;
-the Kronecker symbol from its definition (MATH.md §2.4) with ``sympy.jacobi_symbol`` for odd moduli;
-E_k coefficients from -2k/B_k sigma_{k-1}(n) with ``sympy.bernoulli`` (MATH.md §1.2).
+the Kronecker symbol from its definition (docs/method.md#characters) with ``sympy.jacobi_symbol`` for odd moduli;
+E_k coefficients from -2k/B_k sigma_{k-1}(n) with ``sympy.bernoulli`` (docs/method.md#eisenstein).
 
-Sources of the identities are named beside each case: Besge (1862) as worked out in MATH.md §7.3;
+Sources of the identities are named beside each case: Besge (1862) as worked out in docs/method.md#quasimodular;
 Ramanujan, Trans. Cambridge Philos. Soc. 22 (1916), Table IV (from memory); Huard, Ou, Spearman and
 Williams, "Elementary evaluation of certain convolution sums involving divisor functions" (2002)
 (from memory); Jacobi's two-, four-, six- and eight-square theorems (Hardy and Wright, Thms 278 and
 386; Grosswald, *Representations of Integers as Sums of Squares*, Ch. 9; from memory); Ramanujan's
-D Delta = E_2 Delta (MATH.md §1.5).  Every identity is also verified in this file by direct values
+D Delta = E_2 Delta (docs/method.md#derivatives).  Every identity is also verified in this file by direct values
 for 1 <= n <= 400 before the tool is asked about it, so a misremembered formula fails loudly here.
 """
 
@@ -44,7 +44,8 @@ N_SERIES = 300  # generating functions are compared coefficient by coefficient u
 
 
 def as_index(x: Fraction | int) -> int | None:
-    """x as a non-negative integer, or None (sigma_k(x) = tau(x) = r_s(x) = 0 off the integers: MATH.md §10.4)."""
+    """x as a non-negative integer, or None (sigma_k(x) = tau(x) = r_s(x) = 0 off the integers:
+    docs/method.md#arithmetic-functions)."""
     x = Fraction(x)
     if x.denominator != 1 or x < 0:
         return None
@@ -53,7 +54,7 @@ def as_index(x: Fraction | int) -> int | None:
 
 @cache
 def sigma_table(k: int) -> tuple[int, ...]:
-    """sigma_k(0..N_DIRECT) with sigma_k(0) = 0 (MATH.md preamble), via sympy.divisor_sigma."""
+    """sigma_k(0..N_DIRECT) with sigma_k(0) = 0 (docs/method.md#arithmetic-functions), via sympy.divisor_sigma."""
     return (0, *(int(sympy.divisor_sigma(n, k)) for n in range(1, N_DIRECT + 1)))
 
 
@@ -73,7 +74,7 @@ def _mul_trunc(a: list[int], b: list[int]) -> list[int]:
 
 @cache
 def tau_table() -> tuple[int, ...]:
-    """tau(0..N_DIRECT) from q prod_{n>=1} (1 - q^n)^24 (MATH.md §1.4), in plain integers."""
+    """tau(0..N_DIRECT) from q prod_{n>=1} (1 - q^n)^24 (docs/method.md#delta-eta-j), in plain integers."""
     count = N_DIRECT + 1
     euler = [1] + [0] * (count - 1)
     for n in range(1, count):  # multiply by (1 - q^n)
@@ -128,7 +129,7 @@ def hexagonal_table() -> tuple[int, ...]:
 
 
 def kronecker(a: int, n: int) -> int:
-    """The Kronecker symbol (a/n) for n >= 1 (MATH.md §2.4): (a/2) by a mod 8, odd part by Jacobi."""
+    """The Kronecker symbol (a/n) for n >= 1 (docs/method.md#characters): (a/2) by a mod 8, odd part by Jacobi."""
     result = 1
     while n % 2 == 0:
         n //= 2
@@ -150,7 +151,7 @@ def bernoulli(k: int) -> Fraction:
 
 
 def eis(k: int, n: int) -> Fraction:
-    """a_n(E_k) = -2k/B_k sigma_{k-1}(n), a_0 = 1 (MATH.md §1.2; B_k from sympy.bernoulli)."""
+    """a_n(E_k) = -2k/B_k sigma_{k-1}(n), a_0 = 1 (docs/method.md#eisenstein; B_k from sympy.bernoulli)."""
     return Fraction(1) if n == 0 else Fraction(-2 * k) / bernoulli(k) * sigma(k - 1, n)
 
 
@@ -314,25 +315,25 @@ TRUE_IDENTITIES = [
         "besge",
         one(CONV(1, 1)),
         [(F(5, 12), S(3)), (F(1, 12), S(1)), (F(-1, 2), NS(1, 1))],
-        source="Besge (1862); MATH.md §7.3",
+        source="Besge (1862); docs/method.md#quasimodular",
     ),
     Identity(
         "sigma1-sigma3",
         one(CONV(1, 3)),
         [(F(21, 240), S(5)), (F(1, 24), S(3)), (F(-1, 8), NS(1, 3)), (F(-1, 240), S(1))],
-        source="Ramanujan 1916, Table IV (from memory); from D E_4 = (E_2 E_4 - E_6)/3, MATH.md §1.5",
+        source="Ramanujan 1916, Table IV (from memory); from D E_4 = (E_2 E_4 - E_6)/3, docs/method.md#derivatives",
     ),
     Identity(
         "sigma3-sigma3",
         one(CONV(3, 3)),
         [(F(1, 120), S(7)), (F(-1, 120), S(3))],
-        source="E_4^2 = E_8 (MATH.md §1.2); Huard-Ou-Spearman-Williams 2002 (from memory)",
+        source="E_4^2 = E_8 (docs/method.md#eisenstein); Huard-Ou-Spearman-Williams 2002 (from memory)",
     ),
     Identity(
         "sigma1-sigma5",
         one(CONV(1, 5)),
         [(F(5, 126), S(7)), (F(1, 24), S(5)), (F(-1, 12), NS(1, 5)), (F(1, 504), S(1))],
-        source="Ramanujan 1916, Table IV (from memory); D E_6 = (E_2 E_6 - E_4^2)/2, MATH.md §1.5",
+        source="Ramanujan 1916, Table IV (from memory); D E_6 = (E_2 E_6 - E_4^2)/2, docs/method.md#derivatives",
     ),
     Identity(
         "sigma1-sigma7",
@@ -344,13 +345,13 @@ TRUE_IDENTITIES = [
         "sigma3-sigma5",
         one(CONV(3, 5)),
         [(F(11, 5040), S(9)), (F(-1, 240), S(5)), (F(1, 504), S(3))],
-        source="E_4 E_6 = E_10 (MATH.md §1.2); Huard-Ou-Spearman-Williams 2002 (from memory)",
+        source="E_4 E_6 = E_10 (docs/method.md#eisenstein); Huard-Ou-Spearman-Williams 2002 (from memory)",
     ),
     Identity(
         "tau-sigma5",
         one(TAU()),
         [(F(65, 756), S(11)), (F(691, 756), S(5)), (F(-691, 3), CONV(5, 5))],
-        source="Ramanujan 1916 (from memory); 691 E_12 = 441 E_4^3 + 250 E_6^2, MATH.md §1.2",
+        source="Ramanujan 1916 (from memory); 691 E_12 = 441 E_4^3 + 250 E_6^2, docs/method.md#eisenstein",
     ),
     Identity(
         "m-weighted-besge",
@@ -375,7 +376,7 @@ TRUE_IDENTITIES = [
         "n-tau",
         one(NTAU()),
         [(F(1), TAU()), (F(-24), CONV_SIGMA_TAU())],
-        source="D Delta = E_2 Delta (Ramanujan 1916; MATH.md §1.5)",
+        source="D Delta = E_2 Delta (Ramanujan 1916; docs/method.md#derivatives)",
     ),
     Identity(
         "jacobi-four-squares",
@@ -443,13 +444,14 @@ TRUE_IDENTITIES = [
         "jacobi-two-squares",
         one(R(2)),
         [(F(4), CHI(-4, False, 0))],
-        source="Jacobi's two-square theorem (Hardy and Wright, Thm 278); theta^2 = 2 E_1^{1,chi_-4}, MATH.md §1.8",
+        source="Jacobi's two-square theorem (Hardy and Wright, Thm 278); theta^2 = 2 E_1^{1,chi_-4}, "
+        "docs/method.md#eisenstein-characters",
     ),
     Identity(
         "jacobi-six-squares",
         one(R(6)),
         [(F(16), CHI(-4, True, 2)), (F(-4), CHI(-4, False, 2))],
-        source="Jacobi's six-square theorem (Grosswald, Ch. 9, from memory); MATH.md §1.8",
+        source="Jacobi's six-square theorem (Grosswald, Ch. 9, from memory); docs/method.md#eisenstein-characters",
     ),
 ]
 
@@ -475,7 +477,7 @@ def test_true_identities_hold_directly_and_are_proved(identity: Identity) -> Non
 
 # False identities (first-draft slips): the first differing n and both values are computed here.
 FALSE_IDENTITIES = [
-    # Besge with 5n in place of 6n - 1 (a misprint of MATH.md §7.3's formula).
+    # Besge with 5n in place of 6n - 1 (a misprint of docs/method.md#quasimodular's formula).
     Identity("besge-5n", one(CONV(1, 1)), [(F(5, 12), S(3)), (F(-5, 12), NS(1, 1))]),
     # Ramanujan's sigma_1 * sigma_3 sum with the sign of sigma(n) flipped.
     Identity(
@@ -646,7 +648,8 @@ def random_divisor_sum(rng: random.Random) -> Random:
 
 
 def random_character_sum(rng: random.Random) -> Random:
-    # psi phi(-1) = (-1)^k with k = a + 1 (MATH.md §1.8): odd characters with even a, even ones with odd a.
+    # psi phi(-1) = (-1)^k with k = a + 1 (docs/method.md#eisenstein-characters): odd characters with even a, even ones
+    # with odd a.
     disc = rng.choice([-4, -3, -8, 5, 8, 12])
     a = rng.choice([0, 2]) if disc < 0 else rng.choice([1, 3])
     on_codivisor = rng.random() < 0.5
@@ -691,7 +694,7 @@ RANDOM_SEEDS = range(40)
 
 @pytest.mark.parametrize("seed", RANDOM_SEEDS)
 def test_generating_function_of_random_expressions_matches_direct_values(seed: int) -> None:
-    # Sources: MATH.md §8 (the translations), against direct values computed in this file.
+    # Sources: docs/method.md#generating-functions (the translations), against direct values computed in this file.
     rng = random.Random(1000 + seed)
     expression = random_expression(rng)
     g = generating_function(expression.term, "n", Values())
@@ -750,9 +753,9 @@ def e6_squared(n: int) -> Fraction:
 
 
 def test_solve_unique_solution_for_e12() -> None:
-    # dim M_12 = 2 (MATH.md §6): two coefficients determine a and b; solved here with sympy.
+    # dim M_12 = 2 (docs/method.md#dimensions): two coefficients determine a and b; solved here with sympy.
     a, b = eisenstein_solution([e4_cubed, e6_squared], lambda n: eis(12, n))
-    assert (a, b) == (Fraction(441, 691), Fraction(250, 691))  # MATH.md §1.2
+    assert (a, b) == (Fraction(441, 691), Fraction(250, 691))  # docs/method.md#eisenstein
     claim = decide("E_{12} = aE_4^3 + bE_6^2", "%@claim solve=a,b")
     assert claim.verdict == "proved"
     assert {c["unknown"]: Fraction(c["value"]) for c in claim.outcome.components} == {"a": a, "b": b}
@@ -760,7 +763,7 @@ def test_solve_unique_solution_for_e12() -> None:
 
 
 def test_solve_unique_solution_for_delta() -> None:
-    # 1728 Delta = E_4^3 - E_6^2 (MATH.md §1.4): a = 1, b = -1.
+    # 1728 Delta = E_4^3 - E_6^2 (docs/method.md#delta-eta-j): a = 1, b = -1.
     delta = lambda n: Fraction(1728 * tau(n))  # noqa: E731
     a, b = eisenstein_solution([e4_cubed, e6_squared], delta)
     claim = decide("1728\\Delta = aE_4^3 + bE_6^2", "%@claim solve=a,b")
@@ -769,7 +772,7 @@ def test_solve_unique_solution_for_delta() -> None:
 
 
 def test_solve_family() -> None:
-    # E_8 = E_4^2 (MATH.md §1.2): every a + b = 1 solves E_8 = a E_4^2 + b E_8.
+    # E_8 = E_4^2 (docs/method.md#eisenstein): every a + b = 1 solves E_8 = a E_4^2 + b E_8.
     claim = decide("E_8 = aE_4^2 + bE_8", "%@claim solve=a,b")
     assert claim.verdict == "proved"
     values = {c["unknown"]: Fraction(c["value"]) for c in claim.outcome.components}
@@ -778,7 +781,7 @@ def test_solve_family() -> None:
 
 
 def test_solve_no_solution() -> None:
-    # Delta has constant term 0 and E_4^3 has 1, while Delta's q-coefficient is 1 (MATH.md §9): no a.
+    # Delta has constant term 0 and E_4^3 has 1, while Delta's q-coefficient is 1 (Ramanujan 1916, table): no a.
     claim = decide("\\Delta = aE_4^3", "%@claim solve=a")
     assert claim.verdict == "refuted"
 
@@ -788,7 +791,7 @@ def numbers(text: str) -> set[Fraction]:
 
 
 def test_suggestion_names_the_corrected_coefficient() -> None:
-    # 691 E_12 = 441 E_4^3 + 250 E_6^2 (MATH.md §1.2) with 619 typed for 691 in one place.
+    # 691 E_12 = 441 E_4^3 + 250 E_6^2 (docs/method.md#eisenstein) with 619 typed for 691 in one place.
     a, _ = eisenstein_solution([e4_cubed, e6_squared], lambda n: eis(12, n))
     claim = decide("E_{12} = \\frac{441}{619}E_4^3 + \\frac{250}{691}E_6^2")
     assert claim.verdict == "refuted"
@@ -798,7 +801,7 @@ def test_suggestion_names_the_corrected_coefficient() -> None:
 
 
 def test_suggestion_for_a_wrong_denominator_in_ramanujan() -> None:
-    # D E_4 = (E_2 E_4 - E_6)/3 (Ramanujan 1916, MATH.md §1.5); with 1/2 the q-coefficients are
+    # D E_4 = (E_2 E_4 - E_6)/3 (Ramanujan 1916, docs/method.md#derivatives); with 1/2 the q-coefficients are
     # 240 (= 1 * 240 sigma_3(1)) and (240 - 24 + 504)/2 = 360.
     claim = decide("D E_4 = \\frac{E_2E_4 - E_6}{2}")
     assert claim.verdict == "refuted"
@@ -809,7 +812,8 @@ def test_suggestion_for_a_wrong_denominator_in_ramanujan() -> None:
 
 
 def test_no_suggestion_when_no_coefficient_fixes_it() -> None:
-    # E_4 E_6 = E_10, and E_12 is no multiple of it (MATH.md §1.2: their q-coefficients -264 and 65520/691).
+    # E_4 E_6 = E_10, and E_12 is no multiple of it (docs/method.md#eisenstein: their q-coefficients -264 and
+    # 65520/691).
     claim = decide("E_4E_6 = E_{12}")
     assert claim.verdict == "refuted"
     assert first_n(claim) == 1
@@ -822,15 +826,15 @@ def test_no_suggestion_when_no_coefficient_fixes_it() -> None:
 
 # (claim, modulus, first n, left value at n, right value at n): values from this file.
 CONGRUENCE_REFUTATIONS = [
-    # Ramanujan's tau = sigma_11 (mod 691) (Ramanujan 1916, MATH.md §9) with wrong moduli.
+    # Ramanujan's tau = sigma_11 (mod 691) (Ramanujan 1916) with wrong moduli.
     ("\\tau(n) \\equiv \\sigma_{11}(n) \\pmod{619}", 619, lambda n: tau(n), lambda n: sigma(11, n)),
     ("\\tau(n) \\equiv \\sigma_{11}(n) \\pmod{2073}", 2073, lambda n: tau(n), lambda n: sigma(11, n)),
     ("\\tau(n) \\equiv \\sigma_{11}(n) \\pmod{1382}", 1382, lambda n: tau(n), lambda n: sigma(11, n)),
     # tau(n) = n sigma_3(n) (mod 7) holds (Swinnerton-Dyer, LNM 350, from memory); mod 49 it does not.
     ("\\tau(n) \\equiv n\\sigma_3(n) \\pmod{49}", 49, lambda n: tau(n), lambda n: n * sigma(3, n)),
-    # E_4 = 1 + 240 sum sigma_3 q^n (MATH.md §1.2) is 1 mod 240, not mod 480.
+    # E_4 = 1 + 240 sum sigma_3 q^n (docs/method.md#eisenstein) is 1 mod 240, not mod 480.
     ("E_4 \\equiv 1 \\pmod{480}", 480, lambda n: eis(4, n), lambda n: Fraction(n == 0)),
-    # E_6 = E_2 holds mod 5 (E_{p+1} = E_2 mod p, MATH.md §3.9) but not mod 7.
+    # E_6 = E_2 holds mod 5 (E_{p+1} = E_2 mod p, docs/method.md#congruence-e2) but not mod 7.
     ("E_6 \\equiv E_2 \\pmod{7}", 7, lambda n: eis(6, n), lambda n: eis(2, n)),
 ]
 
@@ -856,7 +860,7 @@ def test_congruence_refutation_names_n_and_both_residues(
 
 # True congruences: checked here to N_DIRECT, then proved by the tool.
 CONGRUENCE_PROOFS = [
-    # Ramanujan 1916 (MATH.md §9).
+    # Ramanujan 1916, table of tau(n).
     ("\\tau(n) \\equiv \\sigma_{11}(n) \\pmod{691}", 691, lambda n: tau(n) - sigma(11, n)),
     # Swinnerton-Dyer, LNM 350 (1973) (from memory).
     ("\\tau(n) \\equiv n\\sigma_3(n) \\pmod{7}", 7, lambda n: tau(n) - n * sigma(3, n)),

@@ -1,5 +1,5 @@
 """Budgets and parallel runs: same results with several processes; a claim over its time
-budget becomes an error and the run goes on (the mathematics here is MATH.md §1.2, the
+budget becomes an error and the run goes on (the mathematics here is docs/method.md#eisenstein, the
 identities E_8 = E_4^2 and 691 E_12 = 441 E_4^3 + 250 E_6^2)."""
 
 from __future__ import annotations

@@ -1,7 +1,7 @@
 """Checks of the Kronecker symbol and quadratic characters against outside sources.
 
 The Kronecker symbol is compared with sympy's independent implementation
-(``sympy.functions.combinatorial.numbers.kronecker_symbol``) and with the rules of MATH.md §2.4
+(``sympy.functions.combinatorial.numbers.kronecker_symbol``) and with the rules of docs/method.md#characters
 (Ireland–Rosen, A Classical Introduction to Modern Number Theory, Ch. 5, from memory), with
 Legendre symbols from Euler's criterion. Character values are checked against textbook tables
 (Diamond–Shurman §4.3, from memory) and against the definition of a Dirichlet character.
@@ -47,7 +47,7 @@ def test_kronecker_matches_sympy_large() -> None:
 
 
 def test_kronecker_special_arguments() -> None:
-    # MATH.md §2.4: (a/0) = 1 iff a = +-1; (a/-1) = sign of a (with (0/-1) = +1); (a/1) = 1.
+    # docs/method.md#characters: (a/0) = 1 iff a = +-1; (a/-1) = sign of a (with (0/-1) = +1); (a/1) = 1.
     assert [kronecker(a, 0) for a in (-2, -1, 0, 1, 2)] == [0, 1, 0, 1, 0]
     assert [kronecker(a, -1) for a in (-5, -1, 0, 1, 5)] == [-1, -1, 1, 1, 1]
     assert all(kronecker(a, 1) == 1 for a in range(-20, 21))
@@ -67,7 +67,7 @@ def test_kronecker_legendre_by_euler_criterion() -> None:
 
 
 def test_kronecker_completely_multiplicative_in_n() -> None:
-    # MATH.md §2.4: (a/mn) = (a/m)(a/n) for all nonzero m, n (the definition).
+    # docs/method.md#characters: (a/mn) = (a/m)(a/n) for all nonzero m, n (the definition).
     for a in range(-15, 16):
         for m in range(-20, 21):
             for n in range(-20, 21):
@@ -76,7 +76,7 @@ def test_kronecker_completely_multiplicative_in_n() -> None:
 
 
 def test_kronecker_discriminants_are_periodic() -> None:
-    # MATH.md §2.4: for D = 0, 1 mod 4 (D != 0), n -> (D/n) is periodic mod |D| with chi(-1) = sign D.
+    # docs/method.md#characters: for D = 0, 1 mod 4 (D != 0), n -> (D/n) is periodic mod |D| with chi(-1) = sign D.
     for d in range(-120, 121):
         if d == 0 or d % 4 not in (0, 1):
             continue
@@ -171,7 +171,7 @@ def test_character_is_primitive_dirichlet_character(chi: QuadraticCharacter) -> 
     for m in range(-14, 15):
         for n in range(-14, 15):
             assert chi.value(m * n) == values[m] * values[n], (m, n)
-    # chi(-1) = sign D (MATH.md §2.4).
+    # chi(-1) = sign D (docs/method.md#characters).
     assert values[-1] == (1 if chi.is_even else -1) == (1 if chi.disc > 0 else -1)
     # Primitive: for no proper divisor e of f is chi trivial on {n = 1 mod e, gcd(n, f) = 1}
     # (otherwise chi would be induced from a character mod e).

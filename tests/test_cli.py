@@ -152,7 +152,7 @@ def test_text_reports_witness_numbers(tmp_path: Path) -> None:
     write(tmp_path, "doc.tex", REFUTED_DOC)
     proc = run("check", "doc.tex", cwd=tmp_path)
     (refuted,) = [m for m in map(CLAIM_LINE.match, proc.stdout.splitlines()) if m and m["verdict"] == "refuted"]
-    # E_4 E_6 = E_10 and E_12 differ at q^1: -264 vs 65520/691 (MATH.md §1.2, §9).
+    # E_4 E_6 = E_10 and E_12 differ at q^1: -264 vs 65520/691 (docs/method.md#eisenstein).
     assert "-264" in refuted["message"] and "65520/691" in refuted["message"]
 
 

@@ -44,7 +44,7 @@ def sigma(r: int, n: int) -> int:
 
 
 def eis(k: int, n: int) -> Fraction:
-    """a_n(E_k) = -2k/B_k sigma_{k-1}(n) for n >= 1, and 1 for n = 0 (MATH.md §1.2), via sympy."""
+    """a_n(E_k) = -2k/B_k sigma_{k-1}(n) for n >= 1, and 1 for n = 0 (docs/method.md#eisenstein), via sympy."""
     if n == 0:
         return Fraction(1)
     b = sympy.bernoulli(k)
@@ -124,7 +124,7 @@ def theta_series(s: int) -> Callable[[int], QSeries]:
     return make
 
 
-# tau(n) = sigma_11(n) mod 691 (MATH.md §3.4 worked example; Ramanujan 1916):
+# tau(n) = sigma_11(n) mod 691 (docs/method.md#congruences-sturm worked example; Ramanujan 1916):
 # F = Delta - sum sigma_11 q^n = Delta - (691/65520)(E_12 - 1).
 C691 = Fraction(691, 65520)
 TAU_SIGMA11: list[Spec] = [(12, 0, 1, delta()), (12, 0, 1, E(12, -C691)), (0, 0, 1, const(C691))]
@@ -135,8 +135,8 @@ def tau_minus_sigma11(count: int) -> list[Fraction]:
     return [Fraction(t[n] - (sigma(11, n) if n else 0)) for n in range(count)]
 
 
-# tau(n) = n sigma_3(n) mod 7 (MATH.md §3.9 worked example): sum n sigma_3(n) q^n = D((E_4 - 1)/240)
-# = (E_2 E_4 - E_6)/720 (Ramanujan's equations, MATH.md §1.5), so F = Delta - E_4 E_2/720 + E_6/720.
+# tau(n) = n sigma_3(n) mod 7 (docs/method.md#congruence-e2 worked example): sum n sigma_3(n) q^n = D((E_4 - 1)/240)
+# = (E_2 E_4 - E_6)/720 (Ramanujan's equations, docs/method.md#derivatives), so F = Delta - E_4 E_2/720 + E_6/720.
 TAU_N_SIGMA3: list[Spec] = [(12, 0, 1, delta()), (6, 1, 1, E(4, Fraction(-1, 720))), (6, 0, 1, E(6, Fraction(1, 720)))]
 
 
@@ -151,7 +151,7 @@ def tau_minus_n_sigma3(count: int) -> list[Fraction]:
 
 
 def test_tau_sigma11_mod_691() -> None:
-    """MATH.md §3.4 worked example (Ramanujan 1916)."""
+    """docs/method.md#congruences-sturm worked example (Ramanujan 1916)."""
     d = decide(TAU_SIGMA11, 691)
     assert d.proved, d.reason
     assert d.bound == 1
@@ -160,7 +160,8 @@ def test_tau_sigma11_mod_691() -> None:
 
 
 def test_worked_example_h_form_mod_691() -> None:
-    """MATH.md §3.4: H = 691 E_12 - 691 E_4^3 - 65520 Delta is 0 mod 691, with B = 1 and a_1(H) = -691*720."""
+    """docs/method.md#congruences-sturm: H = 691 E_12 - 691 E_4^3 - 65520 Delta is 0 mod 691, with B = 1 and a_1(H)
+    = -691*720."""
 
     def h(prec: int) -> QSeries:
         e12 = eisenstein_series(12, prec).scale(691)
@@ -183,7 +184,7 @@ def test_worked_example_h_form_mod_691() -> None:
 
 
 def test_tau_n_sigma3_mod_7_with_e2_piece() -> None:
-    """MATH.md §3.9 worked example: E_2 -> E_8, E_6 * E_6, weight 12, B = 1."""
+    """docs/method.md#congruence-e2 worked example: E_2 -> E_8, E_6 * E_6, weight 12, B = 1."""
     d = decide(TAU_N_SIGMA3, 7)
     assert d.proved, d.reason
     assert d.bound == 1
@@ -199,7 +200,7 @@ PRIMES_5_59 = [p for p in range(5, 60) if sympy.isprime(p)]
 
 @pytest.mark.parametrize("p", PRIMES_5_59)
 def test_e_p_minus_1_is_one_mod_p(p: int) -> None:
-    """E_{p-1} = 1 mod p (MATH.md §3.5; von Staudt-Clausen, Hardy-Wright Thm 118)."""
+    """E_{p-1} = 1 mod p (docs/method.md#congruence-weights; von Staudt-Clausen, Hardy-Wright Thm 118)."""
     d = decide([(p - 1, 0, 1, E(p - 1)), (0, 0, 1, const(-1))], p)
     assert d.proved, d.reason
     assert all_zero_mod([eis(p - 1, n) - (1 if n == 0 else 0) for n in range(CHECK)], p)
@@ -207,14 +208,14 @@ def test_e_p_minus_1_is_one_mod_p(p: int) -> None:
 
 @pytest.mark.parametrize("p", [p for p in PRIMES_5_59 if p <= 29])
 def test_e_p_minus_1_is_not_one_mod_p_squared(p: int) -> None:
-    """MATH.md §3.5 (corrected in review): E_{p-1} != 1 mod p^2 for 5 <= p <= 29."""
+    """docs/method.md#congruence-weights: E_{p-1} != 1 mod p^2 for 5 <= p <= 29."""
     d = decide([(p - 1, 0, 1, E(p - 1)), (0, 0, 1, const(-1))], p * p)
     assert not d.proved
     assert first_nonzero_mod([eis(p - 1, n) - (1 if n == 0 else 0) for n in range(CHECK)], p * p) == 1
 
 
 def test_e4_is_one_mod_240_but_not_480() -> None:
-    """MATH.md §3.5: E_4 = 1 mod 240 = 2^4 * 3 * 5; mod 480 it fails (E_4 != 1 mod 32)."""
+    """docs/method.md#congruence-weights: E_4 = 1 mod 240 = 2^4 * 3 * 5; mod 480 it fails (E_4 != 1 mod 32)."""
     spec: list[Spec] = [(4, 0, 1, E(4)), (0, 0, 1, const(-1))]
     d = decide(spec, 240)
     assert d.proved, d.reason
@@ -228,14 +229,16 @@ def test_e4_is_one_mod_240_but_not_480() -> None:
 
 
 def test_counterexample_1_and_e4_mod_25_not_proved() -> None:
-    """MATH.md §3.5 counterexample: f = 1, g = E_4, M = 25; f E_4 - g = 0 yet a_1(E_4) = 240 != 0 mod 25."""
+    """docs/method.md#congruence-weights counterexample: f = 1, g = E_4, M = 25; f E_4 - g = 0 yet a_1(E_4) = 240
+    != 0 mod 25."""
     d = decide([(0, 0, 1, const(1)), (4, 0, 1, E(4, -1))], 25)
     assert not d.proved
     assert first_nonzero_mod([Fraction(1 if n == 0 else 0) - eis(4, n) for n in range(CHECK)], 25) == 1
 
 
 def test_kummer_prime_power_e6_e26_mod_25() -> None:
-    """Kummer congruence (MATH.md §3.5 sources, Serre LNM 350): E_6 = E_26 mod 25 since 26 = 6 mod 20.
+    """Kummer congruence (docs/method.md#congruence-weights sources, Serre LNM 350): E_6 = E_26 mod 25 since 26 = 6
+    mod 20.
 
     Proved with the multiplier E_4^5 = 1 mod 25; modulo 125 the gap 20 is not a multiple of 100,
     and the congruence is indeed false.
@@ -252,14 +255,15 @@ def test_kummer_prime_power_e6_e26_mod_25() -> None:
 
 
 def test_kummer_prime_power_e8_e50_mod_49() -> None:
-    """Kummer congruence: E_8 = E_50 mod 49 since 50 = 8 mod 42; multiplier E_6^7 = 1 mod 49 (MATH.md §3.5)."""
+    """Kummer congruence: E_8 = E_50 mod 49 since 50 = 8 mod 42; multiplier E_6^7 = 1 mod 49
+    (docs/method.md#congruence-weights)."""
     d = decide([(8, 0, 1, E(8)), (50, 0, 1, E(50, -1))], 49)
     assert d.proved, d.reason
     assert all_zero_mod([eis(8, n) - eis(50, n) for n in range(CHECK)], 49)
 
 
 def test_gap_two_mod_8() -> None:
-    """MATH.md §3.5 gap-2 trick: E_4 = E_6 mod 8 via E_4 E_6 = E_6 E_4 in weight 10."""
+    """docs/method.md#congruence-weights gap-2 trick: E_4 = E_6 mod 8 via E_4 E_6 = E_6 E_4 in weight 10."""
     d = decide([(4, 0, 1, E(4)), (6, 0, 1, E(6, -1))], 8)
     assert d.proved, d.reason
     assert d.details[0]["weight"] == 10
@@ -267,7 +271,8 @@ def test_gap_two_mod_8() -> None:
 
 
 def test_e2_is_one_mod_24_only() -> None:
-    """MATH.md §3.9: E_2 = 1 mod 24 (mod 8 and mod 3 the substitution E_2 -> 1); mod 48 and mod 9 unproven and false."""
+    """docs/method.md#congruence-e2: E_2 = 1 mod 24 (mod 8 and mod 3 the substitution E_2 -> 1); mod 48 and mod 9
+    unproven and false."""
     spec: list[Spec] = [(2, 1, 1, const(1)), (0, 0, 1, const(-1))]
     values = [eis(2, n) - (1 if n == 0 else 0) for n in range(CHECK)]
     d = decide(spec, 24)
@@ -281,14 +286,15 @@ def test_e2_is_one_mod_24_only() -> None:
 
 @pytest.mark.parametrize("p", [5, 7, 11, 13, 17, 19, 23])
 def test_e2_is_e_p_plus_1_mod_p(p: int) -> None:
-    """MATH.md §3.9 (Kummer): E_2 = E_{p+1} mod p for p >= 5."""
+    """docs/method.md#congruence-e2 (Kummer): E_2 = E_{p+1} mod p for p >= 5."""
     d = decide([(2, 1, 1, const(1)), (p + 1, 0, 1, E(p + 1, -1))], p)
     assert d.proved, d.reason
     assert all_zero_mod([eis(2, n) - eis(p + 1, n) for n in range(CHECK)], p)
 
 
 def test_theta4_is_one_mod_8_on_gamma0_4() -> None:
-    """theta^4 = 1 + 8 sum ... (Jacobi's four-square theorem, MATH.md §5.3): 1 mod 8, not mod 16, level 4."""
+    """theta^4 = 1 + 8 sum ... (Jacobi's four-square theorem, docs/method.md#sums-of-squares): 1 mod 8, not mod 16,
+    level 4."""
     spec: list[Spec] = [(2, 0, 1, theta_series(4)), (0, 0, 1, const(-1))]
     values = [Fraction(r - (1 if n == 0 else 0)) for n, r in enumerate(theta_power(4, CHECK))]
     d = decide(spec, 8, level=4)
@@ -301,7 +307,8 @@ def test_theta4_is_one_mod_8_on_gamma0_4() -> None:
 
 
 def test_composite_modulus_crt() -> None:
-    """E_4 = 1 mod 240 and E_6 = 1 mod 504 (MATH.md §3.5): E_4 = E_6 mod gcd = 24, proved prime by prime."""
+    """E_4 = 1 mod 240 and E_6 = 1 mod 504 (docs/method.md#congruence-weights): E_4 = E_6 mod gcd = 24, proved
+    prime by prime."""
     d = decide([(4, 0, 1, E(4)), (6, 0, 1, E(6, -1))], 24)
     assert d.proved, d.reason
     assert [x["modulus"] for x in d.details] == [8, 3]
@@ -334,7 +341,8 @@ def test_tau_sigma11_power_of_two_variants_never_proved(m: int) -> None:
 
 
 def test_tau_n_sigma3_mod_49_not_proved() -> None:
-    """MATH.md §3.9: no substitution for E_2 mod 49 -- and the congruence is false: tau(2) - 2 sigma_3(2) = -42."""
+    """docs/method.md#congruence-e2: no substitution for E_2 mod 49 -- and the congruence is false: tau(2) - 2
+    sigma_3(2) = -42."""
     d = decide(TAU_N_SIGMA3, 49)
     assert not d.proved
     assert "E_2" in d.reason
@@ -349,7 +357,7 @@ def test_tau_n_sigma3_mod_49_not_proved() -> None:
 
 def test_mixed_characters_not_proved_even_when_true() -> None:
     """theta^2 = 1 + 4 sum (chi_{-4} * 1)(n) q^n = 1 mod 4 is true, but theta^2 (chi_{-4}) and 1 (trivial)
-    lie in different spaces; a component mismatch neither proves nor refutes (MATH.md §3.9)."""
+    lie in different spaces; a component mismatch neither proves nor refutes (docs/method.md#congruence-e2)."""
     d = decide([(1, 0, -1, theta_series(2)), (0, 0, 1, const(-1))], 4, level=4)
     assert not d.proved
     assert "character" in d.reason
@@ -381,14 +389,14 @@ def test_undefined_congruence() -> None:
 
 
 def test_half_integral_weight_not_proved() -> None:
-    """MATH.md §3.6 gives no congruence bound in half-integral weight."""
+    """docs/method.md#claim-congruence: no congruence bound is used in half-integral weight."""
     d = decide([(Fraction(1, 2), 0, 1, theta_series(1)), (0, 0, 1, const(-1))], 2, level=4)
     assert not d.proved
     assert "half-integral" in d.reason
 
 
 def test_pole_not_proved() -> None:
-    """MATH.md §3.8 step 7: poles together with congruences are unproven."""
+    """docs/method.md#unproven: poles together with congruences are unproven."""
 
     def pole(prec: int) -> QSeries:
         return QSeries.monomial(-1, prec) + eisenstein_series(4, prec)
@@ -430,7 +438,12 @@ def test_bad_modulus_and_level() -> None:
     ("weights", "modulus", "level", "expected"),
     [
         ([(Fraction(12), 0), (Fraction(12), 0), (Fraction(0), 0)], 691, 1, 2),  # B = 1 in weight 12
-        ([(Fraction(12), 0), (Fraction(6), 1), (Fraction(6), 0)], 7, 1, 2),  # MATH.md §3.9: weight 12, B = 1
+        (
+            [(Fraction(12), 0), (Fraction(6), 1), (Fraction(6), 0)],
+            7,
+            1,
+            2,
+        ),  # docs/method.md#congruence-e2: weight 12, B = 1
         ([(Fraction(6), 0), (Fraction(26), 0)], 25, 1, 3),  # weight 26, B = 2
         ([(Fraction(2), 0), (Fraction(0), 0)], 8, 4, 4),  # weight 6 on Gamma0(4), B = 3
         ([(Fraction(1, 2), 0)], 2, 4, 1),  # half-integral: nothing to compute

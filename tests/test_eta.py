@@ -1,10 +1,12 @@
-"""Checks of eta quotients (MATH.md §4) against sources outside the engine.
+"""Checks of eta quotients (docs/method.md#eta-theta) against sources outside the engine.
 
 Each expected value names its source beside it: Gordon–Hughes and Newman (the level and
-character criterion, MATH.md §4.2), Ligozat (orders at cusps, §4.3), Dummit–Kisilevsky–McKay
-and Martin (the eta products spanning one-dimensional spaces of cusp forms, §4.5), Shimura
-(half-integral weight, §3.6), classical theta identities checked against series built here by
-direct enumeration (§5.1), the tables of MATH.md §9, or ``from memory``.  The transformation
+character criterion, docs/method.md#eta-modularity), Ligozat (orders at cusps, #ligozat), Dummit–Kisilevsky–McKay
+and Martin (the eta products spanning one-dimensional spaces of cusp forms, docs/method.md#eta-modularity), Shimura
+(half-integral weight, docs/method.md#half-integral-weight), classical theta identities checked against series
+built here by
+direct enumeration (docs/method.md#theta-nome), published tables (Ramanujan 1916; Serre, Ch. VII), or ``from
+memory``.  The transformation
 laws are checked numerically with mpmath, independently of the exact code paths.
 """
 
@@ -61,7 +63,7 @@ def test_construction_normalises_and_validates() -> None:
 
 
 def test_group_operations() -> None:
-    # Definition (§4.1): exponents add under products; tau -> t tau multiplies the deltas.
+    # Definition (docs/method.md#eta-offset): exponents add under products; tau -> t tau multiplies the deltas.
     f = E({1: 2, 11: 2})
     assert f * f == f**2 == E({1: 4, 11: 4})
     assert f / f == E({}) and f**0 == E({})
@@ -79,7 +81,7 @@ def test_group_operations() -> None:
 
 
 def _naive_product(f: EtaQuotient, prec: int) -> QSeries:
-    # Definition (§4.1): multiply the factors (1 - q^{delta n})^{r_delta} one by one, with the
+    # Definition (docs/method.md#eta-offset): multiply the factors (1 - q^{delta n})^{r_delta} one by one, with the
     # generic rational series inverse for negative exponents.
     result = QSeries.constant(1, prec)
     for delta, r in f.exponents:
@@ -102,26 +104,26 @@ def test_product_series_matches_naive_product() -> None:
 
 
 def test_delta_is_eta_24() -> None:
-    # Delta = eta^24 (MATH.md §1.4), against the existing Delta builder.
+    # Delta = eta^24 (docs/method.md#delta-eta-j), against the existing Delta builder.
     prec = 60
     assert E({1: 24}).series(prec).coefficients(0, prec) == delta_series(prec).coefficients(0, prec)
-    # Ramanujan's table (MATH.md §9): tau(1..6).
+    # Ramanujan's table (1916): tau(1..6).
     assert E({1: 24}).series(7).coefficients(1, 7) == [1, -24, 252, -1472, 4830, -6048]
 
 
 def test_series_requires_integral_offset() -> None:
     with pytest.raises(ValueError):
         E({1: 1}).series(10)
-    # Rescaling tau -> 24 tau (§4.1) gives eta(24 tau) = q prod (1 - q^{24 n}).
+    # Rescaling tau -> 24 tau (docs/method.md#eta-offset) gives eta(24 tau) = q prod (1 - q^{24 n}).
     s = E({1: 1}).scaled(24).series(200)
     assert s.valuation == 1 and [s[n] for n in (2, 25, 49, 121, 169)] == [0, -1, -1, 1, 1]
 
 
 def test_eta_1_squared_eta_11_squared() -> None:
-    # MATH.md §9: eta(tau)^2 eta(11 tau)^2 = q - 2q^2 - q^3 + 2q^4 + q^5 + 2q^6 - 2q^7 - 2q^9 - 2q^10 + q^11 - 2q^12.
+    # eta(tau)^2 eta(11 tau)^2 = q - 2q^2 - q^3 + 2q^4 + q^5 + 2q^6 - 2q^7 - 2q^9 - 2q^10 + q^11 - 2q^12.
     f = E({1: 2, 11: 2}).series(40)
     assert f.coefficients(0, 13) == [0, 1, -2, -1, 2, 1, 2, -2, 0, -2, -2, 1, -2]
-    # MATH.md §9: a_p for p = 2, ..., 37 (point counts on y^2 + y = x^3 - x^2 - 10x - 20).
+    # a_p for p = 2, ..., 37 (Eichler-Shimura: point counts on y^2 + y = x^3 - x^2 - 10x - 20).
     primes = [2, 3, 5, 7, 11, 13, 17, 19, 23, 29, 31, 37]
     assert [f[p] for p in primes] == [-2, -1, 1, -2, 1, 4, -2, 0, -1, 0, 7, 3]
 
@@ -135,7 +137,7 @@ def _theta_enum(prec: int) -> dict[int, int]:
 
 
 def test_theta_identities_by_enumeration() -> None:
-    # MATH.md §5.1 (Whittaker–Watson Ch. XXI; Koblitz Ch. IV), right sides enumerated here.
+    # docs/method.md#theta-nome (Whittaker–Watson Ch. XXI; Koblitz Ch. IV), right sides enumerated here.
     prec = 200
     rng = range(-20, 21)
     theta = _series(_theta_enum(prec), prec)
@@ -164,7 +166,7 @@ def test_theta_identities_by_enumeration() -> None:
 
 
 def test_jacobi_triple_product_identity() -> None:
-    # theta_2 theta_3 theta_4 = 2 eta^3 (MATH.md §5.1) at 2tau, with eta(2tau)^3 from Jacobi's
+    # theta_2 theta_3 theta_4 = 2 eta^3 (docs/method.md#theta-nome) at 2tau, with eta(2tau)^3 from Jacobi's
     # sum_{n>=0} (-1)^n (2n+1) q^{(2n+1)^2/4} (from memory): compare in the variable q after
     # tau -> 4 tau, where every exponent is an integer.
     prec = 300
@@ -181,17 +183,17 @@ def test_jacobi_triple_product_identity() -> None:
 
 
 def test_jacobi_four_squares_identity() -> None:
-    # MATH.md §4.7 / §9: theta^4 = eta_1^8/eta_2^4 + 16 eta_4^8/eta_2^4 (Jacobi), exactly.
+    # docs/method.md#sums-of-squares: theta^4 = eta_1^8/eta_2^4 + 16 eta_4^8/eta_2^4 (Jacobi), exactly.
     prec = 300
     theta = _series(_theta_enum(prec), prec)
     rhs = E({1: 8, 2: -4}).series(prec) + E({2: -4, 4: 8}).series(prec).scale(16)
     assert (theta**4).coefficients(0, prec) == rhs.coefficients(0, prec)
-    # MATH.md §9: r_4(1..10) = 8, 24, 32, 24, 48, 96, 64, 24, 104, 144.
+    # Jacobi's four-square theorem (Hardy–Wright Thm 386): r_4(1..10) = 8, 24, 32, 24, 48, 96, 64, 24, 104, 144.
     assert (THETA**4).series(11).coefficients(1, 11) == [8, 24, 32, 24, 48, 96, 64, 24, 104, 144]
 
 
 def test_large_precision_theta() -> None:
-    # prec 10^4 through the exact inverse path (r < 0), against enumeration (§5.1).
+    # prec 10^4 through the exact inverse path (r < 0), against enumeration (docs/method.md#theta-nome).
     prec = 10_000
     poly = THETA.product_poly(prec)
     expected = _theta_enum(prec)
@@ -204,12 +206,12 @@ def test_large_precision_theta() -> None:
 
 
 def test_least_levels_of_examples() -> None:
-    # MATH.md §4.4 examples (Gordon–Hughes / Newman criterion, §4.2).
+    # docs/method.md#eta-modularity examples (Gordon–Hughes / Newman criterion, #eta-modularity).
     assert E({1: 8, 2: -4}).least_level() == 4
     assert E({1: -8, 2: 16}).least_level() == 2
     assert E({1: 2, 11: 2}).least_level() == 11
     assert THETA.least_level() == 4
-    assert E({24: 1}).least_level() == 576  # Shimura / MATH.md §3.6: eta(24tau) on Gamma0(576)
+    assert E({24: 1}).least_level() == 576  # Shimura / docs/method.md#half-integral-weight: eta(24tau) on Gamma0(576)
     assert E({}).least_level() == 1
 
 
@@ -227,8 +229,8 @@ def test_modularity_failure() -> None:
 
 
 def _brute_least_level(f: EtaQuotient, need_four: bool = True) -> int | None:
-    # The conditions of §4.2 tried level by level (Gordon–Hughes; Newman), plus 4 | N for
-    # half-integral weight (Shimura, §3.6) when need_four is set.
+    # The conditions of docs/method.md#eta-modularity tried level by level (Gordon–Hughes; Newman), plus 4 | N for
+    # half-integral weight (Shimura, docs/method.md#half-integral-weight) when need_four is set.
     if f.s % 24:
         return None
     big_l = f.lcm_delta
@@ -256,20 +258,23 @@ def test_least_level_against_brute_force() -> None:
         # From memory (a parity argument): for odd sum r the two congruences already force 4 | N.
         assert n_min == _brute_least_level(f, need_four=False), f
         assert n_min is not None
-        # Every admissible level is a multiple of the least one (§4.4).
+        # Every admissible level is a multiple of the least one (docs/method.md#eta-modularity).
         for n in range(1, 3 * n_min + 1):
             admissible = f.level_failure(n) is None
             assert admissible == (n % n_min == 0), (f, n)
 
 
 def test_characters_of_examples() -> None:
-    # §3.6 / §4.6 (Shimura's convention): eta(24tau) has chi_12, theta and theta^3 the trivial character.
+    # docs/method.md#half-integral-weight / #eta-half-integral (Shimura's convention): eta(24tau) has chi_12, theta and
+    # theta^3 the trivial character.
     assert E({24: 1}).character(576) == QuadraticCharacter.from_integer(12)
     assert THETA.character(4).is_trivial
     assert (THETA**3).character(4).is_trivial
-    # §3.6: theta * eta(24tau) has chi_{-3} (a weight-1 integral quotient, §4.2).
+    # docs/method.md#half-integral-weight: theta * eta(24tau) has chi_{-3} (a weight-1 integral quotient,
+    # #eta-modularity).
     assert (THETA * E({24: 1})).character(576) == QuadraticCharacter.from_integer(-3)
-    # §3.6: theta^2 in weight 1 carries chi_{-4}; so do eta(24tau)^2 (at 576) (§4.6).
+    # docs/method.md#half-integral-weight: theta^2 in weight 1 carries chi_{-4}; so do eta(24tau)^2 (at 576)
+    # (#eta-half-integral).
     assert (THETA**2).character(4) == QuadraticCharacter.from_integer(-4)
     assert (E({24: 1}) ** 2).character(576) == QuadraticCharacter.from_integer(-4)
     # From memory: eta(tau) eta(23tau) is the weight-1 form of level 23 with chi_{-23}.
@@ -281,7 +286,7 @@ def test_characters_of_examples() -> None:
 # 4. Cusps (Ligozat)
 # ---------------------------------------------------------------------------
 
-# MATH.md §4.5 (Dummit–Kisilevsky–McKay 1985; Martin 1996): (exponents, level, weight);
+# docs/method.md#eta-modularity (Dummit–Kisilevsky–McKay 1985; Martin 1996): (exponents, level, weight);
 # each is a cusp form with trivial character spanning a one-dimensional S_k(Gamma0(N)).
 CUSP_FORMS = [
     ({1: 2, 11: 2}, 11, 2),
@@ -315,19 +320,19 @@ def test_dkm_martin_cusp_forms(exponents: dict[int, int], level: int, weight: in
 
 
 def test_ligozat_orders_worked_examples() -> None:
-    # MATH.md §4.7 (Ligozat; checked there numerically): orders at d = 1, 2, 4 on Gamma0(4).
+    # Ligozat's formula (docs/method.md#ligozat), worked by hand: orders at d = 1, 2, 4 on Gamma0(4).
     assert list((THETA**4).orders(4).values()) == [0, 1, 0]
     assert list(E({1: 8, 2: -4}).orders(4).values()) == [1, 0, 0]
     assert list(E({2: -4, 4: 8}).orders(4).values()) == [0, 0, 1]
-    # MATH.md §3.7: X = eta_1^16 eta_4^8 / eta_2^24 and Y = eta_1^8 eta_4^16 / eta_2^24.
+    # docs/method.md#poles-at-cusps: X = eta_1^16 eta_4^8 / eta_2^24 and Y = eta_1^8 eta_4^16 / eta_2^24.
     assert list(E({1: 16, 2: -24, 4: 8}).orders(4).values()) == [1, -1, 0]
     assert list(E({1: 8, 2: -24, 4: 16}).orders(4).values()) == [0, -1, 1]
     assert not E({1: 16, 2: -24, 4: 8}).is_holomorphic(4)
-    # MATH.md §3.1: theta^2 has order 1/2 at the cusp 1/2 of Gamma0(4).
+    # docs/method.md#valence-formula: theta^2 has order 1/2 at the cusp 1/2 of Gamma0(4).
     assert (THETA**2).order_at_cusp(2, 4) == Fraction(1, 2)
     assert THETA.order_at_cusp(2, 4) == Fraction(1, 4)
     assert THETA.is_holomorphic(4) and not THETA.is_cusp_form(4)
-    # At infinity (d = N) the order is s/24 (§4.3).
+    # At infinity (d = N) the order is s/24 (docs/method.md#ligozat).
     assert E({24: 1}).order_at_cusp(576, 576) == 1
     with pytest.raises(ValueError):
         E({1: 2, 11: 2}).order_at_cusp(3, 11)
@@ -336,8 +341,8 @@ def test_ligozat_orders_worked_examples() -> None:
 
 
 def test_valence_formula_for_random_quotients() -> None:
-    # Valence formula (MATH.md §3.1, §4.3(b)): sum over cusps of the orders equals k m_0(N)/12.
-    # There are phi(gcd(d, N/d)) cusps with denominator d (§2.2), all with the same order.
+    # Valence formula (docs/method.md#valence-formula, #ligozat): sum over cusps of the orders equals k m_0(N)/12.
+    # There are phi(gcd(d, N/d)) cusps with denominator d (docs/method.md#cusps), all with the same order.
     rng = random.Random(7)
     for _ in range(150):
         ds = rng.sample([1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 12], rng.randint(1, 4))
@@ -385,12 +390,14 @@ def _points(a: int, b: int, c: int, d: int) -> list[tuple[mpmath.mpc, mpmath.mpc
 
 
 def _ghn_symbol(f: EtaQuotient, d: int) -> int:
-    # The character exactly as §4.2 states it (Gordon–Hughes; Newman): ((-1)^k prod delta^|r| / d).
+    # The character exactly as docs/method.md#eta-modularity states it (Gordon–Hughes; Newman): ((-1)^k prod delta^|r| /
+    # d).
     k = int(f.weight)
     return kronecker((-1) ** k * math.prod(delta ** abs(r) for delta, r in f.exponents), d)
 
 
-# Integral weight, from MATH.md §4.5 and §3.6, "from memory" (eta(tau) eta(23 tau)), and found
+# Integral weight, from docs/method.md#eta-modularity, #half-integral-weight, "from memory" (eta(tau) eta(23 tau)), and
+# found
 # by a search over small exponents: (exponents, level, expected character as a discriminant).
 GHN_CASES = [
     ({1: 2, 11: 2}, 11, 1),
@@ -427,12 +434,13 @@ def test_ghn_transformation_law_numerically(exponents: dict[int, int], level: in
     assert (-1 in seen) == (disc != 1)
 
 
-# Half-integral weight (Shimura, §3.6): f(gamma tau) = chi(d) j(gamma, tau)^{2 lambda + 1} f(tau).
+# Half-integral weight (Shimura, docs/method.md#half-integral-weight): f(gamma tau) = chi(d) j(gamma, tau)^{2 lambda +
+# 1} f(tau).
 HALF_CASES = [
     ({1: -2, 2: 5, 4: -2}, 4, 1),  # theta itself: checks the multiplier j and the test
     ({1: -6, 2: 15, 4: -6}, 4, 1),  # theta^3
     ({8: 3}, 64, 1),  # eta(8tau)^3 = sum (-1)^n (2n+1) q^{(2n+1)^2} (from memory)
-    ({24: 1}, 576, 12),  # MATH.md §3.6
+    ({24: 1}, 576, 12),  # docs/method.md#half-integral-weight
 ]
 
 

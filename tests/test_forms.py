@@ -94,7 +94,7 @@ def test_bernoulli_rejects_negative_index() -> None:
 
 
 def test_eisenstein_constants_match_math_md() -> None:
-    # -2k/B_k for k = 2..16: MATH.md §1.2 (Serre, A Course in Arithmetic, Ch. VII §4.2;
+    # -2k/B_k for k = 2..16: docs/method.md#eisenstein (Serre, A Course in Arithmetic, Ch. VII §4.2;
     # Zagier, 1-2-3 of Modular Forms §2.1-2.2).  Also recomputed from A&S Table 23.2.
     expected = {
         2: Fraction(-24),
@@ -130,7 +130,7 @@ def test_eisenstein_constant_rejects_odd_or_small_weight() -> None:
 
 @pytest.mark.parametrize("r", [1, 3, 5, 7, 9, 11, 13])
 def test_eisenstein_coefficients_against_sympy_divisor_sigma(r: int) -> None:
-    # E_k = 1 - (2k/B_k) sum sigma_{k-1}(n) q^n (MATH.md §1.2), with sigma and B_k
+    # E_k = 1 - (2k/B_k) sum sigma_{k-1}(n) q^n (docs/method.md#eisenstein), with sigma and B_k
     # both taken from sympy, independent of the engine.  B_k via sympy (k >= 2 even,
     # so the B_1 convention does not matter).
     k = r + 1
@@ -155,7 +155,7 @@ def test_eisenstein_coefficients_against_sympy_divisor_sigma(r: int) -> None:
 
 
 def test_first_coefficients_of_eisenstein_series() -> None:
-    # MATH.md §9, sources: Serre, A Course in Arithmetic, Ch. VII §4; Zagier, 1-2-3 of
+    # Sources: Serre, A Course in Arithmetic, Ch. VII §4; Zagier, 1-2-3 of
     # Modular Forms §2 (section numbers from memory there).
     assert eisenstein_series(2, 6).coefficients(0, 6) == [1, -24, -72, -96, -168, -144]
     # (E_2 entries for q^4, q^5 from memory: -24 sigma(4) = -168, -24 sigma(5) = -144)
@@ -181,7 +181,7 @@ def test_first_coefficients_of_eisenstein_series() -> None:
 
 
 # Ramanujan, Trans. Cambridge Philos. Soc. 22 (1916) 159-184, table of tau(n)
-# (also MATH.md §9).
+# (Serre, A Course in Arithmetic, Ch. VII §4).
 RAMANUJAN_TAU_1_12 = [
     1,
     -24,
@@ -234,7 +234,7 @@ def test_tau_multiplicativity_hecke_and_bounds() -> None:
 
 
 def test_j_coefficients() -> None:
-    # MATH.md §9 (Apostol, Modular Functions and Dirichlet Series, Ch. 1; Serre Ch. VII §3.3):
+    # Apostol, Modular Functions and Dirichlet Series, Ch. 1; Serre Ch. VII §3.3):
     # c(-1..4); c(5) = 333202640600 from memory.
     p = 10
     j = eisenstein_series(4, p) ** 3 / delta_series(p)
@@ -260,7 +260,7 @@ def test_euler_product_against_naive_product() -> None:
 
 
 def test_delta_against_naive_product() -> None:
-    # Delta = q prod (1 - q^n)^24 (MATH.md §1.4), expanded naively in Python integers.
+    # Delta = q prod (1 - q^n)^24 (docs/method.md#delta-eta-j), expanded naively in Python integers.
     prec = 60
     body = [1] + [0] * (prec - 2)
     for n in range(1, prec - 1):
@@ -280,7 +280,7 @@ P = 150
 
 
 def test_eisenstein_product_identities() -> None:
-    # MATH.md §1.2: E_8 = E_4^2, E_10 = E_4 E_6, E_14 = E_4^2 E_6, 691 E_12 = 441 E_4^3 + 250 E_6^2
+    # docs/method.md#eisenstein: E_8 = E_4^2, E_10 = E_4 E_6, E_14 = E_4^2 E_6, 691 E_12 = 441 E_4^3 + 250 E_6^2
     # (Serre, A Course in Arithmetic, Ch. VII §4; Zagier, 1-2-3 §2.2; dim M_k = 1 for
     # k = 8, 10, 14 and dim M_12 = 2).
     e4, e6 = eisenstein_series(4, P), eisenstein_series(6, P)
@@ -295,7 +295,7 @@ def test_eisenstein_product_identities() -> None:
 
 
 def test_delta_equals_e4_cubed_minus_e6_squared() -> None:
-    # MATH.md §1.4: 1728 Delta = E_4^3 - E_6^2 (Serre Ch. VII §4.4; Apostol Ch. 1).
+    # docs/method.md#delta-eta-j: 1728 Delta = E_4^3 - E_6^2 (Serre Ch. VII §4.4; Apostol Ch. 1).
     e4, e6 = eisenstein_series(4, P), eisenstein_series(6, P)
     assert delta_series(P).scale(1728).first_difference(e4**3 - e6**2, 0, P) is None
 
@@ -303,7 +303,7 @@ def test_delta_equals_e4_cubed_minus_e6_squared() -> None:
 def test_e12_minus_delta_is_691_divisible() -> None:
     # Ramanujan 1916 congruence tau(n) = sigma_11(n) mod 691, in series form:
     # (691/65520) (E_12 - 1) - Delta = sum (sigma_11(n) - tau(n)) q^n has integer
-    # coefficients divisible by 691 (MATH.md §9).
+    # coefficients divisible by 691 (Serre, A Course in Arithmetic, Ch. VII §4).
     e12 = eisenstein_series(12, P)
     d = delta_series(P)
     diff = (e12 - QSeries.constant(1, P)).scale(Fraction(691, 65520)) - d
@@ -404,7 +404,7 @@ def test_modularity_under_another_matrix(series: dict[str, QSeries], name: str, 
 
 
 def test_e2_quasimodular_law(series: dict[str, QSeries]) -> None:
-    # MATH.md §1.3 (Zagier 1-2-3 §2.3 eq. (17), from memory):
+    # docs/method.md#e2 (Zagier 1-2-3 §2.3 eq. (17), from memory):
     # E_2(gamma tau) = (c tau + d)^2 E_2(tau) + 6 c (c tau + d) / (pi i).
     e2 = series["E2"]
     for (a, b, c, d), tau in [
@@ -429,7 +429,7 @@ def test_special_values(series: dict[str, QSeries]) -> None:
     # E_6(i) = 0 and E_4(rho) = 0 (Serre Ch. VII §3, valence formula; from memory)
     assert abs(evaluate(series["E6"], i)) < TOL
     assert abs(evaluate(series["E4"], rho)) < TOL
-    # j(i) = 1728, j(e^(2 pi i/3)) = 0 (MATH.md §1.4; Apostol Ch. 1; Serre Ch. VII §3.3)
+    # j(i) = 1728, j(e^(2 pi i/3)) = 0 (docs/method.md#delta-eta-j; Apostol Ch. 1; Serre Ch. VII §3.3)
     assert close(evaluate(series["j"], i), mpmath.mpf(1728))
     assert abs(evaluate(series["j"], rho)) < TOL * 1728
     # class-number-one values (from memory): j(i sqrt 2) = 8000, j((1 + i sqrt 7)/2) = -3375,
@@ -448,7 +448,7 @@ def test_j_against_mpmath_kleinj(series: dict[str, QSeries]) -> None:
 
 
 def test_delta_against_mpmath_product_and_theta(series: dict[str, QSeries]) -> None:
-    # Delta = q prod (1 - q^n)^24 (MATH.md §1.4), evaluated with mpmath's q-Pochhammer
+    # Delta = q prod (1 - q^n)^24 (docs/method.md#delta-eta-j), evaluated with mpmath's q-Pochhammer
     # symbol qp(q) = prod_{n>=1} (1 - q^n); and Delta = (theta_2 theta_3 theta_4 / 2)^8 in
     # Jacobi's nome e^(pi i tau) (Jacobi's 2 eta^3 = theta_2 theta_3 theta_4; from memory),
     # with mpmath.jtheta.
@@ -473,7 +473,7 @@ def test_e4_against_theta_functions(series: dict[str, QSeries]) -> None:
 
 
 def test_e4_e6_against_weierstrass_invariants(series: dict[str, QSeries]) -> None:
-    # 1728 J = 1728 E_4^3 / (E_4^3 - E_6^2)  (MATH.md §10 pitfall 2: g_2 ~ E_4, g_3 ~ E_6;
+    # 1728 J = 1728 E_4^3 / (E_4^3 - E_6^2)  (docs/method.md#eisenstein: g_2 ~ E_4, g_3 ~ E_6;
     # mpmath.kleinj as reference): checks E_6 numerically independently of Delta.
     for tau in points():
         e4 = evaluate(series["E4"], tau)

@@ -1,7 +1,8 @@
 """Checks of the group invariants of Gamma_0(N) and Gamma_1(N) against outside sources.
 
-Expected values are quoted from MATH.md (with the published source it cites, named beside each
-check), or recomputed here by brute force, independently of ``verifier.prove.groups``: orbits of
+Expected values are quoted from published sources (named beside each check; the formulas are
+collected in docs/method.md#groups), or recomputed here by brute force, independently of ``verifier.prove.groups``:
+orbits of
 (c : d) -> (c : c + d) on P^1(Z/N), root counts of x^2 + 1 and x^2 + x + 1 mod N, and counts of
 primitive vectors in (Z/N)^2.
 """
@@ -111,18 +112,18 @@ def brute_index_gamma1_projective(n: int) -> int:
 
 
 def test_index_gamma0_table() -> None:
-    # MATH.md §2.1; Diamond–Shurman §1.2 and Exercise 1.2.3 (from memory).
+    # docs/method.md#index; Diamond–Shurman §1.2 and Exercise 1.2.3 (from memory).
     assert [index_gamma0(n) for n in range(1, 13)] == [1, 3, 4, 6, 6, 12, 8, 12, 12, 18, 12, 24]
 
 
 def test_index_gamma0_counts_p1() -> None:
-    # MATH.md §2.1: m_0(N) = #P^1(Z/N) (brute force above).
+    # docs/method.md#index: m_0(N) = #P^1(Z/N) (brute force above).
     for n in range(1, 60):
         assert index_gamma0(n) == len(p1_classes(n)[1]), n
 
 
 def test_index_gamma1_brute_force() -> None:
-    # MATH.md §2.1: [SL2(Z) : Gamma_1(N)] = N^2 prod (1 - p^-2); the brute-force count of primitive
+    # docs/method.md#index: [SL2(Z) : Gamma_1(N)] = N^2 prod (1 - p^-2); the brute-force count of primitive
     # vectors mod N is independent of that formula.
     for n in range(1, 60):
         assert index_gamma1(n) == brute_index_gamma1(n), n
@@ -130,8 +131,8 @@ def test_index_gamma1_brute_force() -> None:
 
 
 def test_index_gamma1_values() -> None:
-    # MATH.md §2.1: bar m_1(1) = 1, bar m_1(2) = 3 (-I lies in Gamma_1(N) only for N <= 2);
-    # MATH.md §3.3: bar m_1(13) = 84 (from the genus-2, 12-cusp curve X_1(13)).
+    # docs/method.md#index: bar m_1(1) = 1, bar m_1(2) = 3 (-I lies in Gamma_1(N) only for N <= 2);
+    # docs/method.md#gamma1-bound: bar m_1(13) = 84 (from the genus-2, 12-cusp curve X_1(13)).
     assert index_gamma1_projective(1) == 1
     assert index_gamma1_projective(2) == 3
     assert index_gamma1_projective(13) == 84
@@ -147,14 +148,14 @@ def test_index_gamma1_values() -> None:
 
 
 def test_cusp_count_table() -> None:
-    # MATH.md §2.2; Diamond–Shurman §3.8 (from memory).
+    # docs/method.md#cusps; Diamond–Shurman §3.8 (from memory).
     expected = [1, 2, 2, 3, 2, 4, 2, 4, 4, 4, 2, 6]
     assert [cusp_count(n) for n in range(1, 13)] == expected
     assert [len(cusps(n)) for n in range(1, 13)] == expected
 
 
 def test_cusp_widths_small_levels() -> None:
-    # Widths h(c/d) = N / gcd(d^2, N) (MATH.md §2.2; Diamond–Shurman §3.8, from memory), worked by hand.
+    # Widths h(c/d) = N / gcd(d^2, N) (docs/method.md#cusps; Diamond–Shurman §3.8, from memory), worked by hand.
     assert cusps(1) == [Cusp(1, 1, 1)]
     assert cusps(4) == [Cusp(0, 1, 4), Cusp(1, 2, 1), Cusp(1, 4, 1)]
     assert cusps(9) == [Cusp(0, 1, 9), Cusp(1, 3, 1), Cusp(2, 3, 1), Cusp(1, 9, 1)]
@@ -162,7 +163,7 @@ def test_cusp_widths_small_levels() -> None:
 
 
 def test_cusp_widths_sum_to_index() -> None:
-    # MATH.md §2.2: the widths add up to m_0(N); the list has epsilon_inf(N) entries.
+    # docs/method.md#cusps: the widths add up to m_0(N); the list has epsilon_inf(N) entries.
     for n in range(1, 200):
         cs = cusps(n)
         assert sum(c.width for c in cs) == index_gamma0(n), n
@@ -173,7 +174,7 @@ def test_cusp_widths_sum_to_index() -> None:
 
 
 def test_cusps_against_orbits() -> None:
-    # MATH.md §2.2 [V]: the orbits of (c : d) -> (c : c + d) on P^1(Z/N) are the cusps. Check that the
+    # docs/method.md#cusps: the orbits of (c : d) -> (c : c + d) on P^1(Z/N) are the cusps. Check that the
     # listed cusps lie in pairwise different orbits, that they exhaust them, and that each width is
     # the orbit length; also the orbit count per gcd(c, N) = d is phi(gcd(d, N/d)).
     for n in range(1, 60):
@@ -196,7 +197,8 @@ def test_cusps_against_orbits() -> None:
 
 
 def test_elliptic_points_root_counts() -> None:
-    # MATH.md §2.3 [V for N < 400]: epsilon_2 = #{x mod N : x^2 + 1 = 0}, epsilon_3 = #{x : x^2 + x + 1 = 0}.
+    # docs/method.md#elliptic-points-genus (common practice, N < 400): epsilon_2 = #{x mod N : x^2 + 1 = 0}, epsilon_3 =
+    # #{x : x^2 + x + 1 = 0}.
     for n in range(1, 400):
         e2 = sum(1 for x in range(n) if (x * x + 1) % n == 0)
         e3 = sum(1 for x in range(n) if (x * x + x + 1) % n == 0)
@@ -204,7 +206,8 @@ def test_elliptic_points_root_counts() -> None:
 
 
 def test_genus_lists() -> None:
-    # MATH.md §2.3; Diamond–Shurman Thm 3.1.1 (from memory): among N < 60, g_0(N) = 0 exactly for
+    # docs/method.md#elliptic-points-genus; Diamond–Shurman Thm 3.1.1 (from memory): among N < 60, g_0(N) = 0 exactly
+    # for
     # these N and g_0(N) = 1 exactly for those.
     genus0 = {1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 12, 13, 16, 18, 25}
     genus1 = {11, 14, 15, 17, 19, 20, 21, 24, 27, 32, 36, 49}
@@ -213,7 +216,7 @@ def test_genus_lists() -> None:
 
 
 def test_invariants_table() -> None:
-    # MATH.md §6.3: (m_0, epsilon_2, epsilon_3, epsilon_inf, g) for N = 1..12.
+    # docs/method.md#dimension-gamma0: (m_0, epsilon_2, epsilon_3, epsilon_inf, g) for N = 1..12.
     expected = [
         (1, 1, 1, 1, 0),
         (3, 1, 0, 2, 0),
@@ -236,7 +239,7 @@ def test_invariants_table() -> None:
 # Dimensions
 # ---------------------------------------------------------------------------
 
-# MATH.md §6.3; Diamond–Shurman Thm 3.5.1 and Fig. 3.4 (from memory). Rows for N = 1..12.
+# docs/method.md#dimension-gamma0; Diamond–Shurman Thm 3.5.1 and Fig. 3.4 (from memory). Rows for N = 1..12.
 DIM_TABLE: dict[tuple[str, int], list[int]] = {
     ("M", 2): [0, 1, 1, 2, 1, 3, 1, 3, 3, 3, 2, 5],
     ("S", 2): [0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 1, 0],
@@ -254,7 +257,7 @@ def test_dimension_table(space: str, k: int) -> None:
 
 
 def test_dimension_extra_values() -> None:
-    # MATH.md §6.3: dim S_12(1) = 1, dim S_2(11) = 1, dim S_2(23) = dim S_2(37) = 2, dim S_2(48) = 3.
+    # docs/method.md#dimension-gamma0: dim S_12(1) = 1, dim S_2(11) = 1, dim S_2(23) = dim S_2(37) = 2, dim S_2(48) = 3.
     assert dim_cusp(12, 1) == 1
     assert dim_cusp(2, 11) == 1
     assert dim_cusp(2, 23) == 2
@@ -263,7 +266,8 @@ def test_dimension_extra_values() -> None:
 
 
 def test_level_one_cusp_dimensions() -> None:
-    # MATH.md §6.1; Serre, A Course in Arithmetic, VII §3.2 (from memory): dim S_k for k = 12, 14, ..., 26.
+    # docs/method.md#dimension-level-one; Serre, A Course in Arithmetic, VII §3.2 (from memory): dim S_k for k = 12, 14,
+    # ..., 26.
     assert [dim_cusp(k, 1) for k in range(12, 27, 2)] == [1, 0, 1, 1, 1, 1, 2, 1]
 
 
@@ -273,12 +277,13 @@ def test_level_one_cusp_dimensions() -> None:
 
 
 def test_sturm_bounds() -> None:
-    # MATH.md §3.2 sample values (Sturm 1987): B(1, 12) = 1, B(4, 2) = 1, B(11, 2) = 2, B(4, 1) = 0.
+    # docs/method.md#sturm-bound sample values (Sturm 1987): B(1, 12) = 1, B(4, 2) = 1, B(11, 2) = 2, B(4, 1) = 0.
     assert sturm_bound(12, 1) == 1
     assert sturm_bound(2, 4) == 1
     assert sturm_bound(2, 11) == 2
     assert sturm_bound(1, 4) == 0
-    # MATH.md §3.3: at level 13, weight 2 the Gamma_0 bound is 2 and the Gamma_1 bound floor(2 * 84 / 12) = 14.
+    # docs/method.md#gamma1-bound: at level 13, weight 2 the Gamma_0 bound is 2 and the Gamma_1 bound floor(2 * 84 / 12)
+    # = 14.
     assert sturm_bound(2, 13) == 2
     assert sturm_bound_gamma1(2, 13) == 14
     # Half-integral weight is accepted as a Fraction: floor(5/2 * 3 / 12) = 0, floor(13/2 * 24 / 12) = 13.

@@ -1,7 +1,7 @@
 """Hecke operators and eigenform decisions, checked against values from outside the module.
 
-Sources, named beside each test: MATH.md §1.7 (T_n Delta, T_p theta^2, checked there [V]); the tau
-table of Ramanujan (1916), quoted in MATH.md §9; the a_p of eta(tau)^2 eta(11tau)^2 in MATH.md §9
+Sources, named beside each test: docs/method.md#hecke with Diamond–Shurman Prop. 5.3.1 (T_n Delta, T_p theta^2); the tau
+table of Ramanujan (1916); the a_p of eta(tau)^2 eta(11tau)^2 by point counting on its elliptic curve
 (point counts on the curve named there); E_k is a T_n-eigenform with eigenvalue sigma_(k-1)(n)
 (standard, from memory). Expected coefficients of refutations are recomputed here by hand from
 these values, never read back from the module under test.
@@ -28,12 +28,13 @@ from verifier.prove.hecke import (
 )
 from verifier.series.qseries import QSeries
 
-# Ramanujan (1916), table of tau(n), n = 1..12 (MATH.md §9).
+# Ramanujan (1916), table of tau(n), n = 1..12.
 TAU = [1, -24, 252, -1472, 4830, -6048, -16744, 84480, -113643, -115920, 534612, -370944]
 
-# MATH.md §9: a_p of eta(tau)^2 eta(11tau)^2 for p = 2, 3, 5, ..., 37.
+# a_p of eta(tau)^2 eta(11tau)^2 for p = 2, 3, 5, ..., 37: p + 1 - #E(F_p) on y^2 + y = x^3 - x^2 - 10x - 20
+# (Eichler-Shimura; Shimura 1971, §7.5, from memory).
 LEVEL11_AP = {2: -2, 3: -1, 5: 1, 7: -2, 11: 1, 13: 4, 17: -2, 19: 0, 23: -1, 29: 0, 31: 7, 37: 3}
-# MATH.md §9: its first coefficients a_1 .. a_12.
+# Its first coefficients a_1 .. a_12 (from memory; they agree with the a_p above).
 LEVEL11_SERIES = [1, -2, -1, 2, 1, 2, -2, 0, -2, -2, 1, -2]
 
 ONE = Fraction(1)
@@ -45,7 +46,8 @@ def sigma(r: int, n: int) -> int:
 
 
 def eisenstein(k: int, prec: int) -> QSeries:
-    """E_4 = 1 + 240 sum sigma_3(n) q^n and E_6 = 1 - 504 sum sigma_5(n) q^n (MATH.md §9)."""
+    """E_4 = 1 + 240 sum sigma_3(n) q^n and E_6 = 1 - 504 sum sigma_5(n) q^n (Serre, A Course in Arithmetic, Ch.
+    VII §4)."""
     c = {4: 240, 6: -504}[k]
     return QSeries.from_coefficients([1] + [c * sigma(k - 1, n) for n in range(1, prec)], 0, prec)
 
@@ -66,7 +68,7 @@ def chi_m4(n: int) -> int:
 def level11_eisenstein(prec: int) -> QSeries:
     """(E_2(tau) - 11 E_2(11 tau)) / (-24) = 5/12 + sum sigma'(n) q^n, sigma'(n) = sum of d | n with 11 not dividing d.
 
-    From E_2 = 1 - 24 sum sigma(n) q^n (MATH.md §1.2): sigma(n) - 11 sigma(n/11) drops exactly the divisors
+    From E_2 = 1 - 24 sum sigma(n) q^n (docs/method.md#eisenstein): sigma(n) - 11 sigma(n/11) drops exactly the divisors
     divisible by 11. It is a normalised eigenform: a_p = 1 + p for p != 11, and U_11 fixes it (the divisors
     of 11n prime to 11 are those of n).
     """
@@ -76,7 +78,7 @@ def level11_eisenstein(prec: int) -> QSeries:
 
 
 def test_level11_series_matches_table() -> None:
-    # MATH.md §9
+    # Ramanujan 1916, table of tau(n)
     s = level11(13)
     assert s.coefficients(1, 13) == LEVEL11_SERIES
     assert s[0] == 0
@@ -95,7 +97,7 @@ def test_required_precision() -> None:
 
 @pytest.mark.parametrize("n", [2, 3, 4, 5, 6, 9])
 def test_hecke_delta(n: int) -> None:
-    # MATH.md §1.7 [V]: T_n Delta = tau(n) Delta; tau from Ramanujan (1916).
+    # docs/method.md#hecke: T_n Delta = tau(n) Delta; tau from Ramanujan (1916).
     prec = 12 // n + 1
     image = hecke(delta_series(n * (prec - 1) + 1), n, Fraction(12), 1, 1, prec)
     assert image.prec == prec
@@ -160,7 +162,7 @@ def _e4_cubed_plus_5_delta(prec: int) -> QSeries:
     ],
 )
 def test_multiplicativity_and_recursion(k: int, form: Callable[[int], QSeries]) -> None:
-    # MATH.md §1.7: T_mn = T_m T_n for coprime m, n; T_(p^(r+1)) = T_p T_(p^r) - p^(k-1) T_(p^(r-1)).
+    # docs/method.md#hecke: T_mn = T_m T_n for coprime m, n; T_(p^(r+1)) = T_p T_(p^r) - p^(k-1) T_(p^(r-1)).
     prec = 6
     big = form(36 * (prec - 1) + 1)
 
@@ -178,7 +180,7 @@ def test_multiplicativity_and_recursion(k: int, form: Callable[[int], QSeries]) 
 
 
 def test_level11_eigenvalues() -> None:
-    # MATH.md §9 table; §1.7 [V] checks T_n for n = 2..7 and 11.
+    # The a_p table above; T_n for n = 2..7 and 11 (docs/method.md#hecke).
     prec = 12
     for p, ap in LEVEL11_AP.items():
         f = level11(p * (prec - 1) + 1)
@@ -192,14 +194,14 @@ def test_level11_eigenvalues() -> None:
 
 
 def test_level11_composite_eigenvalues() -> None:
-    # a_4 = a_2^2 - 2 = 2 and a_6 = a_2 a_3 = 2 (MATH.md §9 series and the relations of §1.7).
+    # a_4 = a_2^2 - 2 = 2 and a_6 = a_2 a_3 = 2 (the series above and the relations of docs/method.md#hecke).
     for n, an in [(4, 2), (6, 2), (9, LEVEL11_AP[3] ** 2 - 3), (22, LEVEL11_AP[2] * LEVEL11_AP[11])]:
         assert decide_eigen(level11(eigen_input_precision(n, 2, 11)), n, 2, 1, 11, an).proved, n
 
 
 @pytest.mark.parametrize("p", [3, 5, 7, 11, 13, 17, 19])
 def test_theta_squared(p: int) -> None:
-    # MATH.md §1.7 [V]: T_p theta^2 = (1 + chi_{-4}(p)) theta^2 for odd p (weight 1, level 4, chi_{-4}).
+    # docs/method.md#hecke: T_p theta^2 = (1 + chi_{-4}(p)) theta^2 for odd p (weight 1, level 4, chi_{-4}).
     prec = 10
     f = theta_squared(p * (prec - 1) + 1)
     image = hecke(f, p, 1, -1, 4, prec)
@@ -236,7 +238,7 @@ def test_decide_delta_false_eigenvalue() -> None:
 
 
 def test_decide_level11_false_eigenvalue() -> None:
-    # T_3 f = f is false: a_1(T_3 f) = a_3 = -1 (MATH.md §9) but the right side has a_1 = 1.
+    # T_3 f = f is false: a_1(T_3 f) = a_3 = -1 (the a_p table above) but the right side has a_1 = 1.
     d = decide_eigen(level11(7), 3, 2, 1, 11, 1)
     assert d.refuted and (d.index, d.left, d.right) == (1, Fraction(-1), ONE)
     # U_11 f = -f is false at q^1 too: a_11 = 1.
@@ -333,7 +335,8 @@ def test_eisenstein_level1_normalised() -> None:
 
 
 def test_theta_squared_normalised() -> None:
-    # theta^2 / 4 = 1/4 + q + q^2 + q^4 + 2 q^5 + ... (MATH.md §9); M_1(Gamma0(4), chi_{-4}) needs no prime.
+    # theta^2 / 4 = 1/4 + q + q^2 + q^4 + 2 q^5 + ... (Hardy–Wright Thm 278, r_2(n)/4); M_1(Gamma0(4), chi_{-4}) needs
+    # no prime.
     d = decide_normalised_eigenform(theta_squared(10).scale(Fraction(1, 4)), 1, -1, 4)
     assert d.proved and d.prime_bound == 1
 

@@ -1,10 +1,11 @@
 r"""Level-N claims end to end: certificates, rescaling, the nome, groups, characters, spaces.
 
-Every expected value names its source beside it: MATH.md sections and the references cited
-there (Sturm's bound §3.2; Shimura's half-integral weight §3.6; the valence bound §3.7;
-Gordon–Hughes–Newman §4.2; Ligozat §4.3; Dummit–Kisilevsky–McKay and Martin §4.5; the
-four-square eta identity §4.7; Jacobi's thetas §5.1; theta series of quadratic forms §5.2;
-Jacobi's four-square theorem §5.3; the dimension formulas and table §6.2–6.3), classical
+Every expected value names its source beside it: published references (Sturm's bound, Sturm
+1987; Shimura's half-integral weight, Shimura 1973; the valence formula; Gordon–Hughes and
+Newman; Ligozat; the eta products of Dummit–Kisilevsky–McKay 1985 and Martin 1996; Jacobi's
+identity theta_3^4 = theta_2^4 + theta_4^4 and his four-square theorem; theta series of
+quadratic forms, Iwaniec Thm 10.9; the dimension formulas, Diamond–Shurman Thm 3.5.1), with the
+section of docs/method.md that states each formula, classical
 theorems named at the case (Euler's pentagonal number theorem, Jacobi's cube of eta), or
 values computed here, independently of the engine, with an exact series model written below
 (eta products by repeated multiplication, theta series by summing over n, Eisenstein series
@@ -31,11 +32,11 @@ from verifier.api import ClaimResult
 # ---------------------------------------------------------------------------
 
 GRAMS = {
-    # Hexagonal lattice A_2 (MATH.md §5.2): Q = x^2 + xy + y^2, level 3, chi_{-3}.
+    # Hexagonal lattice A_2 (docs/method.md#theta-quadratic-forms): Q = x^2 + xy + y^2, level 3, chi_{-3}.
     "A": "\\begin{pmatrix}2&1\\\\1&2\\end{pmatrix}",
-    # x^2 + 3y^2: det 12, level 12, chi = (-12/.) = chi_{-3} (MATH.md §5.2).
+    # x^2 + 3y^2: det 12, level 12, chi = (-12/.) = chi_{-3} (docs/method.md#theta-quadratic-forms).
     "B": "\\begin{pmatrix}2&0\\\\0&6\\end{pmatrix}",
-    # D_4 (the Cartan matrix, from memory): level 2, trivial character (MATH.md §5.2).
+    # D_4 (the Cartan matrix, from memory): level 2, trivial character (docs/method.md#theta-quadratic-forms).
     "D": "\\begin{pmatrix}2&-1&0&0\\\\-1&2&-1&-1\\\\0&-1&2&0\\\\0&-1&0&2\\end{pmatrix}",
     # E_8 (Cartan matrix of the E_8 diagram, from memory): even unimodular, theta = E_4.
     "E": (
@@ -47,7 +48,8 @@ GRAMS = {
 _PREAMBLE = "".join(f"%@define {k} = {v}\n" for k, v in GRAMS.items())
 
 
-# Two claims used several times: MATH.md §3.7 (X + Y = 1) and §4.7 (the four-square eta identity).
+# Two claims used several times: docs/method.md#poles-at-cusps (X + Y = 1) and #sums-of-squares (the four-square eta
+# identity).
 X_PLUS_Y = (
     r"\frac{\eta(\tau)^{16}\eta(4\tau)^8}{\eta(2\tau)^{24}}"
     r" + 16\frac{\eta(\tau)^8\eta(4\tau)^{16}}{\eta(2\tau)^{24}} = 1"
@@ -68,19 +70,19 @@ def check(text: str, options: str = "") -> ClaimResult:
 
 
 def m0(n: int) -> int:
-    """[SL_2(Z) : Gamma_0(N)] as the number of points of P^1(Z/N) (MATH.md §2.1)."""
+    """[SL_2(Z) : Gamma_0(N)] as the number of points of P^1(Z/N) (docs/method.md#index)."""
     pairs = sum(1 for c in range(n) for d in range(n) if math.gcd(math.gcd(c, d), n) == 1)
     units = sum(1 for a in range(1, n + 1) if math.gcd(a, n) == 1)
     return pairs // units
 
 
 def sturm(n: int, k: Fraction | int) -> int:
-    """floor(k m_0(N) / 12) (MATH.md §3.2; for half-integral k, §3.6)."""
+    """floor(k m_0(N) / 12) (docs/method.md#sturm-bound; for half-integral k, #half-integral-weight)."""
     return math.floor(Fraction(k) * m0(n) / 12)
 
 
 def ligozat(exps: dict[int, int], n: int) -> dict[int, Fraction]:
-    """Orders of prod eta(delta tau)^r at the cusps c/d of Gamma_0(N), keyed by d (MATH.md §4.3)."""
+    """Orders of prod eta(delta tau)^r at the cusps c/d of Gamma_0(N), keyed by d (docs/method.md#ligozat)."""
     return {
         d: Fraction(n, 24)
         * sum(Fraction(math.gcd(d, de) ** 2 * r, math.gcd(d, n // d) * d * de) for de, r in exps.items())
@@ -130,24 +132,24 @@ def sigma(n: int, r: int) -> int:
     return sum(d**r for d in range(1, n + 1) if n % d == 0)
 
 
-# -2k/B_k for k = 2, 4, 6 (MATH.md §1.2 table).
+# -2k/B_k for k = 2, 4, 6 (docs/method.md#eisenstein table).
 _EIS = {2: -24, 4: 240, 6: -504}
 
 
 def eis(k: int, d: int) -> Ser:
-    """E_k(d tau) = 1 + (-2k/B_k) sum sigma_{k-1}(n) q^{dn} (MATH.md §1.2, §1.7)."""
+    """E_k(d tau) = 1 + (-2k/B_k) sum sigma_{k-1}(n) q^{dn} (docs/method.md#eisenstein, #hecke)."""
     return Ser(
         {Fraction(0): Fraction(1)} | {Fraction(n * d): Fraction(_EIS[k] * sigma(n, k - 1)) for n in range(1, PREC)}
     )
 
 
 def theta_ser(d: int) -> Ser:
-    """theta(d tau) = sum_{n in Z} q^{d n^2} (MATH.md §5.1)."""
+    """theta(d tau) = sum_{n in Z} q^{d n^2} (docs/method.md#theta-nome)."""
     return Ser({Fraction(d * n * n): Fraction(1 if n == 0 else 2) for n in range(0, 9)})
 
 
 def theta_a2() -> Ser:
-    """r(n) for x^2 + xy + y^2 (Theta_A, MATH.md §5.2) by counting the points of a box."""
+    """r(n) for x^2 + xy + y^2 (Theta_A, docs/method.md#theta-quadratic-forms) by counting the points of a box."""
     out: dict[Fraction, Fraction] = {}
     for x in range(-10, 11):
         for y in range(-10, 11):
@@ -158,7 +160,7 @@ def theta_a2() -> Ser:
 
 
 def eta_ser(exps: tuple[tuple[int, int], ...]) -> Ser:
-    """q^{s/24} prod (1 - q^{delta n})^{r_delta} by repeated multiplication (MATH.md §4.1)."""
+    """q^{s/24} prod (1 - q^{delta n})^{r_delta} by repeated multiplication (docs/method.md#eta-offset)."""
     poly = [Fraction(0)] * PREC
     poly[0] = Fraction(1)
     for delta, r in exps:
@@ -284,35 +286,39 @@ def T(c: int | Fraction, *facs: Fac) -> Term:
 
 # True identities on Gamma_0(N) (sources beside each; each is also checked in the model below).
 TRUE_IDENTITIES: list[tuple[str, Side, Side]] = [
-    # MATH.md §4.7 [V]: theta^4 = eta_1^8/eta_2^4 + 16 eta_4^8/eta_2^4.
+    # docs/method.md#sums-of-squares (Jacobi; Whittaker–Watson Ch. XXI): theta^4 = eta_1^8/eta_2^4 + 16 eta_4^8/eta_2^4.
     ("4.7", (T(1, Fac("theta", 1, 4)),), (T(1, eta(e1=8, e2=-4)), T(16, eta(e4=8, e2=-4)))),
-    # Jacobi's four-square theorem (MATH.md §5.3): theta^4 = (4 E_2(4 tau) - E_2(tau)) / 3.
+    # Jacobi's four-square theorem (docs/method.md#sums-of-squares): theta^4 = (4 E_2(4 tau) - E_2(tau)) / 3.
     ("jacobi4", (T(1, Fac("theta", 1, 4)),), (T(Fraction(4, 3), E(2, 4)), T(Fraction(-1, 3), E(2)))),
-    # r_8 (MATH.md §5.3) in M_4(Gamma_0(4)), dim 3 (§6.3): coefficients fitted on a_0..a_2, checked to q^49.
+    # r_8 (docs/method.md#sums-of-squares) in M_4(Gamma_0(4)), dim 3 (#dimension-gamma0): coefficients fitted on
+    # a_0..a_2, checked to q^49.
     (
         "theta8",
         (T(1, Fac("theta", 1, 8)),),
         (T(Fraction(1, 15), E(4)), T(Fraction(-2, 15), E(4, 2)), T(Fraction(16, 15), E(4, 4))),
     ),
-    # M_4(Gamma_0(2)) = <E_4, E_4(2 tau)> (dim 2, §6.3); the eta quotients of §3.2 and its square root.
+    # M_4(Gamma_0(2)) = <E_4, E_4(2 tau)> (dim 2, docs/method.md#dimension-gamma0); the eta quotients of #sturm-bound
+    # and its square root.
     ("eta16", (T(1, eta(e2=16, e1=-8)),), (T(Fraction(1, 240), E(4)), T(Fraction(-1, 240), E(4, 2)))),
     ("eta16b", (T(1, eta(e1=16, e2=-8)),), (T(Fraction(16, 15), E(4, 2)), T(Fraction(-1, 15), E(4)))),
-    # (2 E_2(2 tau) - E_2)^2 in M_4(Gamma_0(2)) (MATH.md §1.3, §6.3).
+    # (2 E_2(2 tau) - E_2)^2 in M_4(Gamma_0(2)) (docs/method.md#e2, #dimension-gamma0).
     (
         "square",
         (T(1, Fac("sum", (T(2, E(2, 2)), T(-1, E(2))), 2)),),
         (T(Fraction(1, 5), E(4)), T(Fraction(4, 5), E(4, 2))),
     ),
-    # MATH.md §3.7 [V]: X + Y = 1 on Gamma_0(4).
+    # docs/method.md#poles-at-cusps (worked example): X + Y = 1 on Gamma_0(4).
     ("X+Y", (T(1, eta(e1=16, e4=8, e2=-24)), T(16, eta(e1=8, e4=16, e2=-24))), (T(1),)),
     # The cubic identity for the hexagonal lattice (weight 3, Gamma_0(3), chi_{-3}); checked to q^49.
     ("cubic", (T(1, Fac("A2", None, 3)),), (T(1, eta(e1=9, e3=-3)), T(27, eta(e3=9, e1=-3)))),
-    # Theta_{A_2}^2 in M_2(Gamma_0(3)), dim 1 (§6.3), spanned by (3 E_2(3 tau) - E_2)/2 (§1.3).
+    # Theta_{A_2}^2 in M_2(Gamma_0(3)), dim 1 (docs/method.md#dimension-gamma0), spanned by (3 E_2(3 tau) - E_2)/2
+    # (#e2).
     ("A2sq", (T(1, Fac("A2", None, 2)),), (T(Fraction(3, 2), E(2, 3)), T(Fraction(-1, 2), E(2)))),
-    # MATH.md §5.1: theta^2 and theta^3 as eta quotients.
+    # docs/method.md#theta-nome: theta^2 and theta^3 as eta quotients.
     ("theta2", (T(1, Fac("theta", 1, 2)),), (T(1, eta(e2=10, e1=-4, e4=-4)),)),
     ("theta3", (T(1, Fac("theta", 1, 3)),), (T(1, eta(e2=15, e1=-6, e4=-6)),)),
-    # theta(tau) = theta(4 tau) + sum over odd n (MATH.md §5.1 with psi(q) = eta(2tau)^2/eta(tau) q^{-1/8}).
+    # theta(tau) = theta(4 tau) + sum over odd n (docs/method.md#theta-nome with psi(q) = eta(2tau)^2/eta(tau)
+    # q^{-1/8}).
     ("odd", (T(1, Fac("theta", 1)),), (T(1, Fac("theta", 4)), T(2, eta(e16=2, e8=-1)))),
     # A product in two orders: trivially true, but its perturbations (theta(3tau) -> theta(6tau)) are not.
     ("x2+3y2", (T(1, Fac("theta", 1), Fac("theta", 3)),), (T(1, Fac("theta", 3), Fac("theta", 1)),)),
@@ -333,51 +339,54 @@ def test_the_true_identities_hold_in_the_model_and_are_proved() -> None:
 
 CERTIFICATES = [
     # (claim, (weight, group, character), (method, bound), dimension or None)
-    # §4.7: all three terms in M_2(Gamma_0(4)); B(4,2) = 1; dim M_2(Gamma_0(4)) = 2 (§6.3).
+    # docs/method.md#sums-of-squares: all three terms in M_2(Gamma_0(4)); B(4,2) = 1; dim M_2(Gamma_0(4)) = 2
+    # (#dimension-gamma0).
     (FOUR_SQUARES, ("2", "Gamma0(4)", "trivial"), ("sturm", sturm(4, 2)), 2),
-    # §3.2 sample value: B(4,1) = 0 for chi_{-4}; theta^2 as an eta quotient (§5.1).
+    # docs/method.md#sturm-bound sample value: B(4,1) = 0 for chi_{-4}; theta^2 as an eta quotient (#theta-nome).
     (
         r"\theta(\tau)^2 = \frac{\eta(2\tau)^{10}}{\eta(\tau)^4\eta(4\tau)^4}",
         ("1", "Gamma0(4)", "chi_{-4}"),
         ("sturm", 0),
         None,
     ),
-    # Theta_{A_2} has chi_{-3} on Gamma_0(3) (§5.2), so its cube does; the eta quotients have the
-    # GHN character ((-1)^3 3^3 / d) = chi_{-3} (§4.2). B(3,3) = 1.
+    # Theta_{A_2} has chi_{-3} on Gamma_0(3) (docs/method.md#theta-quadratic-forms), so its cube does; the eta quotients
+    # have the
+    # GHN character ((-1)^3 3^3 / d) = chi_{-3} (docs/method.md#eta-modularity). B(3,3) = 1.
     (
         r"\Theta_A^3 = \frac{\eta(\tau)^9}{\eta(3\tau)^3} + 27\frac{\eta(3\tau)^9}{\eta(\tau)^3}",
         ("3", "Gamma0(3)", "chi_{-3}"),
         ("sturm", sturm(3, 3)),
         None,
     ),
-    # r_8 in M_4(Gamma_0(4)): B = 2, dim 3 (§6.3).
+    # r_8 in M_4(Gamma_0(4)): B = 2, dim 3 (docs/method.md#dimension-gamma0).
     (
         r"\theta(\tau)^8 = \frac{E_4(\tau) - 2E_4(2\tau) + 16E_4(4\tau)}{15}",
         ("4", "Gamma0(4)", "trivial"),
         ("sturm", sturm(4, 4)),
         3,
     ),
-    # eta_1^8 eta_2^8 spans S_8(Gamma_0(2)) (§4.5); B(2,8) = 2; dim M_8(Gamma_0(2)) = 3 (§6.2).
+    # eta_1^8 eta_2^8 spans S_8(Gamma_0(2)) (docs/method.md#eta-modularity); B(2,8) = 2; dim M_8(Gamma_0(2)) = 3
+    # (#dimension-gamma0).
     (
         r"\eta(\tau)^8\eta(2\tau)^8 = \frac{(E_4(\tau) - E_4(2\tau))(16E_4(2\tau) - E_4(\tau))}{3600}",
         ("8", "Gamma0(2)", "trivial"),
         ("sturm", sturm(2, 8)),
         3,
     ),
-    # Half-integral weight (§3.6): floor((3/2) m_0(4) / 12) = 0.
+    # Half-integral weight (docs/method.md#half-integral-weight): floor((3/2) m_0(4) / 12) = 0.
     (
         r"\theta(\tau)^3 = \frac{\eta(2\tau)^{15}}{\eta(\tau)^6\eta(4\tau)^6}",
         ("3/2", "Gamma0(4)", "trivial"),
         ("sturm", 0),
         None,
     ),
-    # x^2 + 3y^2: level 12, chi_{-3} (§5.2); B(12,1) = 2.
+    # x^2 + 3y^2: level 12, chi_{-3} (docs/method.md#theta-quadratic-forms); B(12,1) = 2.
     (r"\Theta_B = \theta(\tau)\theta(3\tau)", ("1", "Gamma0(12)", "chi_{-3}"), ("sturm", sturm(12, 1)), None),
-    # Theta_{D_4} in M_2(Gamma_0(2)), dim 1 (§6.3): B(2,2) = 0.
+    # Theta_{D_4} in M_2(Gamma_0(2)), dim 1 (docs/method.md#dimension-gamma0): B(2,2) = 0.
     (r"\Theta_D = 2E_2(2\tau) - E_2(\tau)", ("2", "Gamma0(2)", "trivial"), ("sturm", sturm(2, 2)), 1),
-    # Theta_{E_8} = E_4 (§5.2), level one: B(1,4) = 0.
+    # Theta_{E_8} = E_4 (docs/method.md#theta-quadratic-forms), level one: B(1,4) = 0.
     (r"\Theta_E = E_4", ("4", "SL2(Z)", "trivial"), ("sturm", 0), 1),
-    # §3.7 worked example: weight 0, cusp-order lower bounds 0 (d=1) and -1 (d=2): bound 1.
+    # docs/method.md#poles-at-cusps worked example: weight 0, cusp-order lower bounds 0 (d=1) and -1 (d=2): bound 1.
     (X_PLUS_Y, ("0", "Gamma0(4)", "trivial"), ("valence", 1), None),
 ]
 
@@ -396,14 +405,14 @@ def test_certificates() -> None:
 
 
 def test_sturm_bounds_against_the_index() -> None:
-    # MATH.md §2.1 values of m_0(N), N = 1..12 (computed here from P^1(Z/N)).
+    # docs/method.md#index values of m_0(N), N = 1..12 (computed here from P^1(Z/N)).
     assert [m0(n) for n in range(1, 13)] == [1, 3, 4, 6, 6, 12, 8, 12, 12, 18, 12, 24]
-    # §3.2 sample values: B(1,12) = 1, B(4,2) = 1, B(11,2) = 2.
+    # docs/method.md#sturm-bound sample values: B(1,12) = 1, B(4,2) = 1, B(11,2) = 2.
     assert (sturm(1, 12), sturm(4, 2), sturm(11, 2)) == (1, 1, 2)
 
 
 def test_valence_certificate_of_the_weight_zero_identity() -> None:
-    # MATH.md §3.7: Ligozat orders of X and Y at d = 1, 2, 4 are (1, -1, 0) and (0, -1, 1); the
+    # docs/method.md#poles-at-cusps: Ligozat orders of X and Y at d = 1, 2, 4 are (1, -1, 0) and (0, -1, 1); the
     # lower bounds at the cusps other than infinity are min(., ., 0) = 0 and -1; the bound is
     # floor(0 * m/12 - (0 - 1)) = 1.
     x, y = {1: 16, 4: 8, 2: -24}, {1: 8, 4: 16, 2: -24}
@@ -420,7 +429,7 @@ def test_valence_certificate_of_the_weight_zero_identity() -> None:
 
 def test_membership_certificate_lists_the_ligozat_orders() -> None:
     # eta_1^2 eta_2 eta_4 eta_8^2: GHN on Gamma_0(8) with character ((-1)^3 2*4*8^2 / d) = chi_{-8}
-    # (§4.2); every Ligozat order is positive (§4.3), so it is a cusp form.
+    # (docs/method.md#eta-modularity); every Ligozat order is positive (#ligozat), so it is a cusp form.
     exps = {1: 2, 2: 1, 4: 1, 8: 2}
     expected = ligozat(exps, 8)
     assert expected == {1: 1, 2: Fraction(1, 2), 4: Fraction(1, 2), 8: 1}
@@ -430,7 +439,7 @@ def test_membership_certificate_lists_the_ligozat_orders() -> None:
     assert got == expected
 
 
-# MATH.md §6.3 table (Diamond–Shurman Thm 3.5.1), N = 1..12.
+# docs/method.md#dimension-gamma0 table (Diamond–Shurman Thm 3.5.1), N = 1..12.
 DIM_TABLE = {
     ("M", 2): [0, 1, 1, 2, 1, 3, 1, 3, 3, 3, 2, 5],
     ("S", 2): [0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 1, 0],
@@ -447,7 +456,7 @@ def test_dimension_claims_follow_the_table() -> None:
         for n, d in enumerate(row, start=1):
             claims.append(("", f"\\dim {letter}_{k}(\\Gamma_0({n})) = {d}"))
             claims.append(("", f"\\dim {letter}_{k}(\\Gamma_0({n})) = {d + 1}"))
-    # MATH.md §6.3: dim S_2(Gamma_0(23)) = dim S_2(Gamma_0(37)) = 2, dim S_2(Gamma_0(48)) = 3.
+    # docs/method.md#dimension-gamma0: dim S_2(Gamma_0(23)) = dim S_2(Gamma_0(37)) = 2, dim S_2(Gamma_0(48)) = 3.
     for n, d in ((23, 2), (37, 2), (48, 3)):
         claims.append(("", f"\\dim S_2(\\Gamma_0({n})) = {d}"))
         claims.append(("", f"\\dim S_2(\\Gamma_0({n})) = {d + 1}"))
@@ -466,7 +475,8 @@ def test_dimension_claims_follow_the_table() -> None:
 def test_rescaling_eta_expansions() -> None:
     results = check_all(
         [
-            # Euler's pentagonal number theorem: eta = sum chi_12(n) q^{n^2/24} (MATH.md §3.6, §4.1).
+            # Euler's pentagonal number theorem: eta = sum chi_12(n) q^{n^2/24} (docs/method.md#half-integral-weight,
+            # #eta-offset).
             ("", r"\eta(\tau) = q^{1/24} - q^{25/24} - q^{49/24} + q^{121/24} + q^{169/24} + \cdots"),
             ("", r"\eta(\tau) = q^{1/24} + q^{25/24} + \cdots"),
             # Jacobi: eta^3 = sum_{n>=0} (-1)^n (2n+1) q^{(2n+1)^2/8} (from memory; model below).
@@ -487,7 +497,8 @@ def test_rescaling_eta_expansions() -> None:
 
 
 def test_mixed_offsets_refute_at_a_fraction() -> None:
-    # theta_2 = sum q^{(n+1/2)^2} = 2 q^{1/4} + ... but 2 eta(2tau)^2/eta(tau) = 2 q^{1/8} + ... (§5.1).
+    # theta_2 = sum q^{(n+1/2)^2} = 2 q^{1/4} + ... but 2 eta(2tau)^2/eta(tau) = 2 q^{1/8} + ...
+    # (docs/method.md#theta-nome).
     r = check(r"\theta_2 = \frac{2\eta(2\tau)^2}{\eta(\tau)}")
     assert r.verdict == "refuted" and r.outcome.first_difference == {"n": "1/8", "left": "0", "right": "2"}
     # theta(tau) - theta(4 tau) is the sum over odd n, 2 eta(16tau)^2/eta(8tau), not its 1/2-shift.
@@ -505,16 +516,18 @@ PI = "nome={e^{\\pi i\\tau}}"
 def test_nome_changes_the_meaning_of_the_thetas() -> None:
     results = check_all(
         [
-            # In q = e^{2 pi i tau}, theta_3 = theta and Jacobi's four-square theorem holds (§5.3).
+            # In q = e^{2 pi i tau}, theta_3 = theta and Jacobi's four-square theorem holds
+            # (docs/method.md#sums-of-squares).
             ("", r"\theta_3^4 = \frac{4E_2(4\tau) - E_2(\tau)}{3}"),
             # In the nome, theta_3(tau) = theta(tau/2) = 1 + 8 q_N + ..., while the right side is
-            # 1 + 8 q_N^2 + ...: refuted at q_N^1 (§5.1, §10.1).
+            # 1 + 8 q_N^2 + ...: refuted at q_N^1 (docs/method.md#theta-nome).
             (PI, r"\theta_3^4 = \frac{4E_2(4\tau) - E_2(\tau)}{3}"),
-            # Jacobi's theta_3^4 = theta_2^4 + theta_4^4 holds in both readings (formal identity, §5.1).
+            # Jacobi's theta_3^4 = theta_2^4 + theta_4^4 holds in both readings (formal identity,
+            # docs/method.md#theta-nome).
             ("", r"\theta_3^4 = \theta_2^4 + \theta_4^4"),
             (PI, r"\theta_3^4 = \theta_2^4 + \theta_4^4"),
             ("nome={e^{2\\pi i\\tau}}", r"\theta_3^4 = \theta_2^4 + \theta_4^4"),
-            # theta_2 theta_3 theta_4 = 2 eta^3 in Jacobi's nome (§5.1); in q it is 2 eta(2tau)^3.
+            # theta_2 theta_3 theta_4 = 2 eta^3 in Jacobi's nome (docs/method.md#theta-nome); in q it is 2 eta(2tau)^3.
             (PI, r"\theta_2\theta_3\theta_4 = 2\eta(\tau)^3"),
             ("", r"\theta_2\theta_3\theta_4 = 2\eta(\tau)^3"),
             ("", r"\theta_2\theta_3\theta_4 = 2\eta(2\tau)^3"),
@@ -549,19 +562,19 @@ def test_unreadable_nome_is_an_error() -> None:
 
 
 def test_group_mismatch_names_the_atom_that_needs_the_larger_level() -> None:
-    # E_4(2 tau) has level 2 (§1.7, V_2); E_4 alone is level one.
+    # E_4(2 tau) has level 2 (docs/method.md#hecke, V_2); E_4 alone is level one.
     r = check(r"E_4(\tau)E_4(2\tau) = E_4(2\tau)E_4(\tau)", "group=SL2(Z)")
     assert r.verdict == "error" and r.outcome.code == "group-mismatch"
     assert "E_4(2\\tau)" in r.outcome.message and "2" in r.outcome.message
     assert "E_4(\\tau) needs" not in r.outcome.message
-    # eta(24 tau) has least level 576 (§4.4); 288 is too small.
+    # eta(24 tau) has least level 576 (docs/method.md#eta-modularity); 288 is too small.
     r = check(r"\eta(24\tau) = q - q^{25} - q^{49} + \cdots", "group={\\Gamma_0(288)}")
     assert r.verdict == "error" and r.outcome.code == "group-mismatch"
     assert "\\eta(24\\tau)" in r.outcome.message and "576" in r.outcome.message
-    # E_2(4 tau) and theta need level 4 (§1.3, §4.4); Gamma_0(2) is too small.
+    # E_2(4 tau) and theta need level 4 (docs/method.md#e2, #eta-modularity); Gamma_0(2) is too small.
     r = check(r"\theta(\tau)^4 = \frac{4E_2(4\tau) - E_2(\tau)}{3}", "group={\\Gamma_0(2)}")
     assert r.verdict == "error" and r.outcome.code == "group-mismatch" and "4" in r.outcome.message
-    # A level the claim needs, or a multiple of it, is accepted (§3.8: the lcm of the levels).
+    # A level the claim needs, or a multiple of it, is accepted (docs/method.md#claim-identity: the lcm of the levels).
     for group in ("{\\Gamma_0(4)}", "{\\Gamma_0(12)}", "{\\Gamma_1(4)}"):
         r = check(FOUR_SQUARES, f"group={group}")
         assert r.verdict == "proved", group
@@ -571,14 +584,14 @@ def test_character_option() -> None:
     eta_theta2 = r"\theta(\tau)^2 = \frac{\eta(2\tau)^{10}}{\eta(\tau)^4\eta(4\tau)^4}"
     results = check_all(
         [
-            # theta^2 in M_1(Gamma_0(4), chi_{-4}) (§3.6: squaring introduces chi_{-4}).
+            # theta^2 in M_1(Gamma_0(4), chi_{-4}) (docs/method.md#half-integral-weight: squaring introduces chi_{-4}).
             ("character={\\chi_{-4}}", eta_theta2),
             ("character={\\chi_{-3}}", eta_theta2),
             ("character=trivial", eta_theta2),
-            # x^2 + 3y^2: chi_{-3} (§5.2).
+            # x^2 + 3y^2: chi_{-3} (docs/method.md#theta-quadratic-forms).
             ("character={\\chi_{-3}}", r"\Theta_B = \theta(\tau)\theta(3\tau)"),
             ("character={\\chi_{-4}}", r"\Theta_B = \theta(\tau)\theta(3\tau)"),
-            # eta_1^3 eta_7^3: GHN character ((-1)^3 7^3 / d) = chi_{-7} (§4.2).
+            # eta_1^3 eta_7^3: GHN character ((-1)^3 7^3 / d) = chi_{-7} (docs/method.md#eta-modularity).
             ("character={\\chi_{-7}}", r"\eta(\tau)^3\eta(7\tau)^3 = q - 3q^2 + 5q^4 + \cdots"),
         ]
     )
@@ -592,33 +605,97 @@ def test_character_option() -> None:
 
 MEMBERSHIP = [
     # (claim, verdict, source)
-    (r"\frac{\eta(\tau)^8}{\eta(2\tau)^4} \in M_2(\Gamma_0(4))", "proved", "§4.4 least level 4; §4.7 orders (1,0,0)"),
+    (
+        r"\frac{\eta(\tau)^8}{\eta(2\tau)^4} \in M_2(\Gamma_0(4))",
+        "proved",
+        "docs/method.md#eta-modularity least level 4; #sums-of-squares orders (1,0,0)",
+    ),
     (r"\frac{\eta(\tau)^8}{\eta(2\tau)^4} \in S_2(\Gamma_0(4))", "refuted", "constant term 1"),
-    (r"\eta(\tau)^4\eta(2\tau)^4 \in S_4(\Gamma_0(8))", "refuted", "§4.1: s = 12, exponents in 1/2 + Z"),
-    (r"\eta(2\tau)^4\eta(4\tau)^4 \in S_4(\Gamma_0(8))", "proved", "§4.5 (DKM)"),
-    (r"\eta(\tau)^2 \in S_1(\Gamma_0(12), \chi_{-4})", "refuted", "§4.1: s = 2, not invariant under tau -> tau + 1"),
-    (r"\eta(\tau) \in S_{1/2}(\Gamma_0(576), \chi_{12})", "refuted", "§4.1: exponents in 1/24 + Z"),
-    (r"\frac{\eta(4\tau)^{16}}{\eta(\tau)^8\eta(2\tau)^4} \in M_2(\Gamma_0(4))", "refuted", "§4.3: order -1 at 0"),
-    (r"E_2(2\tau) \in M_2(\Gamma_0(2))", "refuted", "§1.3: E_2 is only quasimodular"),
-    (r"E_2(\tau) - 2E_2(2\tau) \in M_2(\Gamma_0(2))", "proved", "§1.3"),
-    (r"E_4(\tau) - E_4(2\tau) \in S_4(\Gamma_0(2))", "refuted", "§6.3: S_4(Gamma_0(2)) = 0"),
-    (r"\eta(\tau)^3\eta(7\tau)^3 \in S_3(\Gamma_0(7), \chi_{-7})", "proved", "§4.2 GHN character, §4.3 orders (1,1)"),
-    (r"\eta(\tau)^3\eta(7\tau)^3 \in S_3(\Gamma_0(7))", "refuted", "§2.4 parity: odd weight, trivial character"),
-    (r"\theta(\tau)^2 \in M_1(\Gamma_0(4))", "refuted", "§3.6: chi_{-4}"),
-    (r"\theta(\tau)^2 \in M_1(\Gamma_0(4), \chi_{-4})", "proved", "§3.6, §5.3"),
-    (r"\Theta_A \in M_1(\Gamma_0(3), \chi_{-3})", "proved", "§5.2"),
-    (r"\Theta_A \in M_1(\Gamma_0(12), \chi_{-4})", "refuted", "§5.2: chi_{-3}, and chi_{-3}(5) != chi_{-4}(5)"),
-    (r"\eta(2\tau)^{12} \in S_6(\Gamma_0(2))", "refuted", "§6.3: S_6(Gamma_0(2)) = 0"),
-    (r"\eta(\tau)^2\eta(11\tau)^2 \in S_2(\Gamma_0(1))", "refuted", "§6.1: S_2(SL_2(Z)) = 0"),
-    # Half-integral weight (§3.6).
-    (r"\theta(\tau) \in M_{1/2}(\Gamma_0(4))", "proved", "§3.6 (Shimura)"),
-    (r"\theta(\tau)^3 \in M_{3/2}(\Gamma_0(4))", "proved", "§3.6"),
-    (r"\theta(\tau)^3 \in M_{3/2}(\Gamma_0(4), \chi_{-4})", "refuted", "§3.6 parity: chi must be even"),
-    (r"\eta(24\tau) \in S_{1/2}(\Gamma_0(576), \chi_{12})", "proved", "§3.6 example [V]"),
-    (r"\eta(24\tau) \in M_{1/2}(\Gamma_0(576), \chi_{12})", "proved", "§3.6; S is inside M"),
-    (r"\eta(24\tau) \in S_{1/2}(\Gamma_0(576), \chi_{-3})", "refuted", "§3.6 parity: chi_{-3} is odd"),
-    (r"\eta(24\tau) \in S_{1/2}(\Gamma_0(576))", "refuted", "§3.6: the character is chi_{12}"),
-    (r"\eta(24\tau)^2 \in S_1(\Gamma_0(288), \chi_{-4})", "proved", "§4.2 at N = 288: 288/24*2 = 24; §4.3 orders > 0"),
+    (
+        r"\eta(\tau)^4\eta(2\tau)^4 \in S_4(\Gamma_0(8))",
+        "refuted",
+        "docs/method.md#eta-offset: s = 12, exponents in 1/2 + Z",
+    ),
+    (r"\eta(2\tau)^4\eta(4\tau)^4 \in S_4(\Gamma_0(8))", "proved", "docs/method.md#eta-modularity (DKM)"),
+    (
+        r"\eta(\tau)^2 \in S_1(\Gamma_0(12), \chi_{-4})",
+        "refuted",
+        "docs/method.md#eta-offset: s = 2, not invariant under tau -> tau + 1",
+    ),
+    (
+        r"\eta(\tau) \in S_{1/2}(\Gamma_0(576), \chi_{12})",
+        "refuted",
+        "docs/method.md#eta-offset: exponents in 1/24 + Z",
+    ),
+    (
+        r"\frac{\eta(4\tau)^{16}}{\eta(\tau)^8\eta(2\tau)^4} \in M_2(\Gamma_0(4))",
+        "refuted",
+        "docs/method.md#ligozat: order -1 at 0",
+    ),
+    (r"E_2(2\tau) \in M_2(\Gamma_0(2))", "refuted", "docs/method.md#e2: E_2 is only quasimodular"),
+    (r"E_2(\tau) - 2E_2(2\tau) \in M_2(\Gamma_0(2))", "proved", "docs/method.md#e2"),
+    (r"E_4(\tau) - E_4(2\tau) \in S_4(\Gamma_0(2))", "refuted", "docs/method.md#dimension-gamma0: S_4(Gamma_0(2)) = 0"),
+    (
+        r"\eta(\tau)^3\eta(7\tau)^3 \in S_3(\Gamma_0(7), \chi_{-7})",
+        "proved",
+        "docs/method.md#eta-modularity GHN character, #ligozat orders (1,1)",
+    ),
+    (
+        r"\eta(\tau)^3\eta(7\tau)^3 \in S_3(\Gamma_0(7))",
+        "refuted",
+        "docs/method.md#characters parity: odd weight, trivial character",
+    ),
+    (r"\theta(\tau)^2 \in M_1(\Gamma_0(4))", "refuted", "docs/method.md#half-integral-weight: chi_{-4}"),
+    (
+        r"\theta(\tau)^2 \in M_1(\Gamma_0(4), \chi_{-4})",
+        "proved",
+        "docs/method.md#half-integral-weight, #sums-of-squares",
+    ),
+    (r"\Theta_A \in M_1(\Gamma_0(3), \chi_{-3})", "proved", "docs/method.md#theta-quadratic-forms"),
+    (
+        r"\Theta_A \in M_1(\Gamma_0(12), \chi_{-4})",
+        "refuted",
+        "docs/method.md#theta-quadratic-forms: chi_{-3}, and chi_{-3}(5) != chi_{-4}(5)",
+    ),
+    (r"\eta(2\tau)^{12} \in S_6(\Gamma_0(2))", "refuted", "docs/method.md#dimension-gamma0: S_6(Gamma_0(2)) = 0"),
+    (
+        r"\eta(\tau)^2\eta(11\tau)^2 \in S_2(\Gamma_0(1))",
+        "refuted",
+        "docs/method.md#dimension-level-one: S_2(SL_2(Z)) = 0",
+    ),
+    # Half-integral weight (docs/method.md#half-integral-weight).
+    (r"\theta(\tau) \in M_{1/2}(\Gamma_0(4))", "proved", "docs/method.md#half-integral-weight (Shimura)"),
+    (r"\theta(\tau)^3 \in M_{3/2}(\Gamma_0(4))", "proved", "docs/method.md#half-integral-weight"),
+    (
+        r"\theta(\tau)^3 \in M_{3/2}(\Gamma_0(4), \chi_{-4})",
+        "refuted",
+        "docs/method.md#half-integral-weight parity: chi must be even",
+    ),
+    (
+        r"\eta(24\tau) \in S_{1/2}(\Gamma_0(576), \chi_{12})",
+        "proved",
+        "Shimura 1973; docs/method.md#half-integral-weight",
+    ),
+    (
+        r"\eta(24\tau) \in M_{1/2}(\Gamma_0(576), \chi_{12})",
+        "proved",
+        "docs/method.md#half-integral-weight; S is inside M",
+    ),
+    (
+        r"\eta(24\tau) \in S_{1/2}(\Gamma_0(576), \chi_{-3})",
+        "refuted",
+        "docs/method.md#half-integral-weight parity: chi_{-3} is odd",
+    ),
+    (
+        r"\eta(24\tau) \in S_{1/2}(\Gamma_0(576))",
+        "refuted",
+        "docs/method.md#half-integral-weight: the character is chi_{12}",
+    ),
+    (
+        r"\eta(24\tau)^2 \in S_1(\Gamma_0(288), \chi_{-4})",
+        "proved",
+        "docs/method.md#eta-modularity at N = 288: 288/24*2 = 24; #ligozat orders > 0",
+    ),
 ]
 
 
@@ -629,7 +706,7 @@ def test_membership() -> None:
 
 
 def test_ligozat_facts_used_above() -> None:
-    # Independent checks of the orders quoted in MEMBERSHIP (§4.3).
+    # Independent checks of the orders quoted in MEMBERSHIP (docs/method.md#ligozat).
     assert ligozat({4: 16, 1: -8, 2: -4}, 4) == {1: -1, 2: 0, 4: 2}
     assert ligozat({1: 8, 2: -4}, 4) == {1: 1, 2: 0, 4: 0}
     assert ligozat({1: 3, 7: 3}, 7) == {1: 1, 7: 1}
@@ -643,7 +720,7 @@ def test_half_integral_identities() -> None:
             # r_3 (brute force in the model): 7 is not a sum of three squares.
             ("", r"\theta^3 = 1 + 6q + 12q^2 + 8q^3 + 6q^4 + 24q^5 + 24q^6 + 12q^8 + 30q^9 + \cdots"),
             ("", r"\theta^3 = 1 + 6q + 12q^2 + 8q^3 + 6q^4 + 24q^5 + 24q^6 + 6q^7 + \cdots"),
-            # theta = theta(4 tau) + 2 eta(16tau)^2/eta(8tau) (§5.1 with n even / odd).
+            # theta = theta(4 tau) + 2 eta(16tau)^2/eta(8tau) (docs/method.md#theta-nome with n even / odd).
             ("", r"\theta(\tau) = \theta(4\tau) + \frac{2\eta(16\tau)^2}{\eta(8\tau)}"),
             # eta(8 tau)^3 = q - 3q^9 + ...: the right side has q-coefficient 8, the left 6.
             ("", r"\theta(\tau)^3 = \frac{\eta(2\tau)^{15}}{\eta(\tau)^6\eta(4\tau)^6} + 2\eta(8\tau)^3"),
@@ -661,7 +738,7 @@ def test_half_integral_identities() -> None:
 
 def test_false_eta_quotient_with_fractional_offset_is_refuted() -> None:
     # Wrong exponents: each right side is an eta quotient with sum delta r_delta not divisible by
-    # 24 (offsets 1/8, 1/8, 11/24 by MATH.md §4.1), the left side has constant term 1, so the sides
+    # 24 (offsets 1/8, 1/8, 11/24 by docs/method.md#eta-offset), the left side has constant term 1, so the sides
     # differ at q^0 (left 1, right 0; also checked in the model). Nothing divides by zero.
     claims = [
         r"\theta(\tau)^2 = \frac{\eta(2\tau)^{10}}{\eta(\tau)^{5}\eta(4\tau)^{3}}",

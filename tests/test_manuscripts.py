@@ -3,7 +3,7 @@
 Each ``%@claim`` line in ``tests/data/manuscripts/*.tex`` ends with a remark
 ``% expect: VERDICT [n]; VERDICT [n]...`` (one entry per claim the tag produces, n the
 first differing exponent of a refutation).  The identities are the classical level-one
-relations of MATH.md §1.2, §1.4 and §9 (Serre, *A Course in Arithmetic*, Ch. VII;
+relations of docs/method.md#eisenstein, #delta-eta-j (Serre, *A Course in Arithmetic*, Ch. VII;
 Ramanujan's tau table, 1916) with deliberate errors; 3617 E_16 = 1617 E_4^4 + 2000 E_4 E_6^2
 is from memory (it follows from dim M_16 = 2 and the first two coefficients).
 """

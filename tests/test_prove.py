@@ -1,7 +1,7 @@
 """End-to-end verdicts through :func:`verifier.check_text`, against sources outside the engine.
 
-Every expected value is either quoted from a published table (named beside the case, by
-MATH.md section and the source cited there) or computed here, independently of the
+Every expected value is either quoted from a published table (named beside the case, with
+the section of docs/method.md that states the formula) or computed here, independently of the
 engine, from ``sympy.divisor_sigma``, ``sympy.bernoulli`` and the product
 ``q prod (1 - q^n)^24`` with plain ``Fraction`` arithmetic.
 
@@ -101,7 +101,7 @@ def poly(coeffs: dict[int, int | Fraction]) -> L:
 
 @cache
 def E(k: int, d: int = 1) -> L:
-    """E_k(d tau) = 1 - (2k/B_k) sum sigma_{k-1}(n) q^{dn}  (MATH.md §1.2; Serre VII §4.2)."""
+    """E_k(d tau) = 1 - (2k/B_k) sum sigma_{k-1}(n) q^{dn}  (docs/method.md#eisenstein; Serre VII §4.2)."""
     const = Fraction(-2 * k) / Fraction(str(sympy.bernoulli(k)))
     coeffs = {0: Fraction(1)}
     for n in range(1, PREC):
@@ -112,7 +112,7 @@ def E(k: int, d: int = 1) -> L:
 
 @cache
 def Delta() -> L:
-    """Delta = q prod (1 - q^n)^24  (MATH.md §1.4; Apostol Ch. 3)."""
+    """Delta = q prod (1 - q^n)^24  (docs/method.md#delta-eta-j; Apostol Ch. 3)."""
     out = L({1: Fraction(1)})
     for n in range(1, PREC):
         out = out * (L({0: Fraction(1), n: Fraction(-1)}) ** 24)
@@ -121,12 +121,12 @@ def Delta() -> L:
 
 @cache
 def J() -> L:
-    """j = E_4^3 / Delta  (MATH.md §1.4)."""
+    """j = E_4^3 / Delta  (docs/method.md#delta-eta-j)."""
     return E(4) ** 3 * Delta().inverse()
 
 
 def m0(n: int) -> int:
-    """[SL_2(Z) : Gamma_0(N)] = N prod_{p|N} (1 + 1/p)  (MATH.md §2.1)."""
+    """[SL_2(Z) : Gamma_0(N)] = N prod_{p|N} (1 + 1/p)  (docs/method.md#index)."""
     m = Fraction(n)
     for p in sympy.primefactors(n):
         m *= Fraction(p + 1, p)
@@ -134,17 +134,17 @@ def m0(n: int) -> int:
 
 
 def sturm(k: int, level: int) -> int:
-    """B(N, k) = floor(k m_0(N) / 12)  (MATH.md §3.2; Sturm, LNM 1240)."""
+    """B(N, k) = floor(k m_0(N) / 12)  (docs/method.md#sturm-bound; Sturm, LNM 1240)."""
     return k * m0(level) // 12
 
 
 def test_independent_model_against_published_tables() -> None:
-    # MATH.md §9: tau(1..12) (Ramanujan 1916 table; Serre VII §4.5).
+    # tau(1..12) (Ramanujan 1916 table; Serre VII §4.5).
     tau = [1, -24, 252, -1472, 4830, -6048, -16744, 84480, -113643, -115920, 534612, -370944]
     assert [Delta()[n] for n in range(1, 13)] == tau
-    # MATH.md §9: j coefficients c(-1..4) (Apostol Ch. 1; Serre VII §3.3).
+    # j coefficients c(-1..4) (Apostol Ch. 1; Serre VII §3.3).
     assert [J()[n] for n in range(-1, 5)] == [1, 744, 196884, 21493760, 864299970, 20245856256]
-    # MATH.md §9: E_6 = 1 - 504q - 16632q^2 - 122976q^3 - 532728q^4 - 1575504q^5.
+    # Serre, A Course in Arithmetic, Ch. VII §4: E_6 = 1 - 504q - 16632q^2 - 122976q^3 - 532728q^4 - 1575504q^5.
     assert [E(6)[n] for n in range(6)] == [1, -504, -16632, -122976, -532728, -1575504]
 
 
@@ -170,12 +170,12 @@ SL2 = "SL2(Z)"
 
 CASES: list[tuple[str, Case]] = [
     # --- true identities of level one, proved by the Sturm bound -------------------------
-    ("e8", Case("E_8 = E_4^2", "proved", sturm=("8", SL2, 8, 1), source="MATH.md §1.2 [V]; Serre VII §4")),
-    ("e10", Case("E_{10} = E_4 E_6", "proved", sturm=("10", SL2, 10, 1), source="MATH.md §1.2 [V]")),
-    ("e14", Case("E_{14} = E_4^2 E_6", "proved", sturm=("14", SL2, 14, 1), source="MATH.md §1.2 [V]")),
+    ("e8", Case("E_8 = E_4^2", "proved", sturm=("8", SL2, 8, 1), source="docs/method.md#eisenstein; Serre VII §4")),
+    ("e10", Case("E_{10} = E_4 E_6", "proved", sturm=("10", SL2, 10, 1), source="docs/method.md#eisenstein")),
+    ("e14", Case("E_{14} = E_4^2 E_6", "proved", sturm=("14", SL2, 14, 1), source="docs/method.md#eisenstein")),
     (
         "e12-691",
-        Case("691E_{12} = 441E_4^3 + 250E_6^2", "proved", sturm=("12", SL2, 12, 1), source="MATH.md §1.2 [V]"),
+        Case("691E_{12} = 441E_4^3 + 250E_6^2", "proved", sturm=("12", SL2, 12, 1), source="docs/method.md#eisenstein"),
     ),
     (
         "e12-frac",
@@ -183,7 +183,7 @@ CASES: list[tuple[str, Case]] = [
             "E_{12} = \\frac{441}{691}E_4^3 + \\dfrac{250}{691}E_6^2",
             "proved",
             sturm=("12", SL2, 12, 1),
-            source="MATH.md §1.2 (same identity, divided by 691)",
+            source="docs/method.md#eisenstein (same identity, divided by 691)",
         ),
     ),
     (
@@ -192,12 +192,17 @@ CASES: list[tuple[str, Case]] = [
             "E_{12} = 691^{-1}\\left(441 E_4^3 + 250 E_6^2\\right)",
             "proved",
             sturm=("12", SL2, 12, 1),
-            source="MATH.md §1.2",
+            source="docs/method.md#eisenstein",
         ),
     ),
     (
         "delta",
-        Case("1728\\Delta = E_4^3 - E_6^2", "proved", sturm=("12", SL2, 12, 1), source="MATH.md §1.4; Serre VII §4"),
+        Case(
+            "1728\\Delta = E_4^3 - E_6^2",
+            "proved",
+            sturm=("12", SL2, 12, 1),
+            source="docs/method.md#delta-eta-j; Serre VII §4",
+        ),
     ),
     (
         "delta-cdot",
@@ -205,34 +210,42 @@ CASES: list[tuple[str, Case]] = [
             "\\Delta = \\tfrac{1}{1728} \\cdot (E_4^3 - E_6^2)",
             "proved",
             sturm=("12", SL2, 12, 1),
-            source="MATH.md §1.4",
+            source="docs/method.md#delta-eta-j",
         ),
     ),
     (
         "e4e8",
-        Case("E_4 \\times E_8 = E_6^2 + 1728\\Delta", "proved", sturm=("12", SL2, 12, 1), source="MATH.md §1.2, §1.4"),
+        Case(
+            "E_4 \\times E_8 = E_6^2 + 1728\\Delta",
+            "proved",
+            sturm=("12", SL2, 12, 1),
+            source="docs/method.md#eisenstein, #delta-eta-j",
+        ),
     ),
     # j = E_4^3/Delta: denominators of weight 12 on each side are cleared, so the
-    # difference lives in weight 0 + 24 (MATH.md §3.8 step 1, §3.2).
-    ("j-def", Case("j = \\frac{E_4^3}{\\Delta}", "proved", sturm=("0", SL2, 24, 1), source="MATH.md §1.4")),
+    # difference lives in weight 0 + 24 (docs/method.md#claim-identity step 1, #sturm-bound).
+    (
+        "j-def",
+        Case("j = \\frac{E_4^3}{\\Delta}", "proved", sturm=("0", SL2, 24, 1), source="docs/method.md#delta-eta-j"),
+    ),
     (
         "j-1728",
         Case(
             "j - 1728 = \\frac{E_6^2}{\\Delta}",
             "proved",
             sturm=("0", SL2, 24, 1),
-            source="MATH.md §1.4: divide E_4^3 - E_6^2 = 1728 Delta by Delta",
+            source="docs/method.md#delta-eta-j: divide E_4^3 - E_6^2 = 1728 Delta by Delta",
         ),
     ),
     # --- E_2 and level 2/4 -------------------------------------------------------------
-    # E_2(tau) - N E_2(N tau) is in M_2(Gamma_0(N)) (MATH.md §1.3 [V]; Zagier 1-2-3 §2.3).
+    # E_2(tau) - N E_2(N tau) is in M_2(Gamma_0(N)) (docs/method.md#e2; Zagier 1-2-3 §2.3).
     (
         "level2-square",
         Case(
             "\\left(2E_2(2\\tau) - E_2(\\tau)\\right)^2 = \\tfrac{1}{5}\\left(E_4(\\tau) + 4E_4(2\\tau)\\right)",
             "proved",
             sturm=("4", "Gamma0(2)", 4, 2),
-            source="MATH.md §1.3, §3.2; dim M_4(Gamma_0(2)) = 2 (§6), checked on a_0, a_1 here",
+            source="docs/method.md#e2, #sturm-bound; dim M_4(Gamma_0(2)) = 2 (#dimensions), checked on a_0, a_1 here",
         ),
     ),
     (
@@ -241,7 +254,7 @@ CASES: list[tuple[str, Case]] = [
             "E_2(\\tau) - 4E_2(4\\tau) = E_2(\\tau) - 2E_2(2\\tau) + 2(E_2(2\\tau) - 2E_2(4\\tau))",
             "proved",
             sturm=("2", "Gamma0(4)", 2, 4),
-            source="MATH.md §1.3 (each bracket in M_2(Gamma_0(N)))",
+            source="docs/method.md#e2 (each bracket in M_2(Gamma_0(N)))",
         ),
     ),
     (
@@ -250,7 +263,7 @@ CASES: list[tuple[str, Case]] = [
             "E_2 E_4^2 = E_2 E_8",
             "proved",
             sturm=("10", SL2, 8, 1),
-            source="MATH.md §7.3: the E_2^1 component lies in M_8",
+            source="docs/method.md#quasimodular: the E_2^1 component lies in M_8",
         ),
     ),
     # --- false variants: refuted at the first differing coefficient -------------------------
@@ -261,7 +274,7 @@ CASES: list[tuple[str, Case]] = [
             "refuted",
             0,
             lambda: (691 * E(12), 441 * E(4) ** 3 + 251 * E(6) ** 2),
-            source="MATH.md §1.2",
+            source="docs/method.md#eisenstein",
         ),
     ),
     (
@@ -271,7 +284,7 @@ CASES: list[tuple[str, Case]] = [
             "refuted",
             0,
             lambda: (E(12), Fraction(441, 619) * E(4) ** 3 + Fraction(250, 691) * E(6) ** 2),
-            source="MATH.md §1.2",
+            source="docs/method.md#eisenstein",
         ),
     ),
     (
@@ -281,7 +294,7 @@ CASES: list[tuple[str, Case]] = [
             "refuted",
             0,
             lambda: (1728 * Delta(), E(4) ** 3 + E(6) ** 2),
-            source="MATH.md §1.4",
+            source="docs/method.md#delta-eta-j",
         ),
     ),
     (
@@ -295,12 +308,18 @@ CASES: list[tuple[str, Case]] = [
             "refuted",
             1,
             lambda: (E(4) * E(8), E(12)),
-            source="MATH.md §1.2: E_12 differs from E_4^3 by a multiple of Delta",
+            source="docs/method.md#eisenstein: E_12 differs from E_4^3 by a multiple of Delta",
         ),
     ),
     (
         "quasimodular-wrong",
-        Case("E_2 E_8 = E_4 E_6", "refuted", 1, lambda: (E(2) * E(8), E(4) * E(6)), source="MATH.md §1.3, §7.3"),
+        Case(
+            "E_2 E_8 = E_4 E_6",
+            "refuted",
+            1,
+            lambda: (E(2) * E(8), E(4) * E(6)),
+            source="docs/method.md#e2, #quasimodular",
+        ),
     ),
     (
         "level2-wrong",
@@ -309,7 +328,7 @@ CASES: list[tuple[str, Case]] = [
             "refuted",
             0,
             lambda: ((2 * E(2, 2) - E(2)) ** 2, Fraction(1, 5) * (E(4) + 3 * E(4, 2))),
-            source="MATH.md §1.3",
+            source="docs/method.md#e2",
         ),
     ),
     (
@@ -323,16 +342,29 @@ CASES: list[tuple[str, Case]] = [
     ),
     (
         "j-const",
-        Case("j = 1728", "refuted", -1, lambda: (J(), L({0: Fraction(1728)})), source="MATH.md §1.4, §3.7"),
+        Case(
+            "j = 1728",
+            "refuted",
+            -1,
+            lambda: (J(), L({0: Fraction(1728)})),
+            source="docs/method.md#delta-eta-j, #poles-at-cusps",
+        ),
     ),
     # --- sides of different weights: refuted (a form of weight k is never one of weight k') ---
-    ("weights-4-6", Case("E_4 = E_6", "refuted", 1, lambda: (E(4), E(6)), source="MATH.md §7.3 (graded ring)")),
+    (
+        "weights-4-6",
+        Case("E_4 = E_6", "refuted", 1, lambda: (E(4), E(6)), source="docs/method.md#quasimodular (graded ring)"),
+    ),
     ("weights-12-6", Case("E_{12} = E_6", "refuted", 1, lambda: (E(12), E(6)))),
     ("weights-4-0", Case("E_4 = 1", "refuted", 1, lambda: (E(4), L({0: Fraction(1)})))),
     (
         "weights-10-12",
         Case(
-            "E_{10} = E_4 E_8", "refuted", 1, lambda: (E(10), E(4) * E(8)), source="MATH.md §1.2 (weight index swapped)"
+            "E_{10} = E_4 E_8",
+            "refuted",
+            1,
+            lambda: (E(10), E(4) * E(8)),
+            source="docs/method.md#eisenstein (weight index swapped)",
         ),
     ),
     (
@@ -346,9 +378,9 @@ CASES: list[tuple[str, Case]] = [
     ),
     (
         "neq-quasimodular",
-        Case("E_2^2 \\neq E_4", "proved", 1, lambda: (E(2) ** 2, E(4)), kind="inequality", source="MATH.md §1.3"),
+        Case("E_2^2 \\neq E_4", "proved", 1, lambda: (E(2) ** 2, E(4)), kind="inequality", source="docs/method.md#e2"),
     ),
-    ("neq-false", Case("E_4^2 \\neq E_8", "refuted", kind="inequality", source="MATH.md §1.2")),
+    ("neq-false", Case("E_4^2 \\neq E_8", "refuted", kind="inequality", source="docs/method.md#eisenstein")),
     ("neq-false-12", Case("E_4 E_8 \\neq E_6^2 + 1728\\Delta", "refuted", kind="inequality")),
     # --- printed expansions (a claim about exactly the printed coefficients) ----------------
     (
@@ -357,12 +389,12 @@ CASES: list[tuple[str, Case]] = [
             "E_4 = 1 + 240q + 2160q^2 + 6720q^3 + 17520q^4 + 30240q^5 + \\cdots",
             "proved",
             kind="prefix",
-            source="MATH.md §9 (Serre VII §4; Zagier 1-2-3 §2)",
+            source="Serre VII §4; Zagier 1-2-3 §2",
         ),
     ),
     (
         "prefix-e10",
-        Case("E_{10} = 1 - 264q - 135432q^2 - 5196576q^3 + O(q^{4})", "proved", kind="prefix", source="MATH.md §9"),
+        Case("E_{10} = 1 - 264q - 135432q^2 - 5196576q^3 + O(q^{4})", "proved", kind="prefix", source="Serre VII §4"),
     ),
     (
         "prefix-e12",
@@ -370,7 +402,7 @@ CASES: list[tuple[str, Case]] = [
             "691E_{12} = 691 + 65520q + 134250480q^2 + \\cdots",
             "proved",
             kind="prefix",
-            source="MATH.md §9: E_12 = 1 + 65520/691 (q + 2049q^2 + ...)",
+            source="Serre VII §4: E_12 = 1 + 65520/691 (q + 2049q^2 + ...)",
         ),
     ),
     (
@@ -380,7 +412,7 @@ CASES: list[tuple[str, Case]] = [
             " - 113643q^9 - 115920q^{10} + 534612q^{11} - 370944q^{12} + O(q^{13})",
             "proved",
             kind="prefix",
-            source="MATH.md §9: tau(1..12), Ramanujan 1916 table",
+            source="tau(1..12), Ramanujan 1916 table",
         ),
     ),
     (
@@ -389,12 +421,17 @@ CASES: list[tuple[str, Case]] = [
             "j = q^{-1} + 744 + 196884q + 21493760q^2 + 864299970q^3 + 20245856256q^4 + O(q^{5})",
             "proved",
             kind="prefix",
-            source="MATH.md §9 (Apostol Ch. 1; Serre VII §3.3)",
+            source="Apostol Ch. 1; Serre VII §3.3",
         ),
     ),
     (
         "prefix-j-744",
-        Case("j - 744 = q^{-1} + 196884q + 21493760q^2 + \\cdots", "proved", kind="prefix", source="MATH.md §1.4"),
+        Case(
+            "j - 744 = q^{-1} + 196884q + 21493760q^2 + \\cdots",
+            "proved",
+            kind="prefix",
+            source="docs/method.md#delta-eta-j",
+        ),
     ),
     (
         "prefix-j-no-pole",
@@ -404,7 +441,7 @@ CASES: list[tuple[str, Case]] = [
             -1,
             lambda: (J() - 744, poly({1: 196884, 2: 21493760})),
             kind="prefix",
-            source="MATH.md §3.7: the principal part q^{-1} must be compared",
+            source="docs/method.md#poles-at-cusps: the principal part q^{-1} must be compared",
         ),
     ),
     (
@@ -413,7 +450,7 @@ CASES: list[tuple[str, Case]] = [
             "\\frac{E_2 E_4 - E_6}{720} = q + 18q^2 + 84q^3 + 292q^4 + 630q^5 + O(q^{6})",
             "proved",
             kind="prefix",
-            source="MATH.md §1.5: DE_4 = (E_2E_4 - E_6)/3, so the series is sum n sigma_3(n) q^n",
+            source="docs/method.md#derivatives: DE_4 = (E_2E_4 - E_6)/3, so the series is sum n sigma_3(n) q^n",
         ),
     ),
     (
@@ -422,7 +459,7 @@ CASES: list[tuple[str, Case]] = [
             "\\frac{E_2^2 - E_4}{12} = -24q - 144q^2 - 288q^3 + \\cdots",
             "proved",
             kind="prefix",
-            source="MATH.md §1.5: DE_2 = (E_2^2 - E_4)/12 = -24 sum n sigma(n) q^n",
+            source="docs/method.md#derivatives: DE_2 = (E_2^2 - E_4)/12 = -24 sum n sigma(n) q^n",
         ),
     ),
     (
@@ -431,7 +468,7 @@ CASES: list[tuple[str, Case]] = [
             "E_2\\Delta = q - 48q^2 + 756q^3 - 5888q^4 + \\cdots",
             "proved",
             kind="prefix",
-            source="MATH.md §1.5: D Delta = E_2 Delta = sum n tau(n) q^n",
+            source="docs/method.md#derivatives: D Delta = E_2 Delta = sum n tau(n) q^n",
         ),
     ),
     (
@@ -440,7 +477,7 @@ CASES: list[tuple[str, Case]] = [
             "E_2(\\tau) - 2E_2(2\\tau) = -1 - 24q - 24q^2 - 96q^3 - 24q^4 - 144q^5 + \\cdots",
             "proved",
             kind="prefix",
-            source="MATH.md §1.3; -1 - 24 sum sigma_odd(n) q^n",
+            source="docs/method.md#e2; -1 - 24 sum sigma_odd(n) q^n",
         ),
     ),
     (
@@ -451,7 +488,7 @@ CASES: list[tuple[str, Case]] = [
             3,
             lambda: (E(6), poly({0: 1, 1: -504, 2: -16632, 3: -122967})),
             kind="prefix",
-            source="MATH.md §9",
+            source="Serre VII §4",
         ),
     ),
     (
@@ -530,7 +567,7 @@ def test_claim(case: Case) -> None:
 
 
 def test_sturm_bound_values_from_math_md() -> None:
-    # MATH.md §3.2 sample values: B(1, 12) = 1, B(4, 2) = 1, B(11, 2) = 2.
+    # docs/method.md#sturm-bound sample values: B(1, 12) = 1, B(4, 2) = 1, B(11, 2) = 2.
     assert sturm(12, 1) == 1 and sturm(2, 4) == 1 and sturm(2, 11) == 2
 
 
@@ -673,17 +710,17 @@ def test_tag_options(options: str, latex: str, verdict: str, code: str | None) -
 # Soundness battery: small perturbations of true identities are never proved
 # ---------------------------------------------------------------------------
 
-# (template with {0}, {1}, ... for integers, the true integers; MATH.md section)
+# (template with {0}, {1}, ... for integers, the true integers; docs/method.md section)
 TEMPLATES: list[tuple[str, tuple[int, ...]]] = [
-    ("{0}E_{{12}} = {1}E_4^3 + {2}E_6^2", (691, 441, 250)),  # §1.2
-    ("{0}\\Delta = E_4^3 - {1}E_6^2", (1728, 1)),  # §1.4
-    ("E_{{12}} = E_4^3 - \\frac{{{0}}}{{{1}}}\\Delta", (432000, 691)),  # §1.2 + §1.4
-    ("j - {0} = q^{{-1}} + {1}q + {2}q^2 + \\cdots", (744, 196884, 21493760)),  # §9
-    ("\\Delta = q - {0}q^2 + {1}q^3 - {2}q^4 + \\cdots", (24, 252, 1472)),  # §9
-    ("(2E_2(2\\tau) - E_2(\\tau))^2 = \\frac{{1}}{{{0}}}(E_4(\\tau) + {1}E_4(2\\tau))", (5, 4)),  # §1.3
-    ("\\frac{{E_2E_4 - E_6}}{{{0}}} = q + {1}q^2 + \\cdots", (720, 18)),  # §1.5
-    ("j - {0} = \\frac{{E_6^2}}{{\\Delta}}", (1728,)),  # §1.4
-    ("{0}E_{{14}} = {1}E_4^2E_6", (1, 1)),  # §1.2
+    ("{0}E_{{12}} = {1}E_4^3 + {2}E_6^2", (691, 441, 250)),  # docs/method.md#eisenstein
+    ("{0}\\Delta = E_4^3 - {1}E_6^2", (1728, 1)),  # docs/method.md#delta-eta-j
+    ("E_{{12}} = E_4^3 - \\frac{{{0}}}{{{1}}}\\Delta", (432000, 691)),  # docs/method.md#eisenstein + #delta-eta-j
+    ("j - {0} = q^{{-1}} + {1}q + {2}q^2 + \\cdots", (744, 196884, 21493760)),  # Apostol, Ch. 1
+    ("\\Delta = q - {0}q^2 + {1}q^3 - {2}q^4 + \\cdots", (24, 252, 1472)),  # Ramanujan 1916, table of tau(n)
+    ("(2E_2(2\\tau) - E_2(\\tau))^2 = \\frac{{1}}{{{0}}}(E_4(\\tau) + {1}E_4(2\\tau))", (5, 4)),  # docs/method.md#e2
+    ("\\frac{{E_2E_4 - E_6}}{{{0}}} = q + {1}q^2 + \\cdots", (720, 18)),  # docs/method.md#derivatives
+    ("j - {0} = \\frac{{E_6^2}}{{\\Delta}}", (1728,)),  # docs/method.md#delta-eta-j
+    ("{0}E_{{14}} = {1}E_4^2E_6", (1, 1)),  # docs/method.md#eisenstein
 ]
 
 # A weight index changed (a subscript or an exponent swapped for a neighbour).

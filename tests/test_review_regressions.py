@@ -1,7 +1,7 @@
 """Regressions from an adversarial review: readings that once gave a false verdict.
 
 The mathematics of each case is elementary (coefficients of E_4, E_6, E_10 and j at
-q^1 from MATH.md §9 and §1.4); what is tested is that the claim is read as written.
+q^1 from docs/method.md#delta-eta-j); what is tested is that the claim is read as written.
 """
 
 from __future__ import annotations
@@ -14,7 +14,8 @@ def verdicts(text: str) -> list[tuple[str, str | None]]:
 
 
 def test_multi_column_align_rows_are_separate_claims() -> None:
-    # E_10 = 1 - 264q + ..., E_4 = 1 + 240q + ..., E_6 = 1 - 504q + ... (MATH.md §9): both false.
+    # E_10 = 1 - 264q + ..., E_4 = 1 + 240q + ..., E_6 = 1 - 504q + ... (Serre, A Course in Arithmetic, Ch. VII §4):
+    # both false.
     text = "%@claim\n\\begin{align} E_{10} &= E_4 & E_6 &= E_{10} \\end{align}\n"
     assert verdicts(text) == [("refuted", None), ("refuted", None)]
 
@@ -26,7 +27,7 @@ def test_builtin_names_cannot_be_redefined() -> None:
 
 
 def test_redefined_j_is_refused_so_j_of_2tau_is_read_correctly() -> None:
-    # j(2 tau) = q^-2 + ... differs from j = q^-1 + ... (MATH.md §1.4).
+    # j(2 tau) = q^-2 + ... differs from j = q^-1 + ... (docs/method.md#delta-eta-j).
     report = check_text("%@define j = \\frac{E_4^3}{\\Delta} - 744\n%@claim\n\\[ j(2\\tau) = j \\]\n")
     assert [d.code for d in report.diagnostics] == ["bad-define"]
     assert report.claims[0].verdict == "refuted"
@@ -43,7 +44,7 @@ def test_dots_between_printed_terms_is_an_error_not_a_verdict() -> None:
 
 
 def test_truncation_at_q0_with_a_pole_is_decided() -> None:
-    # j = q^-1 + 744 + ... (MATH.md §1.4)
+    # j = q^-1 + 744 + ... (docs/method.md#delta-eta-j)
     assert verdicts("%@claim\n\\[ j = q^{-1} + O(q^{0}) \\]\n") == [("proved", None)]
     assert verdicts("%@claim\n\\[ j = 2q^{-1} + O(q^{0}) \\]\n") == [("refuted", None)]
 
@@ -59,7 +60,7 @@ def test_subscript_braces_do_not_change_a_defined_name() -> None:
 
 def test_expansion_broken_across_align_rows_is_one_claim() -> None:
     # 1728 Delta = 1728q - 41472q^2 + 435456q^3 + ... with tau(2) = -24, tau(3) = 252
-    # (Ramanujan's table, MATH.md §9).
+    # (Ramanujan's table, 1916).
     text = (
         "%@claim\n\\begin{align} E_4^3 - E_6^2 &= 1728 q - 41472 q^2 \\\\\n"
         "&\\qquad{} + 435456 q^3 + \\cdots \\end{align}\n"
@@ -82,8 +83,9 @@ def test_markdown_tags_inside_code_fences_are_examples() -> None:
 
 
 def test_normalised_eigenform_claims() -> None:
-    # Delta and eta(tau)^2 eta(11 tau)^2 are normalised Hecke eigenforms (MATH.md §1.7, §9);
-    # E_4 has a_1 = 240 (MATH.md §9), E_4/240 has a_1 = 1 and M_4(SL2(Z)) is one-dimensional (§6.1).
+    # Delta and eta(tau)^2 eta(11 tau)^2 are normalised Hecke eigenforms (docs/method.md#hecke);
+    # E_4 has a_1 = 240 (Serre Ch. VII §4), E_4/240 has a_1 = 1 and M_4(SL2(Z)) is one-dimensional
+    # (docs/method.md#dimension-level-one).
     text = (
         "%@claim\n\\[ \\Delta \\text{ is a normalised eigenform} \\]\n"
         "%@claim\n\\[ \\eta(\\tau)^2\\eta(11\\tau)^2 \\text{ is a normalised Hecke eigenform} \\]\n"
@@ -108,7 +110,7 @@ def test_divisor_sums_over_n_over_c_keep_n_in_the_body() -> None:
 
 
 def test_coefficients_of_forms_with_fractional_exponents_are_an_error_not_a_crash() -> None:
-    # eta(tau) = q^{1/24}(1 - q - ...): a_G(n) is not defined for an integer index (MATH.md §4.1).
+    # eta(tau) = q^{1/24}(1 - q - ...): a_G(n) is not defined for an integer index (docs/method.md#eta-offset).
     report = check_text("%@define G = \\eta(\\tau)\n%@claim\n\\[ a_G(1) = -1 \\]\n%@claim\n\\[ E_4^2 = E_8 \\]\n")
     assert [c.verdict for c in report.claims] == ["error", "proved"]
 

@@ -1,6 +1,7 @@
 r"""Checks of theta series of quadratic forms (verifier.forms.theta) against outside sources.
 
-Each expected value names its source beside it: MATH.md §5.2/§5.3 and the references given
+Each expected value names its source beside it: docs/method.md#theta-quadratic-forms, #sums-of-squares and the
+references given
 there (Iwaniec, *Topics in Classical Automorphic Forms*, Thm 10.9; Miyake, *Modular Forms*,
 §4.9; Schoeneberg, *Elliptic Modular Functions*, Ch. IX; Hardy–Wright, *An Introduction to the
 Theory of Numbers*, Thms 278 and 386; Grosswald, *Representations of Integers as Sums of
@@ -133,7 +134,7 @@ def test_parse_matrix_rejects(text: str, fragment: str) -> None:
 def test_parsed_matrix_builds_a_form() -> None:
     rows = parse_matrix(r"\begin{pmatrix}2&1\\1&2\end{pmatrix}")
     assert isinstance(rows, list)
-    assert form(rows).level == 3  # MATH.md §5.2: x^2 + xy + y^2 has level 3
+    assert form(rows).level == 3  # docs/method.md#theta-quadratic-forms: x^2 + xy + y^2 has level 3
 
 
 # ---------------------------------------------------------------------------
@@ -144,7 +145,7 @@ def test_parsed_matrix_builds_a_form() -> None:
 @pytest.mark.parametrize(
     ("gram", "fragment"),
     [
-        ([[1, 0], [0, 2]], "odd"),  # MATH.md §5.2: a Gram matrix has even diagonal
+        ([[1, 0], [0, 2]], "odd"),  # docs/method.md#theta-quadratic-forms: a Gram matrix has even diagonal
         ([[2, 1], [0, 2]], "not symmetric"),
         ([[2, 3], [3, 2]], "not positive definite"),  # det -5: indefinite
         ([[-2, 0], [0, -2]], "not positive definite"),  # negative definite
@@ -170,26 +171,26 @@ def test_invalid_form_has_no_invariants() -> None:
 
 
 def test_basic_invariants() -> None:
-    # MATH.md §5.2: 2s variables give weight s; odd dimension gives half-integral weight.
+    # docs/method.md#theta-quadratic-forms: 2s variables give weight s; odd dimension gives half-integral weight.
     a2 = form(A2_GRAM)
     assert a2.validate() is None
     assert (a2.dimension, a2.weight, a2.determinant) == (2, Fraction(1), 3)
     three = sum_of_squares_form(3)
     assert three.weight == Fraction(3, 2)
     assert three.character is None  # odd dimension: no character attached (documented)
-    assert three.level == 4  # theta^3 lives on Gamma_0(4) (MATH.md §5.2, odd case)
+    assert three.level == 4  # theta^3 lives on Gamma_0(4) (docs/method.md#theta-quadratic-forms, odd case)
     assert sum_of_squares_form(4).gram == ((2, 0, 0, 0), (0, 2, 0, 0), (0, 0, 2, 0), (0, 0, 0, 2))
     with pytest.raises(ValueError):
         sum_of_squares_form(0)
 
 
 # ---------------------------------------------------------------------------
-# 3. Level and character: the list of MATH.md §5.2
+# 3. Level and character: the list of docs/method.md#theta-quadratic-forms
 # ---------------------------------------------------------------------------
 
 # (description, Gram matrix, level, discriminant D of the character chi_D; 1 = trivial).
-# MATH.md §5.2 lists these 12 forms with their levels (checked there numerically); where
-# §5.2 names no character, D comes from the formula ((-1)^s det A / d) of §5.2 itself
+# Levels from the rule of docs/method.md#theta-quadratic-forms (least N with N A^{-1} integral, even
+# diagonal); D comes from the formula ((-1)^s det A / d) stated there
 # (Iwaniec Thm 10.9, Miyake Cor. 4.9.5): x^2 + 3y^2 has det 12, (-12/d) = chi_{-3}(d) on d prime
 # to 6; x^2 + y^2 + 2z^2 + 2w^2 has det 64, a square; D_4 has det 4, a square.
 SECTION_5_2_FORMS = [
@@ -235,7 +236,7 @@ def test_e8_is_unimodular_level_one() -> None:
 
 
 def test_a2_divisor_formula() -> None:
-    # MATH.md §5.2: theta_{A_2} = 1 + 6 sum_n (sum_{d|n} chi_{-3}(d)) q^n.
+    # docs/method.md#theta-quadratic-forms: theta_{A_2} = 1 + 6 sum_n (sum_{d|n} chi_{-3}(d)) q^n.
     count = 300
     r = form(A2_GRAM).representation_numbers(count)
     assert r[0] == 1
@@ -271,7 +272,7 @@ def test_d4_odd_part_sigma() -> None:
 
 
 def test_e8_theta_is_e4() -> None:
-    # MATH.md §5.2: theta_{E_8} = E_4 (both in M_4(SL_2(Z))); compared to q^199.
+    # docs/method.md#theta-quadratic-forms: theta_{E_8} = E_4 (both in M_4(SL_2(Z))); compared to q^199.
     prec = 200
     theta = form(E8_GRAM).series(prec)
     assert theta.prec == prec
@@ -280,7 +281,7 @@ def test_e8_theta_is_e4() -> None:
 
 
 def test_two_squares() -> None:
-    # MATH.md §5.3, Hardy–Wright Thm 278: r_2(n) = 4 sum_{d|n} chi_{-4}(d); level 4, chi_{-4} (§5.2).
+    # docs/method.md#sums-of-squares, Hardy–Wright Thm 278: r_2(n) = 4 sum_{d|n} chi_{-4}(d); level 4, chi_{-4} (§5.2).
     q = sum_of_squares_form(2)
     assert q.level == 4
     assert q.character == QuadraticCharacter.from_integer(-4)
@@ -291,8 +292,8 @@ def test_two_squares() -> None:
 
 
 def test_jacobi_four_square_theorem() -> None:
-    # Jacobi's four-square theorem (MATH.md §5.3, Hardy–Wright Thm 386):
-    # r_4(n) = 8 sum_{d | n, 4 does not divide d} d; level 4, trivial character (§5.2).
+    # Jacobi's four-square theorem (docs/method.md#sums-of-squares, Hardy–Wright Thm 386):
+    # r_4(n) = 8 sum_{d | n, 4 does not divide d} d; level 4, trivial character (docs/method.md#theta-quadratic-forms).
     count = 3000
     q = sum_of_squares_form(4)
     assert q.level == 4
@@ -309,7 +310,7 @@ def test_jacobi_four_square_theorem() -> None:
 
 
 def test_six_and_eight_squares() -> None:
-    # MATH.md §5.3 (Grosswald): r_6(n) = 16 sum chi_{-4}(n/d) d^2 - 4 sum chi_{-4}(d) d^2 and
+    # docs/method.md#sums-of-squares (Grosswald): r_6(n) = 16 sum chi_{-4}(n/d) d^2 - 4 sum chi_{-4}(d) d^2 and
     # r_8(n) = 16 sum_{d|n} (-1)^{n+d} d^3.
     count = 150
     r6 = sum_of_squares_form(6).representation_numbers(count)
@@ -321,7 +322,7 @@ def test_six_and_eight_squares() -> None:
 
 
 def test_three_squares_is_theta_cubed() -> None:
-    # MATH.md §5.3: sum r_3(n) q^n = theta^3 with theta = sum_{n in Z} q^{n^2} (§5.1); the
+    # docs/method.md#sums-of-squares: sum r_3(n) q^n = theta^3 with theta = sum_{n in Z} q^{n^2} (#theta-nome); the
     # cube is expanded here by brute force over a box (3 * 20^2 > 400).
     prec = 400
     cube = [0] * prec
@@ -368,7 +369,8 @@ def test_representation_numbers_match_box_enumeration(gram: list[list[int]]) -> 
 
 @pytest.mark.parametrize("gram", random_forms(seed=7, wanted=10), ids=str)
 def test_level_is_least_admissible(gram: list[list[int]]) -> None:
-    # MATH.md §5.2: least N >= 1 with N A^{-1} integral with even diagonal; found by search with sympy.
+    # docs/method.md#theta-quadratic-forms: least N >= 1 with N A^{-1} integral with even diagonal; found by search with
+    # sympy.
     inverse = sympy.Matrix(gram).inv()
     n = len(gram)
 
@@ -419,7 +421,7 @@ def evaluate(coefficients: list[int], tau: mpmath.mpc) -> mpmath.mpc:
     ],
 )
 def test_transformation_law_numerically(gram: list[list[int]], d: int) -> None:
-    # MATH.md §2.4 / §5.2 (Iwaniec Thm 10.9): for gamma = (a b; c d) in Gamma_0(N),
+    # docs/method.md#characters, #theta-quadratic-forms (Iwaniec Thm 10.9): for gamma = (a b; c d) in Gamma_0(N),
     # theta_Q(gamma tau) = chi(d) (c tau + d)^k theta_Q(tau).  Evaluated with mpmath.
     mpmath.mp.dps = 30
     q = form(gram)

@@ -451,7 +451,7 @@ def _claim(
     finally:
         elaborator.nome = Fraction(1)
         elaborator.allow_mixed = False
-    # q -> q^T makes every exponent integral (eta offsets, q^{1/24}, the nome); MATH.md §4.1.
+    # q -> q^T makes every exponent integral (eta offsets, q^{1/24}, the nome); docs/method.md#eta-offset.
     t = rescale_factor(*sides)
     try:
         left, right = (rescale_side(s, t) for s in sides)

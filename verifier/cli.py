@@ -165,6 +165,11 @@ def _explain(code: str | None) -> int:
         print(f"qreferee: no such code {code!r}; 'qreferee explain' lists them", file=sys.stderr)
         return EXIT_INPUT_ERROR
     print(text)
+    from verifier import method
+
+    anchor = method.for_code(code)
+    if anchor is not None:
+        print(method.describe(anchor))
     return EXIT_ALL_PROVED
 
 

@@ -73,6 +73,11 @@ CODES: dict[str, tuple[str, str]] = {
     "budget": ("prove", "Proving the claim needs more coefficients than the budget allows."),
     "time-budget": ("prove", "The claim ran past its time budget (--max-seconds) and was stopped."),
     "internal": ("prove", "qreferee found an inconsistency in its own computation; the claim is not decided."),
+    "no-witness": (
+        "prove",
+        "The sides looked different, but no exponent with two different exact values was found, so no "
+        "verdict of difference is given.",
+    ),
 }
 
 

@@ -1,9 +1,9 @@
-"""Generating functions of arithmetic expressions (MATH.md §8).
+"""Generating functions of arithmetic expressions (docs/method.md#generating-functions).
 
 ``generating_function(e, "n")`` returns a typed form expression G with
 ``G = sum_{n >= 0} e(n) q^n`` exactly (the constant term is e(0) under the conventions
 of :mod:`verifier.arith.values`), or raises :class:`Untranslatable` with the reason.
-G is quasimodular of mixed weight; proofs split it by weight and E_2-power (§7.3).
+G is quasimodular of mixed weight; proofs split it by weight and E_2-power (docs/method.md#quasimodular).
 
 Translations (each one exact):
 * sigma_k(n/d), k odd: (B_{k+1} / (2(k+1))) (1 - E_{k+1}(d tau));
@@ -13,7 +13,7 @@ Translations (each one exact):
 * sum_{d | n} (-1)^{alpha n + beta d + gamma n/d} d^a (n/d)^b: split by the parities of d and n/d
   into S(n), S(n/2), S(n/4) with S(n) = sum_{d|n} d^a (n/d)^b = n^min(a,b) sigma_|a-b|(n).
 * sum_{d | n} psi(n/d) phi(d) d^a (n/d)^b with quadratic characters of fundamental
-  discriminants -> D^min(a,b) of (E_k^{psi,phi} - constant)/2 (§1.8).
+  discriminants -> D^min(a,b) of (E_k^{psi,phi} - constant)/2 (docs/method.md#eisenstein-characters).
 Pointwise products of two arithmetic functions, sigma_k with k even, p(n), phi, mu and
 progressions a(Mn + r) have no translation here: such claims are decided only by direct values.
 """
@@ -93,7 +93,7 @@ def atom(key: str, weight: Fraction, scale: int = 1, depth: int = 0, params: tup
 
 
 def sigma_generating_function(k: int, scale: int = 1) -> ir.Expr:
-    """sum_{n >= 1} sigma_k(n / scale) q^n for odd k >= 1 (MATH.md §8, first row)."""
+    """sum_{n >= 1} sigma_k(n / scale) q^n for odd k >= 1 (docs/method.md#generating-functions, first row)."""
     if k < 1 or k % 2 == 0:
         raise Untranslatable(f"sigma_{k} has no modular generating function (k must be odd)")
     w = k + 1
@@ -495,7 +495,10 @@ def QuadraticCharacterKernel(disc: int) -> int:
 
 
 def _character_sum(a: int, b: int, psi: int, phi: int) -> ir.Expr:
-    """sum_{n>=1} (sum_{d|n} psi(n/d) phi(d) d^a (n/d)^b) q^n via E_k^{psi,phi} (MATH.md §1.8)."""
+    """sum_{n>=1} (sum_{d|n} psi(n/d) phi(d) d^a (n/d)^b) q^n via E_k^{psi,phi}.
+
+    See docs/method.md#eisenstein-characters.
+    """
     from verifier.forms.characters import QuadraticCharacter
     from verifier.forms.eisenstein_chars import constant_term, is_defined
 

@@ -3,7 +3,7 @@
 This evaluator is independent of the generating-function translation: it gives the
 witness of every refutation (the first n and both values), and it cross-checks every
 proof (a proof whose direct values disagree is reported as an internal inconsistency,
-never as proved).  Conventions (MATH.md preamble, §10.4): sigma_k(x) = tau(x) = r_s(x) =
+never as proved).  Conventions (docs/method.md#arithmetic-functions): sigma_k(x) = tau(x) = r_s(x) =
 p(x) = 0 unless x is a positive integer (r_s(0) = p(0) = 1).
 """
 

@@ -138,7 +138,7 @@ class Elaborator:
                 except ElaborationError as exc:
                     if exc.problem.code != "mixed-weight" or not self.allow_mixed:
                         raise
-                    # A claim about a generating function compares weight by weight (MATH.md §7.3).
+                    # A claim about a generating function compares weight by weight (docs/method.md#quasimodular).
                     from verifier.arith.genfun import add as mixed_add
 
                     acc = mixed_add(acc, e, sign)
@@ -250,7 +250,7 @@ class Elaborator:
             for _ in range(int(value or 1)):
                 operand = _deriv(operand, src, node)
             return operand
-        # Serre derivative theta_k f = D f - (k/12) E_2 f (MATH.md §1.5).
+        # Serre derivative theta_k f = D f - (k/12) E_2 f (docs/method.md#derivatives).
         k = Fraction(value) if value is not None else operand.typ.weight
         if k is None:
             raise _err("syntax", "the weight of the Serre derivative is not known", "write \\partial_k f", node)
@@ -266,7 +266,10 @@ class Elaborator:
         return _add(_deriv(operand, src, node), correction, 1, node)
 
     def _generating_sum(self, node: ast.BigSum, text: str) -> ir.Expr:
-        """``\\sum_{n \\ge L} a(n) q^n`` (L = 0 or 1) as a form: its generating function (MATH.md §8)."""
+        """``\\sum_{n \\ge L} a(n) q^n`` (L = 0 or 1) as a form: its generating function.
+
+        See docs/method.md#generating-functions.
+        """
         from verifier.arith.elaborate import ArithmeticError_, to_arith
         from verifier.arith.genfun import Untranslatable, add, const, generating_function
         from verifier.arith.values import NotEvaluable, Values
@@ -307,7 +310,7 @@ class Elaborator:
             raise _err("unsupported", f"no modular generating function: {exc}", "", node) from exc
 
     def _bracket(self, node: ast.Bracket, text: str, src: str) -> ir.Expr:
-        """[f, g]_n = sum_{r+s=n} (-1)^r C(n+k-1, s) C(n+l-1, r) D^r f D^s g (MATH.md §1.6)."""
+        """[f, g]_n = sum_{r+s=n} (-1)^r C(n+k-1, s) C(n+l-1, r) D^r f D^s g (docs/method.md#rankin-cohen)."""
         f = self.expr(node.left, text)
         g = self.expr(node.right, text)
         k, wg = f.typ.weight, g.typ.weight
@@ -413,7 +416,7 @@ def _operator(node: ast.Node) -> tuple[str, int | Fraction | None] | None:
 
 
 def _binomial(x: Fraction, m: int) -> Fraction:
-    """x(x-1)...(x-m+1)/m!, also for half-integral x (MATH.md §1.6)."""
+    """x(x-1)...(x-m+1)/m!, also for half-integral x (docs/method.md#rankin-cohen)."""
     out = Fraction(1)
     for i in range(m):
         out = out * (x - i) / (i + 1)

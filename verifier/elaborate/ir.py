@@ -30,7 +30,7 @@ class Typ:
     printed: bool = False
     has_pole: bool = False
     # A sum of several weights (a generating function such as (E_4 - 1)/240); ``weight``
-    # is then the largest of them.  Proofs split it by weight (MATH.md §7.3).
+    # is then the largest of them.  Proofs split it by weight (docs/method.md#quasimodular).
     mixed: bool = False
 
 
@@ -104,14 +104,14 @@ class Power(Expr):
 
 @dataclass(frozen=True)
 class Deriv(Expr):
-    """``D base`` with D = q d/dq = (2 pi i)^{-1} d/dtau (MATH.md §1.5)."""
+    """``D base`` with D = q d/dq = (2 pi i)^{-1} d/dtau (docs/method.md#derivatives)."""
 
     base: Expr | None = None
 
 
 @dataclass(frozen=True)
 class Hecke(Expr):
-    """``T_n base`` (``U_n`` when ``kind`` is "U"): a Hecke operator on a modular form (MATH.md §1.7)."""
+    """``T_n base`` (``U_n`` when ``kind`` is "U"): a Hecke operator on a modular form (docs/method.md#hecke)."""
 
     base: Expr | None = None
     n: int = 1

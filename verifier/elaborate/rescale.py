@@ -1,6 +1,6 @@
 """Make every exponent of a claim integral by the substitution tau -> T tau.
 
-Eta quotients carry q^{s/24} (MATH.md §4.1), Jacobi's thetas in the nome e^{pi i tau}
+Eta quotients carry q^{s/24} (docs/method.md#eta-offset), Jacobi's thetas in the nome e^{pi i tau}
 involve eta(tau/2), and authors print q^{1/24} or q^{1/4}.  A formal identity in q is
 unchanged by q -> q^T, so the whole claim is rescaled by the least T that makes every
 scale, every eta delta, every eta offset and every printed exponent an integer; the

@@ -1,13 +1,13 @@
-"""Quadratic Dirichlet characters and the Kronecker symbol (MATH.md §2.4).
+"""Quadratic Dirichlet characters and the Kronecker symbol (docs/method.md#characters).
 
 The only characters a manuscript's eta quotients, theta series and quadratic-form theta
 series produce are quadratic: the Gordon–Hughes–Newman character of an eta quotient is
-``d -> ((-1)^k prod delta^|r_delta| / d)`` (MATH.md §4.2), and theta series carry
+``d -> ((-1)^k prod delta^|r_delta| / d)`` (docs/method.md#eta-modularity), and theta series carry
 ``chi_D`` for a discriminant ``D``. A quadratic character is pinned down by one signed
 squarefree integer, its *kernel*; this module stores exactly that.
 
 Convention: the nebentypus of ``f`` is ``chi`` when ``f(gamma tau) = chi(d) (c tau + d)^k f(tau)``
-(MATH.md §2.4). For a quadratic character ``chi = chi-bar``, so authors who write ``chi(a)`` mean
+(docs/method.md#characters). For a quadratic character ``chi = chi-bar``, so authors who write ``chi(a)`` mean
 the same character.
 """
 
@@ -44,7 +44,7 @@ def _jacobi(a: int, n: int) -> int:
 
 
 def kronecker(a: int, n: int) -> int:
-    """The Kronecker symbol (a/n) for all integers a and n, exactly as MATH.md §2.4 defines it.
+    """The Kronecker symbol (a/n) for all integers a and n, exactly as docs/method.md#characters defines it.
 
     - (a/0) = 1 if a = +-1, else 0;
     - (a/-1) = -1 if a < 0, else +1;
@@ -102,7 +102,7 @@ class QuadraticCharacter:
     The character with kernel ``k`` is ``chi_D(n) = (D/n)`` (Kronecker symbol) with ``D`` the
     fundamental discriminant of Q(sqrt k): ``D = k`` if ``k = 1 mod 4``, else ``D = 4k``.
     ``chi_D`` is a primitive character of conductor ``|D|`` with ``chi_D(-1) = sign D``
-    (MATH.md §2.4). Kernel 1 is the trivial character (D = 1, conductor 1).
+    (docs/method.md#characters). Kernel 1 is the trivial character (D = 1, conductor 1).
 
     Why the kernel is canonical. For d = k s^2 and n prime to d, multiplicativity of the
     Kronecker symbol in its *upper* argument for fixed n, (D1 D2 / n) = (D1/n)(D2/n), gives
@@ -148,7 +148,7 @@ class QuadraticCharacter:
 
     @property
     def is_even(self) -> bool:
-        """chi(-1) = +1; by (D/-1) = sign D this is D > 0 (MATH.md §2.4)."""
+        """chi(-1) = +1; by (D/-1) = sign D this is D > 0 (docs/method.md#characters)."""
         return self.kernel > 0
 
     def value(self, n: int) -> int:

@@ -1,4 +1,4 @@
-"""The discriminant Delta = q prod (1 - q^n)^24 = eta(tau)^24 (MATH.md §1.4)."""
+"""The discriminant Delta = q prod (1 - q^n)^24 = eta(tau)^24 (docs/method.md#delta-eta-j)."""
 
 from __future__ import annotations
 

@@ -1,6 +1,6 @@
 """Bernoulli numbers and the normalised Eisenstein series E_k of level one.
 
-Convention (MATH.md §1.2): ``t/(e^t - 1) = sum B_n t^n / n!`` (so ``B_1 = -1/2``) and,
+Convention (docs/method.md#eisenstein): ``t/(e^t - 1) = sum B_n t^n / n!`` (so ``B_1 = -1/2``) and,
 for even ``k >= 2``,
 
     E_k = 1 - (2k / B_k) * sum_{n >= 1} sigma_{k-1}(n) q^n.

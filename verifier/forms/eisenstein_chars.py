@@ -1,4 +1,4 @@
-"""Eisenstein series with (quadratic) characters, E_k^{psi, phi} (MATH.md §1.8).
+"""Eisenstein series with (quadratic) characters, E_k^{psi, phi} (docs/method.md#eisenstein-characters).
 
 For primitive characters psi mod u and phi mod v with psi(-1) phi(-1) = (-1)^k,
     E_k^{psi,phi} = delta(psi) L(1-k, phi) [+ delta(phi) L(0, psi) when k = 1]
@@ -20,7 +20,10 @@ from verifier.series.qseries import QSeries, fmpq_to_fraction
 
 
 def generalised_bernoulli(k: int, phi: QuadraticCharacter) -> Fraction:
-    """B_{k, phi} for a primitive character phi (B_{k, 1} = B_k with B_1 = +1/2: MATH.md §10.3)."""
+    """B_{k, phi} for a primitive character phi (B_{k, 1} = B_k with B_1 = +1/2).
+
+    See docs/method.md#eisenstein-characters.
+    """
     v = phi.conductor
     poly = fmpq_poly.bernoulli_poly(k)
     total = Fraction(0)

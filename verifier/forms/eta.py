@@ -1,19 +1,20 @@
-"""Eta quotients prod_delta eta(delta tau)^{r_delta} on Gamma_0(N) (MATH.md §4).
+"""Eta quotients prod_delta eta(delta tau)^{r_delta} on Gamma_0(N) (docs/method.md#eta-theta).
 
 With ``eta(tau) = q^{1/24} prod_{n >= 1} (1 - q^n)``, an eta quotient is
 
     f = q^{s/24} P(q),    P(q) = prod_delta prod_{n >= 1} (1 - q^{delta n})^{r_delta},
-    s = sum_delta delta r_delta,    weight k = (sum_delta r_delta) / 2          (§4.1).
+    s = sum_delta delta r_delta,    weight k = (sum_delta r_delta) / 2          (docs/method.md#eta-offset).
 
 This module keeps ``P`` (an integer power series with constant term 1) apart from the
 fractional prefactor ``q^{s/24}``, and supplies the modular data needed to prove
 identities between such quotients:
 
-* the least level N at which the Gordon-Hughes-Newman conditions hold (§4.2, §4.4);
-* the quadratic character of the transformation law (§4.2);
-* Ligozat's orders at the cusps of Gamma_0(N) (§4.3), hence holomorphy (§4.5);
+* the least level N at which the Gordon-Hughes-Newman conditions hold (docs/method.md#eta-modularity);
+* the quadratic character of the transformation law (docs/method.md#eta-modularity);
+* Ligozat's orders at the cusps of Gamma_0(N) (docs/method.md#ligozat), hence holomorphy
+  (docs/method.md#eta-modularity);
 * for odd ``sum r_delta`` (half-integral weight) the same data read off ``f theta``,
-  ``theta = eta(2tau)^5 / (eta(tau)^2 eta(4tau)^2)``, as in §3.6 and §4.6.
+  ``theta = eta(2tau)^5 / (eta(tau)^2 eta(4tau)^2)``, as in docs/method.md#half-integral-weight, #eta-half-integral.
 """
 
 from __future__ import annotations
@@ -75,7 +76,7 @@ class EtaQuotient:
 
     @classmethod
     def theta(cls) -> EtaQuotient:
-        """``theta = sum_n q^{n^2} = eta(2tau)^5 / (eta(tau)^2 eta(4tau)^2)`` (MATH.md §5.1)."""
+        """``theta = sum_n q^{n^2} = eta(2tau)^5 / (eta(tau)^2 eta(4tau)^2)`` (docs/method.md#theta-nome)."""
         return cls(((1, -2), (2, 5), (4, -2)))
 
     def __mul__(self, other: EtaQuotient) -> EtaQuotient:
@@ -180,19 +181,19 @@ class EtaQuotient:
         """The quotient itself, ``q^{s/24} P(q) + O(q^prec)``; needs ``24 | s``.
 
         ``prec`` is an absolute exponent: every coefficient of ``q^n``, ``n < prec``, is exact.
-        When ``24`` does not divide ``s``, rescale first (:meth:`scaled`, MATH.md §4.1).
+        When ``24`` does not divide ``s``, rescale first (:meth:`scaled`, docs/method.md#eta-offset).
         """
         if self.s % 24:
             raise ValueError(f"{self.label()} has the fractional q-offset {self.offset}; rescale tau -> t tau first")
         e = self.s // 24
         return QSeries.from_integer_poly(self.product_poly(prec - e), e, prec)
 
-    # -- level (§4.4, §4.6) ---------------------------------------------------------
+    # -- level (docs/method.md#eta-modularity, #eta-half-integral) ----------------------------
     def modularity_failure(self) -> str | None:
         """Why no level Gamma_0(N) works, in words; None when some level does.
 
         The only obstruction is the first Gordon-Hughes-Newman congruence
-        ``sum delta r_delta = 0 mod 24`` (§4.2, §4.4): the second one can always be met by
+        ``sum delta r_delta = 0 mod 24`` (docs/method.md#eta-modularity): the second one can always be met by
         enlarging N.  For half-integral weight the test is applied to ``f theta``, whose
         ``s`` is the same since ``theta`` has ``s = 2*5 - 1*2 - 4*2 = 0``.
         """
@@ -201,10 +202,10 @@ class EtaQuotient:
         return None
 
     def least_level(self) -> int | None:
-        """Least N for which the GHN conditions hold (§4.4); None if there is none.
+        """Least N for which the GHN conditions hold (docs/method.md#eta-modularity); None if there is none.
 
         Integral weight: ``N = L * 24 / gcd(24, S)`` with ``L = lcm(delta)`` and
-        ``S = sum (L/delta) r_delta``.  Half-integral weight (§4.6): the least level of
+        ``S = sum (L/delta) r_delta``.  Half-integral weight (docs/method.md#eta-half-integral): the least level of
         ``f theta``, made a multiple of 4 (Shimura's setting, §3.6).
         """
         if self.modularity_failure() is not None:
@@ -221,7 +222,7 @@ class EtaQuotient:
     def level_failure(self, level: int) -> str | None:
         """Why the GHN criterion does not apply on Gamma_0(level), in words; None if it does.
 
-        Conditions (§4.2): every delta divides N, ``sum delta r = 0 mod 24`` and
+        Conditions (docs/method.md#eta-modularity): every delta divides N, ``sum delta r = 0 mod 24`` and
         ``sum (N/delta) r = 0 mod 24``; for half-integral weight also ``4 | N`` and the
         conditions for ``f theta`` -- the same congruences, since ``theta`` contributes
         ``N(5/2 - 2 - 1/2) = 0`` to the second sum.  (The test ``4 | N`` is a safeguard: for
@@ -249,11 +250,12 @@ class EtaQuotient:
         if reason is not None:
             raise ValueError(f"{self.label()} is not modular on Gamma0({level}): {reason}")
 
-    # -- character (§4.2, §4.6) ------------------------------------------------------
+    # -- character (docs/method.md#eta-modularity, #eta-half-integral) ------------------------
     def character(self, level: int) -> QuadraticCharacter:
         """The character chi with ``f(gamma tau) = chi(d) (c tau + d)^k f(tau)`` on Gamma_0(level).
 
-        Integral weight (Gordon-Hughes-Newman, §4.2): ``chi(d) = ((-1)^k prod delta^{|r|} / d)``.
+        Integral weight (Gordon-Hughes-Newman, docs/method.md#eta-modularity):
+        ``chi(d) = ((-1)^k prod delta^{|r|} / d)``.
         Half-integral weight (§4.6): Shimura's character ``chi_{f theta} chi_{-4}^{lambda+1}``
         with ``k = lambda + 1/2``, i.e. ``f(gamma tau) = chi(d) j(gamma, tau)^{2 lambda + 1} f(tau)``.
         Raises ValueError when ``level`` is not admissible (:meth:`level_failure`).
@@ -281,11 +283,11 @@ class EtaQuotient:
         sign = -1 if int(k) % 2 else 1
         return QuadraticCharacter.from_integer(sign * core)
 
-    # -- cusps (§4.3, §4.5) -------------------------------------------------------
+    # -- cusps (docs/method.md#ligozat, #eta-modularity) -------------------------------------------------------
     def order_at_cusp(self, d: int, level: int) -> Fraction:
         """Ligozat's order of f at a cusp ``c/d`` of Gamma_0(level), in the local parameter.
 
-        ``v_d = (N/24) sum_delta gcd(d, delta)^2 r_delta / (gcd(d, N/d) d delta)``  (§4.3):
+        ``v_d = (N/24) sum_delta gcd(d, delta)^2 r_delta / (gcd(d, N/d) d delta)``  (docs/method.md#ligozat):
         eta(delta tau) has q-order ``gcd(d, delta)^2 / (24 delta)`` at c/d, and the local
         parameter there is ``q^{1/h}`` with width ``h = N / (d gcd(d, N/d))``.  It depends only
         on d; at infinity (d = N) it is ``s/24``.  Valid for d | N and every delta | N.
@@ -305,7 +307,7 @@ class EtaQuotient:
     def orders(self, level: int) -> dict[int, Fraction]:
         """``{d: order at the cusps c/d}`` for every divisor d of ``level`` (increasing d).
 
-        There are ``phi(gcd(d, N/d))`` inequivalent cusps with denominator d (MATH.md §2.2);
+        There are ``phi(gcd(d, N/d))`` inequivalent cusps with denominator d (docs/method.md#cusps);
         all have the same order.
         """
         return {d: self.order_at_cusp(d, level) for d in _divisors(level)}

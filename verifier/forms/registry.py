@@ -2,14 +2,14 @@
 
 An atom is a family key, a scale (``tau -> scale * tau``) and parameters:
 
-* ``E2, E4, ...`` -- Eisenstein series E_k (MATH.md §1.2); ``Delta`` (§1.4);
+* ``E2, E4, ...`` -- Eisenstein series E_k (docs/method.md#eisenstein); ``Delta`` (docs/method.md#delta-eta-j);
 * ``eta`` -- an eta quotient ``prod eta(delta tau)^r``; parameters are the pairs
   ``(delta, r)`` with *rational* delta (the scale is folded into delta), so that Jacobi's
   thetas in the nome ``e^{pi i tau}`` (which involve ``eta(tau/2)``) are eta quotients too;
 * ``theta`` -- the theta series of a quadratic form; parameters are the Gram matrix.
 
 Before a claim is proved it is rescaled so that every delta, scale and exponent is an
-integer (MATH.md §4.1); the functions below that ask for a level expect that.
+integer (docs/method.md#eta-offset); the functions below that ask for a level expect that.
 
 Adding a family: its spellings in :func:`lookup`, and its weight, level, character,
 cusp orders and series in the functions below.
@@ -33,7 +33,7 @@ _BIG_THETA = re.compile(r"^\\Theta_(?:\{\s*(\w+)\s*\}|(\w))$")
 EtaParams = tuple[tuple[Fraction, int], ...]
 
 # theta(tau) = sum q^{n^2} = eta(2tau)^5 / (eta(tau)^2 eta(4tau)^2), and its relatives in
-# the nome q = e^{2 pi i tau} (MATH.md §5.1): (factor, eta exponents).
+# the nome q = e^{2 pi i tau} (docs/method.md#theta-nome): (factor, eta exponents).
 _THETA_Q: dict[str, tuple[int, dict[int, int]]] = {
     "3": (1, {1: -2, 2: 5, 4: -2}),  # sum q^{n^2}
     "4": (1, {1: 2, 2: -1}),  # sum (-1)^n q^{n^2}
@@ -75,7 +75,7 @@ def lookup(
     """The atom named ``name``; None when the name is not a built-in at all.
 
     ``nome`` is 1 for q = e^{2 pi i tau} and 1/2 for Jacobi's nome e^{pi i tau}: it changes
-    what the Jacobi thetas mean (MATH.md §5.1, §10.1).
+    what the Jacobi thetas mean (docs/method.md#theta-nome).
     """
     m = _EIS.match(name)
     if m:

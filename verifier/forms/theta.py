@@ -1,4 +1,4 @@
-"""Theta series of positive-definite integral quadratic forms (MATH.md §5.2, §5.3).
+"""Theta series of positive-definite integral quadratic forms (docs/method.md#theta-quadratic-forms, #sums-of-squares).
 
 A form is given by its Gram matrix ``A``: a symmetric, positive-definite integer matrix
 with even diagonal, and ``Q(x) = x^T A x / 2``, which is then integer valued on ``Z^n``.
@@ -270,7 +270,7 @@ class QuadraticForm:
 
     @property
     def level(self) -> int:
-        """Least ``N >= 1`` with ``N A^{-1}`` integral and with even diagonal (MATH.md §5.2).
+        """Least ``N >= 1`` with ``N A^{-1}`` integral and with even diagonal (docs/method.md#theta-quadratic-forms).
 
         The admissible ``N`` form a subgroup of ``Z`` (both conditions are additive) that
         contains ``2 det A`` (``2 det A * A^{-1} = 2 adj A``), so the level is the lcm of the
@@ -313,7 +313,7 @@ class QuadraticForm:
         case the agreement holds for even ``d`` as well.
 
         For an odd number of variables the weight ``n/2`` is half-integral and the
-        transformation law involves the theta multiplier (MATH.md §3.6); no character is
+        transformation law involves the theta multiplier (docs/method.md#half-integral-weight); no character is
         attached to such forms yet, and ``None`` is returned.
         """
         modulus = self.character_modulus
@@ -347,7 +347,10 @@ class QuadraticForm:
 
 
 def sum_of_squares_form(s: int) -> QuadraticForm:
-    """``x_1^2 + ... + x_s^2``: Gram matrix ``2 I_s``; its theta series is ``theta^s`` (MATH.md §5.3)."""
+    """``x_1^2 + ... + x_s^2``: Gram matrix ``2 I_s``; its theta series is ``theta^s``.
+
+    See docs/method.md#sums-of-squares.
+    """
     if s < 1:
         raise ValueError("a sum of squares needs at least one variable")
     return QuadraticForm(tuple(tuple(2 if i == j else 0 for j in range(s)) for i in range(s)))

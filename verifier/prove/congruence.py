@@ -1,4 +1,6 @@
-"""Decide congruences ``F = 0 (mod M)`` coefficient by coefficient (MATH.md §3.4, §3.5, §3.9).
+"""Decide congruences ``F = 0 (mod M)`` coefficient by coefficient.
+
+See docs/method.md#congruences-sturm, #congruence-weights and #congruence-e2.
 
 ``F`` is given as homogeneous pieces ``sum_i f_i E_2^{j_i}`` with ``f_i`` in
 ``M_{w_i - 2 j_i}(Gamma_0(N), chi_i)``: the difference of the two sides of a claim, split by
@@ -10,13 +12,14 @@ For each prime power ``p^e || M`` separately (a congruence mod M holds iff it ho
 ``p^e``, by the Chinese remainder theorem):
 
 1. A piece whose ``f_i`` is p-integral and 0 mod ``p^e`` through the Sturm bound of its own
-   weight is 0 mod ``p^e`` for every n (§3.4; ``E_2`` has integer coefficients), so it is
-   set aside.  This is how ``691 E_4^3 = 691`` (mod 691) enters the worked example of §3.4.
+   weight is 0 mod ``p^e`` for every n (docs/method.md#congruences-sturm; ``E_2`` has integer coefficients), so it is
+   set aside.  This is how ``691 E_4^3 = 691`` (mod 691) enters the worked example of
+   docs/method.md#congruences-sturm.
 2. The remaining pieces are made modular: ``E_2`` becomes ``E_{p+1}`` (p >= 5, e = 1) or 1
    (mod 8 and mod 3); for any other prime power with ``E_2`` left there is no substitution
-   (§3.9) and nothing is proved.
+   (docs/method.md#congruence-e2) and nothing is proved.
 3. They must share one character, and their weights must be joined by multipliers
-   ``H = 1 (mod p^e)`` of level one (§3.5, corrected list): ``E_{p-1}^{p^{e-1}}`` for p >= 5,
+   ``H = 1 (mod p^e)`` of level one (docs/method.md#congruence-weights): ``E_{p-1}^{p^{e-1}}`` for p >= 5,
    powers of ``E_4`` and ``E_6`` for p = 2, 3.  Each piece is multiplied up to the least common
    weight ``K`` reachable that way.
 4. Every ``f_i`` must be p-integral: checked through ``B``, which suffices because the forms
@@ -25,8 +28,8 @@ For each prime power ``p^e || M`` separately (a congruence mod M holds iff it ho
    everywhere (Sturm), contradicting the choice of ``c``.
 5. ``G = sum_i f_i E_{p+1}^{j_i} H_i`` lies in ``M_K(Gamma_0(N), chi)``, is p-integral, and
    ``G = F (mod p^e)`` coefficientwise.  ``G = 0 (mod p^e)`` everywhere iff it is so for
-   ``n <= B = floor(K m_0(N) / 12)`` (§3.4, prime powers in the same space).  A nonzero residue
-   within ``B`` is therefore a true coefficient of ``F`` that is not 0 mod ``p^e``.
+   ``n <= B = floor(K m_0(N) / 12)`` (docs/method.md#congruences-sturm, prime powers in the same space).
+   A nonzero residue within ``B`` is therefore a true coefficient of ``F`` that is not 0 mod ``p^e``.
 
 Everything else (half-integral weight, poles, several characters, weights no multiplier
 joins, pieces with ``p`` in a denominator, ``E_2`` modulo higher prime powers) is reported
@@ -161,7 +164,7 @@ def _eisenstein_mod(k: int, stop: int, m: int) -> list[int]:
 
 
 # ---------------------------------------------------------------------------
-# Multipliers H = 1 (mod p^e) and E_2 substitutions (MATH.md §3.5, §3.9)
+# Multipliers H = 1 (mod p^e) and E_2 substitutions (docs/method.md#congruence-weights, #congruence-e2)
 # ---------------------------------------------------------------------------
 
 
@@ -182,7 +185,7 @@ class _Generator:
 
 
 def _generators(p: int, e: int) -> list[_Generator]:
-    """The multipliers of MATH.md §3.5 (corrected list) for p^e.
+    """The multipliers of docs/method.md#congruence-weights for p^e.
 
     The base forms are ``E_{p-1}`` (p >= 5) and ``E_4``, ``E_6`` (p = 2, 3).  ``E_k = 1 (mod p^a)``
     exactly when ``p^a`` divides the constant ``-2k/B_k`` (the divisor sums are integers and
@@ -203,7 +206,7 @@ def _generators(p: int, e: int) -> list[_Generator]:
 
 
 def _substitution(p: int, e: int) -> str | None:
-    """How E_2 is made modular mod p^e (MATH.md §3.9): ``"E_{p+1}"``, ``"1"`` or None (no way)."""
+    """How E_2 is made modular mod p^e (docs/method.md#congruence-e2): ``"E_{p+1}"``, ``"1"`` or None (no way)."""
     if p >= 5 and e == 1:
         return "E_{p+1}"
     if (p == 2 and e <= 3) or (p == 3 and e == 1):
@@ -334,9 +337,10 @@ def _not_proved(reason: str, details: list[dict[str, Any]] | None = None) -> Con
 def decide_congruence(pieces: list[Piece], modulus: int, level: int) -> CongruenceDecision:
     """Decide whether every coefficient of ``F = sum f_i E_2^{j_i}`` is 0 mod ``modulus``.
 
-    Returns ``proved=True`` only through the argument of the module docstring (MATH.md §3.4,
-    §3.5 corrected, §3.9); otherwise ``proved=False`` and ``reason`` says why.  The pieces must
-    be known to :func:`needed_precision` (with fewer coefficients the answer is not proved).
+    Returns ``proved=True`` only through the argument of the module docstring
+    (docs/method.md#congruences-sturm, #congruence-weights, #congruence-e2); otherwise ``proved=False``
+    and ``reason`` says why.  The pieces must be known to :func:`needed_precision` (with fewer
+    coefficients the answer is not proved).
     """
     if modulus == 0 or abs(modulus) < 2:
         return _not_proved(f"the modulus must be an integer of absolute value at least 2, not {modulus}")
@@ -354,19 +358,19 @@ def decide_congruence(pieces: list[Piece], modulus: int, level: int) -> Congruen
         wf = w - 2 * j
         zero = piece.series.is_zero()
         # The zero form: no negative-weight form but 0, and the characteristic-0 Sturm bound
-        # (MATH.md §3.2; §3.6 in half-integral weight, which lives on some Gamma_0(4N)).
+        # (docs/method.md#sturm-bound; #half-integral-weight in half-integral weight, which lives on some Gamma_0(4N)).
         sturm_ok = wf.denominator == 1 or level % 4 == 0
         if zero and (wf < 0 or (sturm_ok and piece.series.prec > sturm_bound(wf, level))):
             continue
         if wf.denominator != 1:
             return _not_proved(
                 f"piece {index} has half-integral weight {_frac_str(wf)}: congruences in half-integral "
-                "weight are not covered (MATH.md §3.6 gives no congruence bound)"
+                "weight are not covered (docs/method.md#claim-congruence)"
             )
         if not zero and piece.series.valuation < 0:
             return _not_proved(
                 f"piece {index} has a pole at infinity (q^{piece.series.valuation}): congruences with poles "
-                "are not covered (MATH.md §3.8, step 7)"
+                "are not covered (docs/method.md#unproven)"
             )
         try:
             chi = QuadraticCharacter(piece.kernel)
@@ -383,11 +387,12 @@ def decide_congruence(pieces: list[Piece], modulus: int, level: int) -> Congruen
             if (int(wf) % 2 == 1) != (not chi.is_even):
                 return _not_proved(
                     f"piece {index}: weight {wf} with character {chi.name} violates the parity condition "
-                    "(MATH.md §2.4), yet the series is nonzero: inconsistent input"
+                    "(docs/method.md#characters), yet the series is nonzero: inconsistent input"
                 )
             if wf == 0 and (piece.series.valuation > 0 or piece.series.poly.degree() > 0):
                 return _not_proved(
-                    f"piece {index} has weight 0 but is not constant: not a holomorphic modular form (MATH.md §10.7)"
+                    f"piece {index} has weight 0 but is not constant: not a holomorphic modular form "
+                    "(docs/method.md#poles-at-cusps)"
                 )
         key = (w, j, piece.kernel)
         if key in merged:
@@ -519,7 +524,8 @@ def _decide_prime_power(
         detail.update(proved=True, bound=own_bound, coefficients_compared=own_bound + 1)
         why = (
             "every piece is 0 mod "
-            f"{q} through the Sturm bound of its own weight (B <= {own_bound}, {group}, MATH.md §3.4)"
+            f"{q} through the Sturm bound of its own weight (B <= {own_bound}, {group}, "
+            "docs/method.md#congruences-sturm)"
         )
         detail["reason"] = why
         return _PrimePowerResult(detail, True, f"mod {q}: {why}", bound=own_bound)
@@ -532,7 +538,7 @@ def _decide_prime_power(
             labels = ", ".join(it.label() for it in active if it.j > 0)
             return fail(
                 f"{labels} contains E_2 and is not 0 mod {q} by itself; modulo {q} no modular form is "
-                "known to be congruent to E_2 (MATH.md §3.9: only mod p >= 5, mod 8 and mod 3)"
+                "known to be congruent to E_2 (docs/method.md#congruence-e2: only mod p >= 5, mod 8 and mod 3)"
             )
         detail["e2_replaced_by"] = f"E_{p + 1}" if sub == "E_{p+1}" else "1"
 
@@ -542,7 +548,7 @@ def _decide_prime_power(
         names = ", ".join(QuadraticCharacter(k).name for k in kernels)
         return fail(
             f"the pieces not 0 mod {q} carry different characters ({names}); no single space contains them, "
-            "and a mismatch between components does not refute a congruence (MATH.md §3.9)"
+            "and a mismatch between components does not refute a congruence (docs/method.md#congruence-e2)"
         )
     gens = _generators(p, e)
     effective: list[int] = []
@@ -557,7 +563,8 @@ def _decide_prime_power(
         gcd = math.gcd(*(g.weight for g in gens))
         return fail(
             f"the pieces not 0 mod {q} have weights {ws}, which differ by amounts not divisible by {gcd}; "
-            f"the multipliers congruent to 1 mod {q} are {multipliers_text} (MATH.md §3.5), so no common "
+            f"the multipliers congruent to 1 mod {q} are {multipliers_text} (docs/method.md#congruence-weights), "
+            "so no common "
             "weight is reachable"
         )
     big_b = sturm_bound(k_common, level)
@@ -579,7 +586,8 @@ def _decide_prime_power(
         if bad is not None:
             return fail(
                 f"{it.label()} has {p} in the denominator of its coefficient of q^{bad} "
-                f"({_frac_str(it.series[bad])}); the method needs {p}-integral pieces (MATH.md §3.4)",
+                f"({_frac_str(it.series[bad])}); the method needs {p}-integral pieces "
+                "(docs/method.md#congruences-sturm)",
                 weight=k_common,
                 bound=big_b,
             )
@@ -589,12 +597,12 @@ def _decide_prime_power(
     ctx: Any = fmpz_mod_poly_ctx(q)
     gen_series = [ctx(_eisenstein_mod(g.k, stop, q)).pow_trunc(g.power, stop) for g in gens]
     for g, s in zip(gens, gen_series, strict=True):
-        # Defence in depth: the multipliers must be 1 mod q through B (they are, by §3.5).
+        # Defence in depth: the multipliers must be 1 mod q through B (they are, by docs/method.md#congruence-weights).
         if any(int(c) != (1 if n == 0 else 0) for n, c in enumerate(_padded(s, stop))):
             return _inconsistent(detail, q, f"the multiplier {g.name()} is not 1 mod {q}")
     e2_sub = None
     if sub == "E_{p+1}":
-        # E_{p+1} is p-integral and = E_2 mod p (Kummer, MATH.md §3.9); checked through B anyway.
+        # E_{p+1} is p-integral and = E_2 mod p (Kummer, docs/method.md#congruence-e2); checked through B anyway.
         try:
             e2_sub = ctx(_eisenstein_mod(p + 1, stop, q))
         except ArithmeticError:
@@ -640,11 +648,11 @@ def _decide_prime_power(
 
     sub_text = ""
     if sub == "E_{p+1}":
-        sub_text = f"E_2 -> E_{p + 1} (= E_2 mod {p}, MATH.md §3.9); "
+        sub_text = f"E_2 -> E_{p + 1} (= E_2 mod {p}, docs/method.md#congruence-e2); "
     elif sub == "1":
-        sub_text = "E_2 -> 1 (E_2 = 1 mod 24, MATH.md §3.9); "
+        sub_text = "E_2 -> 1 (E_2 = 1 mod 24, docs/method.md#congruence-e2); "
     mult = sorted({u["multiplier"] for u in used if u["multiplier"] != "1"})
-    mult_text = f"multipliers {', '.join(mult)} (= 1 mod {q}, MATH.md §3.5); " if mult else ""
+    mult_text = f"multipliers {', '.join(mult)} (= 1 mod {q}, docs/method.md#congruence-weights); " if mult else ""
     vanish_text = f"{len(vanishing)} piece(s) 0 mod {q} by themselves; " if vanishing else ""
     bad_n = next((n for n, r in enumerate(g_res) if r != 0), None)
     if bad_n is not None:
@@ -657,7 +665,7 @@ def _decide_prime_power(
         )
     why = (
         f"{vanish_text}{sub_text}{mult_text}weight {k_common} on {group}: a_0..a_{big_b} = 0 mod {q} "
-        f"(Sturm bound B = {big_b}, MATH.md §3.4)"
+        f"(Sturm bound B = {big_b}, docs/method.md#congruences-sturm)"
     )
     detail.update(proved=True, reason=why)
     return _PrimePowerResult(detail, True, f"mod {q}: {why}", bound=big_b)

@@ -7,9 +7,9 @@
   formal symbol E_2 whose coefficients are modular forms, graded by weight and by
   character: ``{(w, j, kernel): f}`` stands for ``sum f * E_2^j`` with ``f`` in
   M_{w-2j}(Gamma_0(N), chi) where chi = (kernel / .) (a quadratic character; for
-  half-integral weight the character relative to the theta multiplier, MATH.md §3.6).
+  half-integral weight the character relative to the theta multiplier, docs/method.md#half-integral-weight).
   Nothing is divided: every piece is holomorphic on H (eta quotients have no zeros), and
-  proofs apply the Sturm or valence bound to each piece (MATH.md §3.2, §3.7, §7.3).
+  proofs apply the Sturm or valence bound to each piece (docs/method.md#sturm-bound, #poles-at-cusps, #quasimodular).
 
 Atom series are computed once per precision by an :class:`AtomTable` and reused.
 """
@@ -259,7 +259,7 @@ def graded_fraction(expr: ir.Expr, prec: int, table: AtomTable, chars: Character
 
 
 def _hecke_pieces(expr: ir.Hecke, prec: int, table: AtomTable) -> Graded:
-    """T_n (or U_n) of a modular form, at the form's own level and character (MATH.md §1.7)."""
+    """T_n (or U_n) of a modular form, at the form's own level and character (docs/method.md#hecke)."""
     import math
 
     from verifier.forms import registry
@@ -292,7 +292,7 @@ def _hecke_pieces(expr: ir.Hecke, prec: int, table: AtomTable) -> Graded:
 
 
 def graded_derivative(g: Graded, prec: int, table: AtomTable) -> Graded:
-    """D applied to sum f E_2^j, piece by piece (MATH.md §7.2).
+    """D applied to sum f E_2^j, piece by piece (docs/method.md#quasimodular).
 
     With k the weight of f and theta_k f = Df - (k/12) E_2 f (the Serre derivative, modular
     of weight k + 2, same character):
@@ -322,7 +322,7 @@ def _graded_atom(atom: ir.Atom, prec: int, table: AtomTable, chars: CharacterOf)
     if atom.scale == 1:
         return {(w, 1, 1): QSeries.constant(1, prec)}
     # E_2(d tau) = E_2(tau)/d + g_d with g_d = E_2(d tau) - E_2(tau)/d in M_2(Gamma_0(d))
-    # (MATH.md §1.3, §7.2).
+    # (docs/method.md#e2, #quasimodular).
     d = int(atom.scale)
     g = table.scaled("E2", (), d, prec) - table.scaled("E2", (), 1, prec).scale(Fraction(1, d))
     return {(w, 1, 1): QSeries.constant(Fraction(1, d), prec), (w, 0, 1): g}

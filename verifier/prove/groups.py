@@ -1,7 +1,8 @@
 """Gamma_0(N) and Gamma_1(N): indices, cusps, elliptic points, genus, dimensions, Sturm bounds.
 
-Formulas and check values: MATH.md §2.1-2.3 (index, cusps, elliptic points, genus),
-§3.2-3.3 (Sturm bounds), §6.1-6.2 (dimensions).
+Formulas: docs/method.md#index, #cusps, #elliptic-points-genus (index, cusps, elliptic points,
+genus), #sturm-bound, #gamma1-bound (Sturm bounds), #dimension-level-one, #dimension-gamma0
+(dimensions).
 """
 
 from __future__ import annotations
@@ -38,7 +39,7 @@ def index_gamma0(n: int) -> int:
 
 
 def index_gamma1(n: int) -> int:
-    """[SL2(Z) : Gamma_1(N)] = N^2 prod_{p | N} (1 - 1/p^2) (MATH.md §2.1).
+    """[SL2(Z) : Gamma_1(N)] = N^2 prod_{p | N} (1 - 1/p^2) (docs/method.md#index).
 
     This is the number of vectors (c, d) in (Z/N)^2 with gcd(c, d, N) = 1: the bottom rows
     of the cosets Gamma_1(N) gamma.
@@ -51,7 +52,7 @@ def index_gamma1(n: int) -> int:
 
 
 def index_gamma1_projective(n: int) -> int:
-    """bar m_1(N) = [PSL2(Z) : +-Gamma_1(N)] (MATH.md §2.1).
+    """bar m_1(N) = [PSL2(Z) : +-Gamma_1(N)] (docs/method.md#index).
 
     -I lies in Gamma_1(N) only for N <= 2, so for N >= 3 the image in PSL2(Z) has half the
     index of Gamma_1(N) in SL2(Z); for N = 1, 2 the two indices agree (1 and 3).
@@ -61,7 +62,7 @@ def index_gamma1_projective(n: int) -> int:
 
 
 def elliptic_points(n: int) -> tuple[int, int]:
-    """(epsilon_2, epsilon_3) of Gamma_0(N) (MATH.md §2.3).
+    """(epsilon_2, epsilon_3) of Gamma_0(N) (docs/method.md#elliptic-points-genus).
 
     The factors use the Kronecker symbols of the discriminants -4 and -3, which vanish at
     p = 2 and p = 3; (-1/p) would be wrong at p = 2.
@@ -102,7 +103,7 @@ class Cusp:
 
 
 def cusps(n: int) -> list[Cusp]:
-    """A complete set of inequivalent cusps of Gamma_0(N) (MATH.md §2.2).
+    """A complete set of inequivalent cusps of Gamma_0(N) (docs/method.md#cusps).
 
     Two cusps a/c, a'/c' (lowest terms) are Gamma_0(N)-equivalent iff gcd(c, N) = gcd(c', N) = d
     and a = a' mod gcd(d, N/d). So for each d | N there is one cusp per class
@@ -140,7 +141,7 @@ def genus(n: int) -> int:
 
 
 def dim_modular(k: int, n: int = 1) -> int:
-    """dim M_k(Gamma_0(N)) for the trivial character (MATH.md §6.2)."""
+    """dim M_k(Gamma_0(N)) for the trivial character (docs/method.md#dimension-gamma0)."""
     if k < 0 or k % 2:
         return 0
     if k == 0:
@@ -154,7 +155,7 @@ def dim_modular(k: int, n: int = 1) -> int:
 
 
 def dim_cusp(k: int, n: int = 1) -> int:
-    """dim S_k(Gamma_0(N)) for the trivial character (MATH.md §6.2)."""
+    """dim S_k(Gamma_0(N)) for the trivial character (docs/method.md#dimension-gamma0)."""
     if k <= 0 or k % 2:
         return 0
     if k == 2:
@@ -165,7 +166,7 @@ def dim_cusp(k: int, n: int = 1) -> int:
 def sturm_bound(k: Fraction | int, n: int = 1) -> int:
     """B(N, k) = floor(k m_0(N) / 12): a form in M_k(Gamma_0(N), chi) with a_0..a_B = 0 is 0.
 
-    MATH.md §3.2 (Sturm 1987); the comparison must include n = B.
+    docs/method.md#sturm-bound (Sturm 1987); the comparison must include n = B.
     """
     return math.floor(Fraction(k) * index_gamma0(n) / 12)
 
@@ -173,7 +174,7 @@ def sturm_bound(k: Fraction | int, n: int = 1) -> int:
 def sturm_bound_gamma1(k: Fraction | int, n: int = 1) -> int:
     """B_1(N, k) = floor(k bar m_1(N) / 12): a form in M_k(Gamma_1(N)) with a_0..a_B = 0 is 0.
 
-    MATH.md §3.3: needed when the form is not known to have a single character mod N, where the
+    docs/method.md#gamma1-bound: needed when the form is not known to have a single character mod N, where the
     Gamma_0(N) bound of :func:`sturm_bound` is not valid.
     """
     return math.floor(Fraction(k) * index_gamma1_projective(n) / 12)

@@ -1,13 +1,13 @@
 """Claims about spaces: ``f \\in M_k(\\Gamma_0(N), \\chi)``, ``f \\in S_k(...)``, ``\\dim M_k(...) = d``.
 
 Membership is proved from the weight, the level and character of every atom, and the
-orders at the cusps (Ligozat's formula for eta quotients, MATH.md §4.2–4.5; Eisenstein
+orders at the cusps (Ligozat's formula for eta quotients, docs/method.md#eta-modularity, #ligozat; Eisenstein
 series and theta series of quadratic forms are holomorphic at every cusp).  It is refuted
 only for reasons that hold whatever the level: a wrong weight or character of a nonzero
 form, a nonzero E_2-part, a non-integral exponent, a pole, a cusp order that is negative
 (or zero, for cusp forms) for a single eta quotient, or a nonzero constant term for a
 claimed cusp form.  A level that may be too large (the inferred level does not divide N)
-is ``unproven``: eta-quotient levels are sufficient, not necessary (§4.2).
+is ``unproven``: eta-quotient levels are sufficient, not necessary (docs/method.md#eta-modularity).
 """
 
 from __future__ import annotations
@@ -140,7 +140,7 @@ def decide_membership(prover: Prover, side: ir.Side, spec: SpaceSpec) -> Outcome
                 space,
                 "cusp-orders",
             )
-    # A nonzero form is in no zero space (MATH.md §6.2, trivial character, even weight).
+    # A nonzero form is in no zero space (docs/method.md#dimension-gamma0, trivial character, even weight).
     if (
         spec.group_kind == "Gamma0"
         and wanted == 1
@@ -192,7 +192,7 @@ def _single_eta(expr: ir.Expr) -> tuple[Any, ...] | None:
 
 
 def decide_dimension(spec: SpaceSpec, stated: int) -> Outcome:
-    """Decide ``\\dim spec = stated`` by the dimension formula (MATH.md §6.2)."""
+    """Decide ``\\dim spec = stated`` by the dimension formula (docs/method.md#dimension-gamma0)."""
     space = _space_dict(spec)
     k = spec.weight
     if spec.group_kind != "Gamma0" or (spec.character is not None and not spec.character.is_trivial):
@@ -221,7 +221,7 @@ def decide_dimension(spec: SpaceSpec, stated: int) -> Outcome:
 
 
 def decide_eigenform(prover: Prover, side: ir.Side) -> Outcome:
-    """``f \\text{ is a normalised eigenform}``: a_1 = 1 and T_n f = a_n f for all n (MATH.md §1.7)."""
+    """``f \\text{ is a normalised eigenform}``: a_1 = 1 and T_n f = a_n f for all n (docs/method.md#hecke)."""
     from verifier.prove.hecke import decide_normalised_eigenform, normalised_eigenform_input_precision
 
     kind = "eigenform"

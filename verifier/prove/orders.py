@@ -3,8 +3,8 @@
 Clearing denominators turns ``L = R`` into ``P = N_L D_R - N_R D_L = 0`` (see
 :mod:`verifier.prove.evaluate`).  Every monomial of ``P`` is a product of atoms, so its
 order at a cusp is the sum of the atoms' orders; a lower bound for every monomial is
-also one for every piece of ``P`` (MATH.md §3.7: ord_s(sum) >= min, ord_s(product) = sum).
-Eta quotients contribute their Ligozat orders (§4.3); Eisenstein series, Delta, theta
+also one for every piece of ``P`` (docs/method.md#poles-at-cusps: ord_s(sum) >= min, ord_s(product) = sum).
+Eta quotients contribute their Ligozat orders (docs/method.md#ligozat); Eisenstein series, Delta, theta
 series of quadratic forms and the formal E_2 contribute 0 (holomorphic at every cusp).
 
 Orders are in the local parameter of each cusp and depend only on its denominator d,

@@ -1,10 +1,10 @@
 """Decide a claim: prove it with a certificate, refute it with a witness, or say why not.
 
-Equalities of forms (MATH.md §3.8): clear denominators, so that ``L = R`` becomes
+Equalities of forms (docs/method.md#claim-identity): clear denominators, so that ``L = R`` becomes
 ``P = N_L D_R - N_R D_L = 0`` with ``P`` a polynomial in holomorphic (quasi)modular
 atoms; split ``P`` by weight and by power of E_2; each piece lies in
 ``M_{w-2j}(Gamma_0(N))`` and is zero iff its coefficients ``a_0 .. a_B`` vanish, with ``B``
-the Sturm bound (§3.2).  A refutation is then certain, and its witness is the first
+the Sturm bound (docs/method.md#sturm-bound).  A refutation is then certain, and its witness is the first
 exponent at which the author's two sides themselves differ.
 
 Printed expansions are claims about exactly the printed range; they are decided by
@@ -54,7 +54,7 @@ def claim_level(left: ir.Side, right: ir.Side) -> int:
     """The least common level of every atom of both sides (after rescaling).
 
     Raises :class:`verifier.forms.registry.NotModular` for an atom modular on no Gamma_0(N).
-    A claim with a half-integral weight is on some Gamma_0(4N) (MATH.md §3.6).
+    A claim with a half-integral weight is on some Gamma_0(4N) (docs/method.md#half-integral-weight).
     """
     level = 1
     half = False
@@ -84,9 +84,9 @@ class Setup:
     def bound(self, weight: Fraction) -> int:
         """Largest n to compare for a piece of this weight.
 
-        Holomorphic at every cusp: the Sturm bound floor(k m / 12) (MATH.md §3.2, §3.6).
+        Holomorphic at every cusp: the Sturm bound floor(k m / 12) (docs/method.md#sturm-bound, #half-integral-weight).
         Otherwise the valence bound floor(k m / 12 - sum_{s != inf} L_s) with L_s the
-        lower bounds of the orders, each cusp c/d counted phi(gcd(d, N/d)) times (§3.7).
+        lower bounds of the orders, each cusp c/d counted phi(gcd(d, N/d)) times (docs/method.md#poles-at-cusps).
         """
         m = groups.index_gamma0(self.level)
         if not self.has_poles:

@@ -9,13 +9,14 @@ escapes every piece of text it emits.
 from __future__ import annotations
 
 import re
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
 
 from markupsafe import Markup, escape
 
 from verifier import __version__
+from verifier import method as method_notes
 from verifier.api import ClaimResult, Report
 from verifier.diagnostics import CODES, Diagnostic
 from verifier.report.coefficients import Row, table_rows
@@ -302,6 +303,8 @@ class ClaimView:
     table: list[Row]
     table_is_witness: bool
     suggestion: str | None
+    # Sections of docs/method.md behind this claim: (anchor, label, whether the page carries it).
+    method_links: list[tuple[str, str, bool]] = field(default_factory=list)
 
 
 def _where(c: ClaimResult) -> str:
@@ -358,7 +361,26 @@ def _view(index: int, c: ClaimResult) -> ClaimView:
         table=table_rows(c),
         table_is_witness=o.verdict != "refuted",
         suggestion=suggestion if isinstance(suggestion, str) and suggestion else None,
+        method_links=_method_links(o),
     )
+
+
+def _method_links(o: Any) -> list[tuple[str, str, bool]]:
+    """The method-notes sections for a claim's kind, proof method and code, without repeats."""
+    anchors: list[str] = []
+    for anchor in (
+        method_notes.for_kind(o.kind),
+        method_notes.for_method(o.method),
+        method_notes.for_code(o.code),
+    ):
+        if anchor is not None and anchor not in anchors:
+            anchors.append(anchor)
+    links = []
+    for anchor in anchors:
+        sec = method_notes.section(anchor)
+        label = f"{sec.title} ({sec.reference})" if sec is not None else method_notes.reference(anchor)
+        links.append((anchor, label, sec is not None))
+    return links
 
 
 def _diagnostic_explanation(d: Diagnostic) -> str:
@@ -381,6 +403,10 @@ def render(report: Report, title: str | None = None) -> str:
     template = env.get_template("report.html.j2")
     claims = [_view(i, c) for i, c in enumerate(report.claims, start=1)]
     files = report.files or sorted({c.location.file for c in report.claims})
+    cited: list[str] = []
+    for view in claims:
+        cited += [anchor for anchor, _, present in view.method_links if present and anchor not in cited]
+    method_sections = [s for s in (method_notes.section(a) for a in cited) if s is not None]
     return template.render(
         title=title or ("qreferee report: " + ", ".join(files) if files else "qreferee report"),
         version=__version__,
@@ -391,4 +417,6 @@ def render(report: Report, title: str | None = None) -> str:
         claims=claims,
         diagnostics=report.diagnostics,
         caution=CAUTION,
+        method_sections=method_sections,
+        method_doc=method_notes.DOC,
     )

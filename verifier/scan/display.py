@@ -32,7 +32,7 @@ _INNER_ENV = re.compile(r"\\(begin|end)\s*\{(aligned|gathered|split|multlined)\}
 _MATHCAL_O = re.compile(r"\\(mathcal|mathrm|mathit)\s*(\{\s*O\s*\}|O)")
 _FRAC_DIGITS = re.compile(r"\\([dt]?frac)\s*(\d)\s*(\d)")
 _EMPTY_GROUP = re.compile(r"\{\s*\}")
-# The derivative D = q d/dq = (2 pi i)^{-1} d/dtau, however it is spelled (MATH.md §1.5).
+# The derivative D = q d/dq = (2 pi i)^{-1} d/dtau, however it is spelled (docs/method.md#derivatives).
 _DERIVATIVE = re.compile(
     r"q\s*\\[dt]?frac\s*\{\s*d\s*\}\s*\{\s*d\s*q\s*\}"
     r"|\\[dt]?frac\s*\{\s*1\s*\}\s*\{\s*2\s*\\pi\s*i\s*\}\s*\\[dt]?frac\s*\{\s*d\s*\}\s*\{\s*d\s*\\tau\s*\}"
