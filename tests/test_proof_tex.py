@@ -10,7 +10,6 @@ import sys
 from pathlib import Path
 
 import pytest
-
 from verifier import check_text
 from verifier.recheck.sexpr import parse
 from verifier.report import proof_tex
@@ -22,7 +21,8 @@ E_4^2 = E_8
 \end{equation}
 
 %@claim name=quotient
-\[ \frac{\eta(\tau)^{16}\eta(4\tau)^8}{\eta(2\tau)^{24}} + 16\,\frac{\eta(\tau)^8\eta(4\tau)^{16}}{\eta(2\tau)^{24}} = 1 \]
+\[ \frac{\eta(\tau)^{16}\eta(4\tau)^8}{\eta(2\tau)^{24}}
+   + 16\,\frac{\eta(\tau)^8\eta(4\tau)^{16}}{\eta(2\tau)^{24}} = 1 \]
 
 %@claim
 \[ \partial_4 E_4 = -\frac{1}{3}E_6 \]
@@ -50,9 +50,7 @@ def test_paragraphs_and_bibliography() -> None:
 
 
 def test_escaping() -> None:
-    assert proof_tex.escape("a_b & 50% #1 {x} ~ \\ ≥") == (
-        "a\\_b \\& 50\\% \\#1 \\{x\\} $\\sim$ $\\backslash$ $\\geq$"
-    )
+    assert proof_tex.escape("a_b & 50% #1 {x} ~ \\ ≥") == ("a\\_b \\& 50\\% \\#1 \\{x\\} $\\sim$ $\\backslash$ $\\geq$")
 
 
 @pytest.mark.skipif(shutil.which("pdflatex") is None, reason="pdflatex is not installed (CI installs it)")

@@ -14,7 +14,6 @@ from pathlib import Path
 from typing import Any
 
 import pytest
-
 from verifier import check_path, check_text
 from verifier.recheck import arith, atoms
 from verifier.recheck.check import CONFIRMED, FAILED, NOT_RECHECKED, recheck
@@ -35,7 +34,8 @@ E_{12} = \frac{441}{691}E_4^3 + \frac{250}{691}E_6^2
 \[ \theta(\tau)^4 = \frac{\eta(\tau)^8}{\eta(2\tau)^4} + 16\,\frac{\eta(4\tau)^8}{\eta(2\tau)^4} \]
 
 %@claim
-\[ \frac{\eta(\tau)^{16}\eta(4\tau)^8}{\eta(2\tau)^{24}} + 16\,\frac{\eta(\tau)^8\eta(4\tau)^{16}}{\eta(2\tau)^{24}} = 1 \]
+\[ \frac{\eta(\tau)^{16}\eta(4\tau)^8}{\eta(2\tau)^{24}}
+   + 16\,\frac{\eta(\tau)^8\eta(4\tau)^{16}}{\eta(2\tau)^{24}} = 1 \]
 
 %@claim
 \[ \partial_4 E_4 = -\frac{1}{3}E_6 \]
