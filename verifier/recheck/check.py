@@ -204,19 +204,17 @@ def _forms(cert: dict[str, Any], method: str) -> Result:
         reasons.append(f"index of Gamma_0({level}): certificate {cert.get('index')}, recomputed {m}")
     # Lower bounds of the orders at the cusps other than infinity (c = level is infinity).
     cusp_bounds: dict[int, Fraction] = {}
-    if not (atoms.has_e2 or atoms.has_deriv) or all(
-        all(atoms.order_at(a, level, c) >= 0 for c in arith.divisors(level)) for a in claim.atom_list
-    ):
+    holomorphic = all(atoms.order_at(a, level, c) >= 0 for a in claim.atom_list for c in arith.divisors(level))
+    if not holomorphic:
+        # Poles at cusps other than infinity: bound the orders of the cleared difference.
+        if atoms.has_e2 or atoms.has_deriv:
+            raise Unsupported("E_2 or derivatives together with forms that have poles at cusps")
         for c in arith.divisors(level):
             if c == level:
                 continue
             (nl, dl), (nr, dr) = (_orders(t, atoms, level, c) for t in claim.trees)
             cusp_bounds[c] = min(nl + dr, nr + dl)
-    else:
-        raise Unsupported("derivatives or E_2 together with forms that have poles at cusps")
     poles = any(v < 0 for v in cusp_bounds.values())
-    if poles and (atoms.has_e2 or atoms.has_deriv):
-        raise Unsupported("E_2 together with poles at cusps")
     if poles != (method == "valence"):
         reasons.append(
             f"method: certificate {method}, but the orders at the cusps "
