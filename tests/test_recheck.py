@@ -177,15 +177,15 @@ def test_constructs_it_does_not_implement_are_named() -> None:
         "format": 1,
         "method": "sturm",
         "relation": "=",
-        "left": {"expr": "(T 2 (E 4 1))", "truncation": None},
-        "right": {"expr": "(* 9 (E 4 1))", "truncation": None},
+        "left": {"expr": "(Echar 2 1 -3 1)", "truncation": None},
+        "right": {"expr": "(Echar 2 1 -3 1)", "truncation": None},
         "space": {"weight": "4", "level": 1, "character": 1},
         "pieces": [],
         "bound": 0,
         "index": 1,
     }
     result = recheck(cert)
-    assert result.status == NOT_RECHECKED and "T" in result.reasons[0]
+    assert result.status == NOT_RECHECKED and "Echar" in result.reasons[0]
     assert recheck({"format": 1, "method": "cusp-orders"}).status == NOT_RECHECKED
     assert recheck({"format": 7}).status == NOT_RECHECKED
     assert recheck("nonsense").status == FAILED
@@ -278,3 +278,16 @@ def test_cli_check_with_recheck(tmp_path: Path) -> None:
     assert run.returncode == 0
     assert json.loads(run.stdout)["summary"]["proved"] == 6
     assert "6 confirmed" in run.stderr
+
+
+def test_hecke_operators_are_rechecked() -> None:
+    # T_2 Delta = tau(2) Delta = -24 Delta (Ramanujan; Serre, A Course in Arithmetic, VII.5) and
+    # T_3 E_4 = sigma_3(3) E_4 = 28 E_4 (eigenvalues of Eisenstein series: common practice).
+    text = "%@claim\n\\[ T_2 \\Delta = -24\\Delta \\]\n\n%@claim\n\\[ T_3 E_4 = 28 E_4 \\]\n"
+    data = json.loads(json.dumps(check_text(text, "h.tex").to_dict()))
+    for claim in data["claims"]:
+        assert claim["verdict"] == "proved", claim["message"]
+        assert recheck(claim["certificate"]).status == CONFIRMED
+        cert = copy.deepcopy(claim["certificate"])
+        cert["right"]["expr"] = cert["right"]["expr"].replace("24", "23").replace("28", "27")
+        assert recheck(cert).status == FAILED

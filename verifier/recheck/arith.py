@@ -172,3 +172,24 @@ def bernoulli(k: int) -> Fraction:
 def kernel_product(a: int, b: int) -> int:
     """The kernel of (a/.)(b/.)."""
     return squarefree_part(Fraction(a * b))
+
+
+def kronecker(a: int, n: int) -> int:
+    """The Kronecker symbol (a/n) for n >= 1 (the 2-part by (a/2) = 0, 1 for a = +-1 mod 8, -1 for +-3)."""
+    out = 1
+    for p, e in factor(n).items():
+        if p == 2:
+            s = 0 if a % 2 == 0 else (1 if a % 8 in (1, 7) else -1)
+        else:
+            r = a % p
+            s = 0 if r == 0 else (1 if pow(r, (p - 1) // 2, p) == 1 else -1)  # Euler's criterion
+        out *= s**e
+    return out
+
+
+def character_value(kernel: int, d: int, level: int) -> int:
+    """chi(d) for the character n -> (D/n) of kernel D (discriminant D or 4D), 0 when gcd(d, N) > 1."""
+    if math.gcd(d, level) > 1:
+        return 0
+    disc = kernel if kernel % 4 == 1 else 4 * kernel
+    return kronecker(disc, d)

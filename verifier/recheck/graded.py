@@ -113,7 +113,11 @@ class Atoms:
         if head == "q" and len(args) == 1:
             _int(args[0], "an exponent of q")
             return
-        if head in ("T", "U", "Echar"):
+        if head in ("T", "U") and len(args) == 2:
+            _int(args[0], "the index of a Hecke operator")
+            self.walk(args[1], out)
+            return
+        if head == "Echar":
             raise Unsupported(f"the re-checker does not implement {head}")
         raise Unsupported(f"unknown operator {head}")
 
@@ -311,7 +315,43 @@ class Evaluator:
             if d is None:
                 return self.deriv(n), None
             return g_add(g_mul(self.deriv(n), d), g_mul(n, self.deriv(d)), -1), g_mul(d, d)
+        if head in ("T", "U"):
+            return self.hecke(head, int(args[0]), args[1]), None
         raise Unsupported(f"unknown operator {head}")
+
+    def hecke(self, kind: str, n: int, tree: Any) -> Graded:
+        """T_n or U_n of one modular form, at the form's own level and character:
+        a_m(T_n f) = sum_{d | gcd(m, n)} chi(d) d^(k-1) a_(mn/d^2) (Diamond-Shurman, A First
+        Course in Modular Forms, Prop. 5.3.1), and a_m(U_n f) = a_(mn)."""
+        found: list[Any] = []
+        self.atoms.walk(tree, found)
+        level = 1
+        for a in found:
+            m = self.atoms.level(a)
+            level = level * m // math.gcd(level, m)
+        inner = Evaluator(self.atoms, level, max(self.prec - 1, 0) * n + 1)
+        num, den = inner.side(tree)
+        if den is not None or len(num) != 1:
+            raise Unsupported("a Hecke operator on anything but one modular form of one weight and character")
+        ((w, j, kernel), f), *_ = num.items()
+        if j or w.denominator != 1:
+            raise Unsupported("a Hecke operator on a quasimodular form or a form of half-integral weight")
+        if kind == "U" and level % n:
+            raise Unsupported(f"U_{n} with {n} not dividing the level {level}")
+        k = int(w)
+        out = []
+        for m in range(self.prec):
+            if kind == "U":
+                out.append(f[m * n])
+                continue
+            total = Fraction(0)
+            g = math.gcd(m, n) if m else n
+            for d in arith.divisors(g):
+                chi = arith.character_value(kernel, d, level)
+                if chi:
+                    total += chi * Fraction(d) ** (k - 1) * f[m * n // (d * d)]
+            out.append(total)
+        return {(w, 0, kernel): Series(0, out, self.prec)}
 
 
 def _times(a: Graded | None, b: Graded | None) -> Graded:
