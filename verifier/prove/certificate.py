@@ -26,7 +26,12 @@ Fields (``format`` 1):
 * ``coefficients``: ``{"side": "left", "from": a, "to": b, "sha256": h, "values": [...]}``:
   the left side's coefficients of q^a .. q^b; h is the SHA-256 of the UTF-8 text made of
   one line ``n:c`` per exponent (c as ``p`` or ``p/q``, lowest terms); ``values`` lists
-  them when there are at most :data:`MAX_LISTED` (for a witness: the two values at n).
+  them when there are at most :data:`MAX_LISTED`;
+* ``witness`` (method ``witness``): ``{"n", "left", "right"}``, the exponent (in the
+  certificate's exponents) and the two different exact values there;
+* ``sturm``/``valence`` certificates carry ``space``, ``pieces``, ``bound``, ``index`` (and
+  ``cusp_order_bounds``) and ``coefficients``; ``expansion`` carries ``coefficients``;
+  other methods carry only ``method``, ``kind``, ``space_used`` and ``bound``.
 
 Expressions (S-expressions, written as text):
 
