@@ -857,6 +857,46 @@ def section_level(quick: bool) -> bool:
 # ---------------------------------------------------------------------------------
 
 
+# ---------------------------------------------------------------------------------
+# Section 5: the independent re-check against the check itself
+# ---------------------------------------------------------------------------------
+
+
+def section_recheck() -> bool:
+    """Time ``check`` and ``recheck`` of the sample manuscripts; the ratio should stay <= 5."""
+    import json as _json
+
+    from verifier.api import check_path
+    from verifier.recheck.check import FAILED
+    from verifier.recheck.run import recheck_report
+
+    print("\n== 5. independent re-check of the sample manuscripts, against the check ==")
+    samples = [_REPO / "sample_docs" / "paper.tex", _REPO / "sample_docs" / "note.md"]
+
+    def check_all() -> list[dict[str, Any]]:
+        # A fresh run each time (each check_path has its own atom table), as the command does.
+        return [_json.loads(_json.dumps(check_path(p).to_dict())) for p in samples]
+
+    def recheck_all(reports: list[dict[str, Any]]) -> list[Any]:
+        return [recheck_report(r) for r in reports]
+
+    reports, t_check_first = run_once(check_all)
+    done, t_re_first = run_once(lambda: recheck_all(reports))
+    t_check, t_re = best_pair(check_all, t_check_first, lambda: recheck_all(reports), t_re_first, 1.0, 10)
+    counts = {"confirmed": 0, "not-rechecked": 0, "recheck-failed": 0}
+    for d in done:
+        for status in counts:
+            counts[status] += d.count(status)
+    header = f"{'check s':>9}{'recheck s':>11}{'recheck/check':>15}   certificates"
+    print(header)
+    print("-" * len(header))
+    print(f"{fmt_s(t_check):>9}{fmt_s(t_re):>11}{fmt_ratio(t_re / t_check):>15}   {counts}", flush=True)
+    if counts["recheck-failed"]:
+        raise Mismatch(f"{counts['recheck-failed']} certificate(s) of the sample manuscripts failed the re-check")
+    assert FAILED == "recheck-failed"
+    return True
+
+
 def main(argv: list[str] | None = None) -> int:
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     ap.add_argument("--quick", action="store_true", help="sizes 10^3 and 10^4 only, smaller manuscript (~30 s)")
@@ -872,7 +912,9 @@ def main(argv: list[str] | None = None) -> int:
         default=None,
         help="seconds allowed for all pure-Python cells together (default unlimited, 15 with --quick)",
     )
-    ap.add_argument("--skip", default="", help="comma-separated sections to skip: engine, scan, pipeline, level")
+    ap.add_argument(
+        "--skip", default="", help="comma-separated sections to skip: engine, scan, pipeline, level, recheck"
+    )
     args = ap.parse_args(argv)
     quick = args.quick
     skip = {s.strip() for s in args.skip.split(",") if s.strip()}
@@ -887,6 +929,7 @@ def main(argv: list[str] | None = None) -> int:
         ("scan", lambda: section_scan([500, 2000] if quick else [2000, 8000])),
         ("pipeline", lambda: section_pipeline(150 if quick else 600)),
         ("level", lambda: section_level(quick)),
+        ("recheck", section_recheck),
     ]
     for name, run in sections:
         if name in skip:

@@ -34,6 +34,7 @@ from verifier.parse import ast
 from verifier.parse.grammar import ParseFailure, parse_claim, parse_definition, parse_expression
 from verifier.parse.spaces import dimension_prefix, parse_space, split_membership
 from verifier.prove.arithmetic import ArithmeticClaim, decide_arithmetic
+from verifier.prove.certificate import minimal as certificate_minimal
 from verifier.prove.evaluate import AtomTable, laurent_to
 from verifier.prove.membership import decide_dimension, decide_eigenform, decide_membership
 from verifier.prove.prover import DEFAULT_MAX_TERMS, Outcome, Prover, claim_level
@@ -93,7 +94,17 @@ class ClaimResult:
             "table": o.table,
             "suggestion": o.suggestion,
             "reading": self.reading,
+            "certificate": self.certificate(),
         }
+
+    def certificate(self) -> dict[str, Any] | None:
+        """The certificate of a proved claim as data (None for other verdicts)."""
+        o = self.outcome
+        if o.verdict != "proved":
+            return None
+        if o.certificate is not None:
+            return o.certificate
+        return certificate_minimal(o.method, o.kind, o.space, o.bound)
 
 
 @dataclass

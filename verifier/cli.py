@@ -34,7 +34,8 @@ coefficients compared), 'refuted' with the first coefficient that differs,
 
 EPILOG = """\
 exit status: 0 every claim proved; 1 some claim refuted or unproven;
-2 some claim has an error or a file cannot be read; 3 internal error.
+2 some claim has an error or a file cannot be read; 3 internal error;
+4 (with --recheck, and for 'recheck') a certificate failed the independent re-check.
 
 examples:
   qreferee check paper.tex
@@ -42,6 +43,8 @@ examples:
   qreferee check paper.tex --format html -o report.html
   qreferee check paper.tex --format sarif -o qreferee.sarif
   qreferee check paper.tex --annotate paper-checked.tex
+  qreferee check paper.tex --format json -o report.json && qreferee recheck report.json
+  qreferee check paper.tex --proof-tex proofs.tex
   qreferee explain mixed-weight
 """
 
@@ -116,6 +119,27 @@ def build_parser() -> argparse.ArgumentParser:
         "--jobs", type=int, default=1, metavar="N", help="decide claims in N processes (same results as one)"
     )
     check.add_argument("-v", "--verbose", action="store_true", help="also print each claim as it was read")
+    check.add_argument(
+        "--recheck",
+        action="store_true",
+        help="also re-verify every certificate with the independent checker (as 'qreferee recheck'); "
+        "a certificate that does not hold up makes the exit status 4",
+    )
+    check.add_argument(
+        "--proof-tex",
+        metavar="OUT",
+        default=None,
+        help="also write OUT, a LaTeX file with one proof paragraph per proved claim and a bibliography",
+    )
+    recheck = sub.add_parser(
+        "recheck",
+        help="re-verify the certificates of a JSON report with an independent checker",
+        description="Re-verify every certificate of a report written by 'qreferee check --format json', "
+        "with a separate implementation (exact rationals, other algorithms). Exit status: 0 all confirmed; "
+        "1 some not rechecked (construct or method not implemented); 4 some recheck-failed; 2 unreadable report.",
+    )
+    recheck.add_argument("report", metavar="REPORT.json", help="a JSON report of qreferee check")
+    recheck.add_argument("--format", choices=("text", "json"), default="text", help="output format")
     explain = sub.add_parser("explain", help="describe a diagnostic code")
     explain.add_argument("code", nargs="?", help="a code such as mixed-weight; none lists all codes")
     for name in PLUGIN_MODULES:
@@ -138,6 +162,8 @@ def main(argv: Sequence[str] | None = None) -> int:
         return EXIT_INPUT_ERROR
     if args.command == "explain":
         return _explain(args.code)
+    if args.command == "recheck":
+        return _recheck(args.report, args.format)
     func = getattr(args, "func", None)
     try:
         if callable(func):
@@ -173,6 +199,31 @@ def _explain(code: str | None) -> int:
     return EXIT_ALL_PROVED
 
 
+def _recheck(path: str, fmt: str) -> int:
+    from verifier.recheck.reader import Unreadable, read_report
+    from verifier.recheck.run import EXIT_UNREADABLE, recheck_report, render_json, render_text
+
+    try:
+        data = read_report(path)
+    except Unreadable as exc:
+        print(f"qreferee: {exc}", file=sys.stderr)
+        return EXIT_UNREADABLE
+    done = recheck_report(data)
+    sys.stdout.write(render_json(done) if fmt == "json" else render_text(done))
+    return done.exit_code
+
+
+def _recheck_combined(report: Report, to_stdout: bool) -> int | None:
+    """Re-check a fresh report through its JSON form; the exit status if a certificate failed."""
+    import json
+
+    from verifier.recheck.run import EXIT_FAILED, recheck_report, render_text
+
+    done = recheck_report(json.loads(json.dumps(report.to_dict())))
+    (sys.stdout if to_stdout else sys.stderr).write(render_text(done))
+    return EXIT_FAILED if done.exit_code == EXIT_FAILED else None
+
+
 def _check(args: argparse.Namespace) -> int:
     from verifier.api import Report, check_path
     from verifier.prove.prover import DEFAULT_MAX_TERMS
@@ -180,7 +231,7 @@ def _check(args: argparse.Namespace) -> int:
     if args.annotate is not None and len(args.files) != 1:
         raise UsageError("--annotate takes exactly one manuscript")
     inputs = [Path(f) for f in args.files]
-    targets = [Path(t) for t in (args.output, args.annotate) if t is not None and t != "-"]
+    targets = [Path(t) for t in (args.output, args.annotate, args.proof_tex) if t is not None and t != "-"]
     _refuse_inputs(targets, inputs)
     if args.output is not None and args.annotate is not None and _same_file(Path(args.output), Path(args.annotate)):
         raise UsageError("--output and --annotate name the same file")
@@ -199,11 +250,20 @@ def _check(args: argparse.Namespace) -> int:
 
     if args.annotate is not None and annotate_source is not None:
         _annotate(Path(args.files[0]), annotate_source, Path(args.annotate), combined)
+    if args.proof_tex is not None:
+        from verifier.report import proof_tex
+
+        write_atomic(Path(args.proof_tex), proof_tex.render(combined).encode("utf-8"))
     rendered = render_report(combined, args.format, args.verbose)
-    if args.output is None or args.output == "-":
+    to_stdout = args.output is None or args.output == "-"
+    if to_stdout:
         sys.stdout.write(rendered)
     else:
         write_atomic(Path(args.output), rendered.encode("utf-8"))
+    if args.recheck:
+        failed = _recheck_combined(combined, to_stdout and args.format == "text")
+        if failed is not None:
+            return failed
     return combined.exit_code
 
 

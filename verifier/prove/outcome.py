@@ -138,6 +138,8 @@ class Outcome:
     table: list[list[Any]] = field(default_factory=list)
     suggestion: str | None = None  # a corrected claim, when one is known
     relation: str = "="  # "=" (also for congruences) or "!="
+    # For proved claims: the certificate as data (see :mod:`verifier.prove.certificate`).
+    certificate: dict[str, Any] | None = None
 
     def __post_init__(self) -> None:
         if self.kind == "inequality":

@@ -21,7 +21,7 @@ from typing import Any
 from verifier.elaborate import ir
 from verifier.forms import registry
 from verifier.forms.characters import QuadraticCharacter
-from verifier.prove import groups, orders
+from verifier.prove import certificate, groups, orders
 from verifier.prove.evaluate import (
     AtomTable,
     BudgetExceeded,
@@ -234,6 +234,7 @@ class Prover:
                 code="unsupported",
             )
         components: list[dict[str, Any]] = []
+        pieces: list[dict[str, Any]] = []
         differing: list[tuple[Fraction, int, int]] = []
         terms = 0
         for (w, j, kernel), series in sorted(p.items(), key=lambda kv: (kv[0][0], -kv[0][1], kv[0][2])):
@@ -255,6 +256,7 @@ class Prover:
             if start < 0:
                 comp["from"] = start
             components.append(comp)
+            pieces.append({"weight": _frac_str(wt), "e2_power": j, "character": kernel, "bound": b, "from": start})
             if n is not None:
                 differing.append((wt, j, n))
         wl, wr = left.expr.typ.weight, right.expr.typ.weight
@@ -284,7 +286,7 @@ class Prover:
         if not differing:
             verdict = "proved" if kind == "equality" else "refuted"
             text = "equal" if kind == "equality" else "the two sides are equal"
-            return Outcome(
+            outcome = Outcome(
                 verdict,
                 kind,
                 f"{text} in {_space_text(proof_space)}: {how}",
@@ -294,6 +296,27 @@ class Prover:
                 terms,
                 components=components,
             )
+            if verdict == "proved":
+                kernels = sorted({p["character"] for p in pieces if Fraction(p["weight"]) == top})
+                facts: dict[str, Any] = {
+                    "space": {
+                        "weight": _wstr(weight),
+                        "level": level,
+                        "character": kernels[0] if len(kernels) == 1 else (kernels or 1),
+                        "proof_weight": _frac_str(weight_p),
+                        "cleared_weight": _frac_str(cleared),
+                    },
+                    "pieces": pieces,
+                    "bound": bound,
+                    "index": groups.index_gamma0(level),
+                }
+                if setup.has_poles:
+                    facts["cusp_order_bounds"] = {str(d): _frac_str(v) for d, v in setup.bounds.items() if d != level}
+                coefficients = self._coefficients(left, bound + 1)
+                if coefficients is not None:
+                    facts["coefficients"] = coefficients
+                outcome.certificate = certificate.make(method, "=", left, right, self.unit, **facts)
+            return outcome
         self._last_table = []
         witness = self._witness(left, right, need)
         notes = ""
@@ -322,10 +345,29 @@ class Prover:
         msg = f"coefficients of q^{self._exp(n_w)} differ: left {_frac_str(left_c)}, right {_frac_str(right_c)}{notes}"
         fd = {"n": self._exponent(n_w), "left": _frac_str(left_c), "right": _frac_str(right_c)}
         verdict = "refuted" if kind == "equality" else "proved"
+        cert = None
         if kind == "inequality":
             msg = "the sides differ: " + msg
             method = "witness"
-        return Outcome(verdict, kind, msg, space, method, bound, terms, fd, components, table=self._last_table)
+            cert = certificate.make(
+                "witness", "!=", left, right, self.unit, witness=self._witness_record(n_w, left_c, right_c)
+            )
+        return Outcome(
+            verdict, kind, msg, space, method, bound, terms, fd, components, table=self._last_table, certificate=cert
+        )
+
+    def _coefficients(self, side: ir.Side, stop: int) -> dict[str, Any] | None:
+        """The certificate's record of a side's coefficients below q^stop (None over budget)."""
+        try:
+            a = laurent_to(side.expr, stop, self.table, self.max_terms * 2)
+        except BudgetExceeded:
+            return None
+        start = min(0, a.valuation)
+        return certificate.coefficient_record(start, a.coefficients(start, stop))
+
+    @staticmethod
+    def _witness_record(n: int, left: Fraction, right: Fraction) -> dict[str, Any]:
+        return {"n": n, "left": _frac_str(left), "right": _frac_str(right)}
 
     def _cleared(
         self, left: ir.Side, right: ir.Side, need: int, chars: CharacterOf
@@ -418,6 +460,9 @@ class Prover:
                 fd,
                 table=table,
                 relation="!=",
+                certificate=certificate.make(
+                    "witness", "!=", left, right, self.unit, witness=self._witness_record(n, a[n], b[n])
+                ),
             )
         if not exact_range:
             # A printed polynomial with no \cdots and no O(...): it claims every coefficient.
@@ -444,6 +489,14 @@ class Prover:
                 "expansion",
                 None,
                 terms,
+                certificate=certificate.make(
+                    "expansion",
+                    "=",
+                    left,
+                    right,
+                    self.unit,
+                    coefficients=certificate.coefficient_record(start, a.coefficients(start, stop)),
+                ),
             )
         return Outcome(
             "refuted", "prefix", f"the expansions agree on {rng}", space, "expansion", None, terms, relation="!="

@@ -1,0 +1,89 @@
+"""``check --proof-tex``: a LaTeX paragraph per proved claim, citing the theorems used, and
+a file that pdflatex compiles; and the ``certificate`` field of the JSON report."""
+
+from __future__ import annotations
+
+import json
+import shutil
+import subprocess
+import sys
+from pathlib import Path
+
+import pytest
+from verifier import check_text
+from verifier.recheck.sexpr import parse
+from verifier.report import proof_tex
+
+MANUSCRIPT = r"""
+%@claim
+\begin{equation}\label{eq:e8}
+E_4^2 = E_8
+\end{equation}
+
+%@claim name=quotient
+\[ \frac{\eta(\tau)^{16}\eta(4\tau)^8}{\eta(2\tau)^{24}}
+   + 16\,\frac{\eta(\tau)^8\eta(4\tau)^{16}}{\eta(2\tau)^{24}} = 1 \]
+
+%@claim
+\[ \partial_4 E_4 = -\frac{1}{3}E_6 \]
+
+%@claim
+\[ E_4 = 1 + 240q + 2160q^2 + \cdots \]
+
+%@claim
+\[ E_4^2 = E_{12} \]
+"""
+# E_4^2 = E_8 (dim M_8 = 1): Serre, A Course in Arithmetic, VII.3 (from memory); the level-4
+# identity: Koehler, Eta Products and Theta Series Identities, 2011 (from memory); Ramanujan's
+# theta_4 E_4 = -E_6/3: Zagier, "Elliptic modular forms and their applications" (from memory).
+
+
+def test_paragraphs_and_bibliography() -> None:
+    tex = proof_tex.render(check_text(MANUSCRIPT, "m.tex"))
+    assert "Both sides of \\eqref{eq:e8} lie in $M_{8}(\\mathrm{SL}_2(\\mathbb{Z}))$" in tex
+    assert "Sturm bound is 0" in tex
+    assert tex.count("\\paragraph{") == 4  # the refuted E_4^2 = E_12 gets none
+    for key in ("sturm", "valence", "ligozat", "newman", "kaneko-zagier"):
+        assert f"\\bibitem{{{key}}}" in tex and f"\\cite{{{key}}}" in tex
+    assert "Lecture Notes in Math.~1240" in tex  # Sturm 1987
+    assert "\\texttt{quotient}" in tex
+
+
+def test_escaping() -> None:
+    assert proof_tex.escape("a_b & 50% #1 {x} ~ \\ ≥") == ("a\\_b \\& 50\\% \\#1 \\{x\\} $\\sim$ $\\backslash$ $\\geq$")
+
+
+@pytest.mark.skipif(shutil.which("pdflatex") is None, reason="pdflatex is not installed (CI installs it)")
+def test_the_file_compiles_with_pdflatex(tmp_path: Path) -> None:
+    src = tmp_path / "m.tex"
+    src.write_text(MANUSCRIPT)
+    out = tmp_path / "proofs.tex"
+    run = subprocess.run(
+        [sys.executable, "-m", "verifier", "check", str(src), "--proof-tex", str(out)], capture_output=True, text=True
+    )
+    assert run.returncode == 1, run.stderr  # the refuted claim
+    latex = subprocess.run(
+        ["pdflatex", "-interaction=nonstopmode", "-halt-on-error", out.name],
+        cwd=tmp_path,
+        capture_output=True,
+        text=True,
+        timeout=120,
+    )
+    assert latex.returncode == 0, latex.stdout[-2000:]
+    assert (tmp_path / "proofs.pdf").stat().st_size > 0
+
+
+def test_every_proved_claim_has_a_certificate() -> None:
+    data = json.loads(json.dumps(check_text(MANUSCRIPT, "m.tex").to_dict()))
+    for claim in data["claims"]:
+        cert = claim["certificate"]
+        if claim["verdict"] != "proved":
+            assert cert is None
+            continue
+        assert cert["format"] == 1 and cert["method"] == claim["method"]
+        for side in ("left", "right"):
+            parse(cert[side]["expr"])  # the expression language reads back
+    e8 = data["claims"][0]["certificate"]
+    assert e8["left"]["expr"] == "(^ (E 4 1) 2)" and e8["right"]["expr"] == "(E 8 1)"
+    assert e8["space"] == {"weight": "8", "level": 1, "character": 1, "proof_weight": "8", "cleared_weight": "0"}
+    assert e8["coefficients"]["values"] == ["1"]

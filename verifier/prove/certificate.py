@@ -1,0 +1,161 @@
+"""Certificates as data: what a second program needs to re-verify a proved claim.
+
+A certificate is a JSON object attached to every ``proved`` claim (``certificate`` in the
+JSON report).  It restates the claim in a small expression language and lists the facts
+the proof rests on, so that ``qreferee recheck`` (:mod:`verifier.recheck`, an independent
+implementation) can confirm it without the manuscript.
+
+Fields (``format`` 1):
+
+* ``format``: 1; ``method``: ``sturm``, ``valence``, ``expansion``, ``witness``, or the
+  method of a proof the re-checker does not cover (``cusp-orders``, ...);
+* ``relation``: ``=`` or ``!=``;
+* ``left``, ``right``: ``{"expr": S, "truncation": t}`` with S an expression (below) and t
+  the exclusive end of the exponents a printed side claims (null: exact);
+* ``exponent_unit``: the claim was rescaled (tau -> T tau, and the nome): the author's
+  exponent is the certificate's exponent divided by this rational;
+* ``space``: ``{"weight", "level", "character", "proof_weight", "cleared_weight"}``;
+  ``character`` is the kernel D of the quadratic character n -> (D/n) (1: trivial), or
+  the list of kernels when pieces of the top weight carry several;
+* ``pieces``: one per (weight, power of E_2, character) of the cleared difference
+  ``N_L D_R - N_R D_L``: ``{"weight", "e2_power", "character", "bound", "from"}``;
+  ``weight`` is that of the modular coefficient of ``E_2^e2_power``;
+* ``bound``: the largest exponent compared; ``index``: [SL_2(Z) : Gamma_0(level)];
+  ``cusp_order_bounds`` (valence only): lower bounds of the orders at the cusps c/d,
+  keyed by d;
+* ``coefficients``: ``{"side": "left", "from": a, "to": b, "sha256": h, "values": [...]}``:
+  the left side's coefficients of q^a .. q^b; h is the SHA-256 of the UTF-8 text made of
+  one line ``n:c`` per exponent (c as ``p`` or ``p/q``, lowest terms); ``values`` lists
+  them when there are at most :data:`MAX_LISTED`;
+* ``witness`` (method ``witness``): ``{"n", "left", "right"}``, the exponent (in the
+  certificate's exponents) and the two different exact values there;
+* ``sturm``/``valence`` certificates carry ``space``, ``pieces``, ``bound``, ``index`` (and
+  ``cusp_order_bounds``) and ``coefficients``; ``expansion`` carries ``coefficients``;
+  other methods carry only ``method``, ``kind``, ``space_used`` and ``bound``.
+
+Expressions (S-expressions, written as text):
+
+====================================  ==============================================
+``7``, ``-3/5``                       a rational constant
+``(q n)``                             q^n (n an integer, after rescaling)
+``(E k d)``                           E_k(d tau), k even (E_2 included)
+``(Delta d)``                         Delta(d tau)
+``(eta (d1 r1) (d2 r2) ...)``         prod eta(d_i tau)^(r_i)
+``(theta d ((a b ..) (c d ..) ..))``  theta series of the even Gram matrix at d tau
+``(Echar k psi phi d)``               Eisenstein series with characters (psi, phi)
+``(+ a b)`` ``(- a b)`` ``(* a b)``   sum, difference, product
+``(/ a b)`` ``(^ a n)``               quotient, integer power
+``(D a)``                             q d/dq
+``(T n a)`` ``(U n a)``               Hecke operators
+====================================  ==============================================
+"""
+
+from __future__ import annotations
+
+import hashlib
+from collections.abc import Iterable
+from fractions import Fraction
+from typing import Any
+
+from verifier.elaborate import ir
+from verifier.prove.outcome import frac_str
+
+FORMAT = 1
+MAX_LISTED = 40
+# Methods whose certificates :mod:`verifier.recheck` re-verifies.
+CHECKABLE = frozenset({"sturm", "valence", "expansion", "witness"})
+
+
+def sexpr(expr: ir.Expr) -> str:
+    """The canonical reading of a typed expression in the certificate language."""
+    if isinstance(expr, ir.Const):
+        return frac_str(expr.value)
+    if isinstance(expr, ir.QPower):
+        return f"(q {frac_str(expr.exponent)})"
+    if isinstance(expr, ir.Atom):
+        return _atom(expr)
+    if isinstance(expr, ir.Sum):
+        assert expr.left is not None and expr.right is not None
+        return f"({'+' if expr.sign > 0 else '-'} {sexpr(expr.left)} {sexpr(expr.right)})"
+    if isinstance(expr, ir.Product | ir.Quotient):
+        assert expr.left is not None and expr.right is not None
+        op = "*" if isinstance(expr, ir.Product) else "/"
+        return f"({op} {sexpr(expr.left)} {sexpr(expr.right)})"
+    if isinstance(expr, ir.Power):
+        assert expr.base is not None
+        return f"(^ {sexpr(expr.base)} {expr.exponent})"
+    if isinstance(expr, ir.Deriv):
+        assert expr.base is not None
+        return f"(D {sexpr(expr.base)})"
+    if isinstance(expr, ir.Hecke):
+        assert expr.base is not None
+        return f"({expr.kind} {expr.n} {sexpr(expr.base)})"
+    raise TypeError(f"no certificate spelling for {type(expr).__name__}")
+
+
+def _atom(atom: ir.Atom) -> str:
+    scale = frac_str(Fraction(atom.scale))
+    if atom.key == "eta":
+        pairs = " ".join(f"({frac_str(Fraction(d) * Fraction(atom.scale))} {r})" for d, r in atom.params)
+        return f"(eta {pairs})"
+    if atom.key == "Delta":
+        return f"(Delta {scale})"
+    if atom.key == "theta":
+        rows = " ".join("(" + " ".join(str(int(x)) for x in row) + ")" for row in atom.params[0])
+        return f"(theta {scale} ({rows}))"
+    if atom.key == "Echar":
+        k, psi, phi = atom.params
+        return f"(Echar {k} {psi} {phi} {scale})"
+    if atom.key.startswith("E"):
+        return f"(E {atom.key[1:]} {scale})"
+    raise TypeError(f"no certificate spelling for the atom {atom.key}")
+
+
+def coefficient_lines(coefficients: Iterable[tuple[int, Fraction]]) -> str:
+    """The text hashed by a certificate: one line ``n:c`` per exponent."""
+    return "".join(f"{n}:{frac_str(Fraction(c))}\n" for n, c in coefficients)
+
+
+def coefficient_record(start: int, values: list[Fraction], side: str = "left") -> dict[str, Any]:
+    """The ``coefficients`` entry for the values of q^start, q^(start+1), ..."""
+    pairs = list(enumerate(values, start))
+    record: dict[str, Any] = {
+        "side": side,
+        "from": start,
+        "to": start + len(values) - 1,
+        "sha256": hashlib.sha256(coefficient_lines(pairs).encode()).hexdigest(),
+    }
+    if len(values) <= MAX_LISTED:
+        record["values"] = [frac_str(Fraction(v)) for v in values]
+    return record
+
+
+def side_record(side: ir.Side) -> dict[str, Any]:
+    """``{"expr", "truncation"}`` of one side (rescaled exponents)."""
+    return {"expr": sexpr(side.expr), "truncation": side.truncation}
+
+
+def make(
+    method: str,
+    relation: str,
+    left: ir.Side,
+    right: ir.Side,
+    unit: Fraction,
+    **fields: Any,
+) -> dict[str, Any]:
+    """A certificate for a claim between two sides."""
+    cert: dict[str, Any] = {
+        "format": FORMAT,
+        "method": method,
+        "relation": relation,
+        "left": side_record(left),
+        "right": side_record(right),
+        "exponent_unit": frac_str(unit),
+    }
+    cert.update(fields)
+    return cert
+
+
+def minimal(method: str | None, kind: str, space: dict[str, Any] | None, bound: int | None) -> dict[str, Any]:
+    """The certificate of a proof outside the re-checker's reach: what was used, no sides."""
+    return {"format": FORMAT, "method": method or kind, "kind": kind, "space_used": space, "bound": bound}

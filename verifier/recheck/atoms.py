@@ -1,0 +1,114 @@
+"""q-expansions of the certificate's atoms, by direct formulas.
+
+* E_k = 1 - (2k / B_k) sum sigma_{k-1}(n) q^n with sigma from factorisations (the
+  normalisation of qreferee's documentation; B_k by the Akiyama-Tanigawa algorithm);
+* prod (1 - q^n) by Euler's pentagonal number theorem, and its inverse sum p(n) q^n by the
+  partition recurrence that theorem gives;
+* eta quotients prod eta(d tau)^r = q^(sum d r / 24) prod_d (prod_n (1 - q^(dn)))^r;
+* Delta = eta^24;
+* theta series of an even lattice with Gram matrix A: sum_x q^(x^T A x / 2), counted over
+  the integer points of a box that contains every x with x^T A x / 2 below the precision.
+"""
+
+from __future__ import annotations
+
+import math
+from fractions import Fraction
+
+from verifier.recheck.arith import bernoulli, inverse_and_det, sigma
+from verifier.recheck.series import Series
+
+MAX_LATTICE_POINTS = 2_000_000
+
+
+class TooLarge(Exception):
+    """The computation would be too large for the re-checker."""
+
+
+def eisenstein(k: int, prec: int) -> Series:
+    """E_k to precision ``prec`` (k even, k >= 2)."""
+    factor = Fraction(-2 * k) / bernoulli(k)
+    coeffs = [Fraction(1)] + [factor * sigma(k - 1, n) for n in range(1, prec)]
+    return Series(0, coeffs, prec)
+
+
+def euler(prec: int) -> Series:
+    """prod_{n >= 1} (1 - q^n) = sum_m (-1)^m q^(m(3m-1)/2)."""
+    coeffs = [Fraction(0)] * max(prec, 0)
+    m = 0
+    while True:
+        done = True
+        for j in (m, -m) if m else (0,):
+            e = j * (3 * j - 1) // 2
+            if e < prec:
+                coeffs[e] += (-1) ** (j % 2)
+                done = False
+        if done and m > 0:
+            break
+        m += 1
+    return Series(0, coeffs, prec)
+
+
+def partitions(prec: int) -> Series:
+    """sum p(n) q^n = 1 / prod (1 - q^n), by p(n) = sum_{j != 0} (-1)^(j+1) p(n - j(3j-1)/2)."""
+    p = [0] * max(prec, 0)
+    if prec > 0:
+        p[0] = 1
+    for n in range(1, prec):
+        total, j = 0, 1
+        while True:
+            g1, g2 = j * (3 * j - 1) // 2, j * (3 * j + 1) // 2
+            if g1 > n:
+                break
+            sign = 1 if j % 2 else -1
+            total += sign * p[n - g1]
+            if g2 <= n:
+                total += sign * p[n - g2]
+            j += 1
+        p[n] = total
+    return Series(0, [Fraction(x) for x in p], prec)
+
+
+def eta_quotient(pairs: list[tuple[int, int]], prec: int) -> Series:
+    """prod eta(d tau)^r to precision ``prec`` (sum d r must be divisible by 24)."""
+    total = sum(d * r for d, r in pairs)
+    if total % 24:
+        raise TooLarge("the eta quotient has a fractional power of q in front")
+    shift = total // 24
+    rel = prec - shift
+    out = Series.constant(Fraction(1), max(rel, 0))
+    for d, r in pairs:
+        base = euler(-(-rel // d)) if r > 0 else partitions(-(-rel // d))
+        out = out * base.inflate(d).truncate(rel).power(abs(r))
+    return Series(out.lo + shift, list(out.coeffs), out.prec + shift)
+
+
+def theta(gram: list[list[int]], prec: int) -> Series:
+    """sum over x in Z^n of q^(x^T A x / 2), for an even positive-definite Gram matrix A."""
+    n = len(gram)
+    inv, _ = inverse_and_det(gram)
+    top = 2 * max(prec - 1, 0)
+    # x^T A x <= c forces x_i^2 <= c (A^-1)_ii (Cauchy-Schwarz for the form A).
+    ranges = []
+    size = 1
+    for i in range(n):
+        r = math.isqrt(math.floor(top * inv[i][i]))
+        ranges.append(range(-r, r + 1))
+        size *= 2 * r + 1
+    if size > MAX_LATTICE_POINTS:
+        raise TooLarge(f"counting lattice points would visit {size} points")
+    counts = [0] * max(prec, 0)
+
+    def walk(i: int, x: list[int]) -> None:
+        if i == n:
+            v = sum(gram[a][b] * x[a] * x[b] for a in range(n) for b in range(n)) // 2
+            if v < prec:
+                counts[v] += 1
+            return
+        for xi in ranges[i]:
+            x.append(xi)
+            walk(i + 1, x)
+            x.pop()
+
+    walk(0, [])
+    return Series(0, [Fraction(c) for c in counts], prec)

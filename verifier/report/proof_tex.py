@@ -1,0 +1,263 @@
+"""``--proof-tex``: one LaTeX paragraph per proved claim, with a bibliography.
+
+The paragraphs are built from each claim's certificate (:mod:`verifier.prove.certificate`)
+and rendered through the jinja2 template ``templates/proofs.tex.j2`` (delimiters ``<< >>``
+and ``<% %>``, so that LaTeX braces need no escaping).  Each theorem a proof uses is cited:
+Sturm's bound, the valence formula, the conditions of Newman and of Gordon and Hughes for
+eta quotients, Ligozat's orders at the cusps, Serre and Stark for weight 1/2, Kaneko and
+Zagier for quasimodular forms.
+"""
+
+from __future__ import annotations
+
+import re
+from fractions import Fraction
+from pathlib import Path
+from typing import Any
+
+from verifier import __version__
+from verifier.api import ClaimResult, Report
+
+TEMPLATES = Path(__file__).resolve().parent / "templates"
+
+REFERENCES: dict[str, str] = {
+    "sturm": "J.~Sturm, \\emph{On the congruence of modular forms}, in: Number Theory (New York, 1984--1985), "
+    "Lecture Notes in Math.~1240, Springer, 1987, 275--280.",
+    "valence": "R.~A.~Rankin, \\emph{Modular Forms and Functions}, Cambridge University Press, 1977, "
+    "Theorem~4.1.4 (the valence formula).",
+    "newman": "M.~Newman, \\emph{Construction and application of a class of modular functions~(II)}, "
+    "Proc.\\ London Math.\\ Soc.\\ (3) 9 (1959), 373--387.",
+    "gordon-hughes": "B.~Gordon and K.~Hughes, \\emph{Multiplicative properties of $\\eta$-products~II}, "
+    "in: A Tribute to Emil Grosswald, Contemp.\\ Math.~143, Amer.\\ Math.\\ Soc., 1993, 415--430.",
+    "ligozat": "G.~Ligozat, \\emph{Courbes modulaires de genre~1}, M\\'em.\\ Soc.\\ Math.\\ France~43, 1975.",
+    "serre-stark": "J.-P.~Serre and H.~M.~Stark, \\emph{Modular forms of weight~1/2}, in: Modular Functions of "
+    "One Variable~VI, Lecture Notes in Math.~627, Springer, 1977, 27--67.",
+    "kaneko-zagier": "M.~Kaneko and D.~Zagier, \\emph{A generalized Jacobi theta function and quasimodular "
+    'forms}, in: The Moduli Space of Curves, Progr.\\ Math.~129, Birkh\\"auser, 1995, 165--172.',
+}
+
+_SPECIAL = {
+    "\\": "$\\backslash$",
+    "{": "\\{",
+    "}": "\\}",
+    "$": "\\$",
+    "&": "\\&",
+    "#": "\\#",
+    "_": "\\_",
+    "%": "\\%",
+    "^": "\\^{}",
+    "~": "$\\sim$",
+    "<": "$<$",
+    ">": "$>$",
+    "|": "$|$",
+}
+# Characters outside ASCII that reports use, in LaTeX; any other is replaced by "?" so that
+# the file compiles with plain pdflatex.
+_UNICODE = {
+    "Γ": "$\\Gamma$",
+    "χ": "$\\chi$",
+    "≥": "$\\geq$",
+    "≤": "$\\leq$",
+    "≠": "$\\neq$",
+    "×": "$\\times$",
+    "·": "$\\cdot$",
+    "−": "-",
+    "…": "\\dots{}",
+    "τ": "$\\tau$",
+    "η": "$\\eta$",
+    "θ": "$\\theta$",
+    "Δ": "$\\Delta$",
+    "σ": "$\\sigma$",
+    "ϑ": "$\\vartheta$",
+    "∈": "$\\in$",
+}
+
+
+def escape(text: str) -> str:
+    """Plain text made safe for LaTeX."""
+    return "".join(_SPECIAL.get(ch, _UNICODE.get(ch, ch if ch.isascii() else "?")) for ch in text)
+
+
+def _label_ok(label: str) -> bool:
+    return re.fullmatch(r"[A-Za-z0-9:._\-+/]+", label) is not None
+
+
+def _ref(claim: ClaimResult) -> str:
+    if claim.label and _label_ok(claim.label):
+        return f"\\eqref{{{claim.label}}}"
+    return "the claim"  # the paragraph's title says which
+
+
+def _title(claim: ClaimResult) -> str:
+    if claim.label and _label_ok(claim.label):
+        return f"Proof of \\eqref{{{claim.label}}}."
+    name = f"\\texttt{{{escape(claim.name)}}}, " if claim.name else ""
+    return f"Claim {name}{escape(Path(claim.location.file).name)}:{claim.location.line}."
+
+
+def _character(kernel: Any) -> str:
+    if isinstance(kernel, list):
+        return ", " + ", ".join(_character(k).lstrip(", ") for k in kernel)
+    d = int(kernel)
+    if d == 1:
+        return ""
+    disc = d if d % 4 == 1 else 4 * d
+    return f", \\left(\\frac{{{disc}}}{{\\cdot}}\\right)"
+
+
+def _weight(w: str) -> str:
+    f = Fraction(w)
+    return str(f.numerator) if f.denominator == 1 else f"{f.numerator}/{f.denominator}"
+
+
+def _group(level: int) -> str:
+    return "\\mathrm{SL}_2(\\mathbb{Z})" if level == 1 else f"\\Gamma_0({level})"
+
+
+def _space(weight: str, level: int, kernel: Any, quasi: bool = False) -> str:
+    name = "\\widetilde{M}" if quasi else "M"
+    return f"${name}_{{{_weight(weight)}}}({_group(level)}{_character(kernel)})$"
+
+
+def _exponent_note(cert: dict[str, Any]) -> str:
+    unit = Fraction(str(cert.get("exponent_unit", "1")))
+    if unit == 1:
+        return ""
+    inv = 1 / unit
+    return (
+        f" (Exponents here are those of $q^{{{inv.numerator}/{inv.denominator}}}$"
+        if inv.denominator != 1
+        else f" (Exponents here are those of $q^{{{inv.numerator}}}$"
+    ) + ", in which every exponent of the claim is an integer.)"
+
+
+class _Cites:
+    def __init__(self) -> None:
+        self.used: list[str] = []
+
+    def __call__(self, key: str) -> str:
+        if key not in self.used:
+            self.used.append(key)
+        return f"\\cite{{{key}}}"
+
+
+def _facts(cert: dict[str, Any], cite: _Cites) -> str:
+    """Sentences on where the atoms' levels and characters come from."""
+    text = " ".join(str(cert.get(s, {}).get("expr", "")) for s in ("left", "right"))
+    out = []
+    if "(eta" in text:
+        out.append(
+            f"The eta quotients are modular forms on the stated group by the criterion of Newman {cite('newman')} "
+            f"and of Gordon and Hughes {cite('gordon-hughes')}."
+        )
+    space = cert.get("space") or {}
+    weights = [Fraction(str(p["weight"])) for p in cert.get("pieces", [])] + [Fraction(str(space.get("weight", 0)))]
+    if any(w.denominator == 2 for w in weights) or ("(eta" in text and "(theta" in text):
+        out.append(f"Forms of half-integral weight are taken with the theta multiplier {cite('serre-stark')}.")
+    return " ".join(out)
+
+
+def _forms_paragraph(claim: ClaimResult, cert: dict[str, Any], cite: _Cites) -> str:
+    ref = _ref(claim)
+    space = cert["space"]
+    level = int(space["level"])
+    pieces = cert.get("pieces", [])
+    bound = int(cert["bound"])
+    valence = cert["method"] == "valence"
+    quasi = any(int(p["e2_power"]) for p in pieces)
+    theorem = "the valence formula" if valence else "Sturm's theorem"
+    ref_key = "valence" if valence else "sturm"
+    parts = []
+    cleared = Fraction(str(space.get("cleared_weight", "0")))
+    if cleared:
+        parts.append(
+            f"Multiplying out the denominators (of total weight {_weight(str(cleared))}), {ref} becomes an identity "
+            f"$N_L D_R = N_R D_L$ of weight {_weight(str(space['proof_weight']))} on ${_group(level)}$."
+        )
+    if quasi:
+        parts.append(
+            f"The difference of the two sides of {ref} is a quasimodular form on ${_group(level)}$; "
+            f"written as $\\sum_j f_j E_2^j$ with each $f_j$ modular, it vanishes exactly when every $f_j$ "
+            f"does, since this decomposition is unique {cite('kaneko-zagier')}."
+        )
+        listing = "; ".join(
+            f"$f_{{{p['e2_power']}}} \\in$ {_space(str(p['weight']), level, p['character'])}, bound {p['bound']}"
+            for p in pieces
+        )
+        parts.append(
+            f"The pieces and their Sturm bounds are: {listing}. The coefficients of each $f_j$ vanish through "
+            f"its bound (computed exactly), so {ref} holds by Sturm's theorem {cite('sturm')}."
+        )
+    elif valence:
+        orders = ", ".join(
+            f"$\\geq {v}$ at the cusps $a/{d}$" for d, v in (cert.get("cusp_order_bounds") or {}).items()
+        )
+        parts.append(
+            f"Both sides of {ref} are holomorphic on the upper half-plane and modular for ${_group(level)}$ "
+            f"(index {cert['index']}); their difference may have poles only at cusps, where its orders are "
+            f"bounded by Ligozat's formula {cite('ligozat')}: {orders}. By the valence formula "
+            f"{cite('valence')} a nonzero such form has order at most {bound} at $\\infty$; the coefficients of "
+            f"the difference up to $q^{{{bound}}}$ vanish (computed exactly), so {ref} holds."
+        )
+    else:
+        k = str(space["proof_weight"]) if cleared else str(space["weight"])
+        first = int(pieces[0].get("from", 0)) if pieces else 0
+        span = f"$q^{{{first}}},\\dots,q^{{{bound}}}$" if bound > first else f"$q^{{{bound}}}$"
+        subject = "Both sides of the cleared identity" if cleared else f"Both sides of {ref}"
+        parts.append(
+            f"{subject} lie in {_space(k, level, space['character'])}, whose Sturm bound is {bound}; their "
+            f"coefficients of {span} agree (computed exactly), so {ref} holds by {theorem} {cite(ref_key)}."
+        )
+    facts = _facts(cert, cite)
+    return " ".join(parts + ([facts] if facts else [])) + _exponent_note(cert)
+
+
+def _paragraph(claim: ClaimResult, cite: _Cites) -> str:
+    cert = claim.certificate() or {}
+    method = cert.get("method")
+    ref = _ref(claim)
+    if method in ("sturm", "valence") and "space" in cert:
+        text = _forms_paragraph(claim, cert, cite)
+        if claim.outcome.kind == "arithmetic":
+            text = (
+                f"The statement {ref} about coefficients is equivalent to an identity between generating "
+                f"functions. {text}"
+            )
+        return text
+    if method == "expansion" and "coefficients" in cert:
+        rec = cert["coefficients"]
+        return (
+            f"The coefficients of $q^{{{rec['from']}}},\\dots,q^{{{rec['to']}}}$ of both sides of {ref} were "
+            f"computed exactly and agree; this is the whole range the printed expansion claims." + _exponent_note(cert)
+        )
+    if method == "witness" and "witness" in cert:
+        w = cert["witness"]
+        return (
+            f"The two sides of {ref} differ: their coefficients of $q^{{{w['n']}}}$ are ${w['left']}$ and "
+            f"${w['right']}$ (computed exactly)." + _exponent_note(cert)
+        )
+    return f"{ref[:1].upper()}{ref[1:]} holds ({escape(str(method))}): {escape(claim.outcome.message)}."
+
+
+def render(report: Report) -> str:
+    """The LaTeX file of proof paragraphs for every proved claim of ``report``."""
+    import jinja2
+
+    env = jinja2.Environment(
+        loader=jinja2.FileSystemLoader(str(TEMPLATES)),
+        block_start_string="<%",
+        block_end_string="%>",
+        variable_start_string="<<",
+        variable_end_string=">>",
+        comment_start_string="<#",
+        comment_end_string="#>",
+        autoescape=False,
+        undefined=jinja2.StrictUndefined,
+        trim_blocks=True,
+        lstrip_blocks=True,
+    )
+    cite = _Cites()
+    paragraphs = [{"title": _title(c), "text": _paragraph(c, cite)} for c in report.claims if c.verdict == "proved"]
+    references = [{"key": k, "text": REFERENCES[k]} for k in cite.used]
+    template = env.get_template("proofs.tex.j2")
+    return template.render(paragraphs=paragraphs, references=references, version=__version__)
