@@ -12,8 +12,9 @@ import os
 import sys
 import tempfile
 from collections.abc import Sequence
+from dataclasses import dataclass
 from pathlib import Path
-from typing import TYPE_CHECKING
+from typing import TYPE_CHECKING, Any
 
 if TYPE_CHECKING:
     from verifier.api import Report
@@ -108,14 +109,15 @@ def build_parser() -> argparse.ArgumentParser:
     check.add_argument(
         "--max-seconds",
         type=float,
-        default=60.0,
+        default=None,
         metavar="S",
         help="time budget of one claim in seconds (default 60); over it the claim is an error",
     )
     check.add_argument(
-        "--jobs", type=int, default=1, metavar="N", help="decide claims in N processes (same results as one)"
+        "--jobs", type=int, default=None, metavar="N", help="decide claims in N processes (same results as one)"
     )
     check.add_argument("-v", "--verbose", action="store_true", help="also print each claim as it was read")
+    add_control_arguments(check)
     explain = sub.add_parser("explain", help="describe a diagnostic code")
     explain.add_argument("code", nargs="?", help="a code such as mixed-weight; none lists all codes")
     for name in PLUGIN_MODULES:
@@ -169,8 +171,7 @@ def _explain(code: str | None) -> int:
 
 
 def _check(args: argparse.Namespace) -> int:
-    from verifier.api import Report, check_path
-    from verifier.prove.prover import DEFAULT_MAX_TERMS
+    from verifier.api import Report
 
     if args.annotate is not None and len(args.files) != 1:
         raise UsageError("--annotate takes exactly one manuscript")
@@ -182,10 +183,14 @@ def _check(args: argparse.Namespace) -> int:
 
     annotate_source = _read_for_annotation(Path(args.files[0])) if args.annotate is not None else None
 
-    max_terms = args.max_terms if args.max_terms else DEFAULT_MAX_TERMS
     combined = Report()
+    status = EXIT_ALL_PROVED
+    fail_on: frozenset[str] = frozenset()
     for name in args.files:
-        report = check_path(name, max_terms=max_terms, jobs=max(args.jobs, 1), max_seconds=args.max_seconds)
+        settings = resolve_settings(args, Path(name))
+        report = check_with_settings(Path(name), settings)
+        status = max(status, report.exit_status(settings.fail_on))
+        fail_on |= settings.fail_on
         combined.claims.extend(report.claims)
         combined.diagnostics.extend(report.diagnostics)
         combined.files.extend(report.files)
@@ -194,12 +199,113 @@ def _check(args: argparse.Namespace) -> int:
 
     if args.annotate is not None and annotate_source is not None:
         _annotate(Path(args.files[0]), annotate_source, Path(args.annotate), combined)
-    rendered = render_report(combined, args.format, args.verbose)
+    if args.only_failures and args.format == "text":
+        from verifier.report import text
+
+        rendered = text.render(combined, verbose=args.verbose, only=fail_on)
+    else:
+        rendered = render_report(combined, args.format, args.verbose)
     if args.output is None or args.output == "-":
         sys.stdout.write(rendered)
     else:
         write_atomic(Path(args.output), rendered.encode("utf-8"))
-    return combined.exit_code
+    return status
+
+
+def add_control_arguments(parser: argparse.ArgumentParser) -> None:
+    """The options that choose what fails, what is shown, the cache and the settings file."""
+    parser.add_argument(
+        "--fail-on",
+        type=_fail_on,
+        default=None,
+        metavar="VERDICTS",
+        help="comma-separated verdicts that give a non-zero exit status: refuted, unproven, error, or none "
+        "(default refuted,unproven,error; 'error' includes unreadable files)",
+    )
+    parser.add_argument(
+        "--only-failures",
+        action="store_true",
+        help="text output: print only the claims whose verdict is in --fail-on (and the summary)",
+    )
+    parser.add_argument(
+        "--no-cache",
+        action="store_true",
+        default=None,
+        help="decide every claim again: neither read nor write the verdict cache .qreferee-cache/ "
+        "beside the manuscript (shared with 'watch')",
+    )
+    parser.add_argument(
+        "--config",
+        metavar="TOML",
+        default=None,
+        help="read project defaults from TOML (a qreferee.toml, or a pyproject.toml with [tool.qreferee]) "
+        "instead of looking for one beside the manuscript and in its parent folders",
+    )
+
+
+def _fail_on(value: str) -> frozenset[str]:
+    from verifier.config import parse_fail_on
+
+    try:
+        return parse_fail_on(value)
+    except ValueError as exc:
+        raise argparse.ArgumentTypeError(str(exc)) from exc
+
+
+@dataclass(frozen=True)
+class Settings:
+    """What one manuscript is checked with: the command line over the project's defaults."""
+
+    max_terms: int
+    max_seconds: float
+    jobs: int
+    fail_on: frozenset[str]
+    cache: bool
+    tag_defaults: dict[str, str]
+
+
+def resolve_settings(args: argparse.Namespace, manuscript: Path) -> Settings:
+    """The command line's options, then the project's settings file, then the built-in defaults."""
+    from verifier.budget import DEFAULT_MAX_SECONDS
+    from verifier.config import DEFAULT_FAIL_ON, ConfigError, project_config
+    from verifier.prove.prover import DEFAULT_MAX_TERMS
+
+    try:
+        config = project_config(manuscript, Path(args.config) if args.config else None)
+    except ConfigError as exc:
+        raise UsageError(str(exc)) from exc
+
+    def pick(given: Any, configured: Any, default: Any) -> Any:
+        return given if given is not None else (configured if configured is not None else default)
+
+    no_cache = bool(args.no_cache)
+    return Settings(
+        max_terms=pick(args.max_terms or None, config.max_terms, DEFAULT_MAX_TERMS),
+        max_seconds=pick(args.max_seconds, config.max_seconds, DEFAULT_MAX_SECONDS),
+        jobs=max(pick(args.jobs, config.jobs, 1), 1),
+        fail_on=pick(args.fail_on, config.fail_on, DEFAULT_FAIL_ON),
+        cache=not no_cache and pick(None, config.cache, True),
+        tag_defaults=config.tag_defaults(),
+    )
+
+
+def check_with_settings(manuscript: Path, settings: Settings) -> Report:
+    """Check one manuscript, through the verdict cache beside it unless the cache is off."""
+    if settings.cache:
+        from verifier.cache import CachedChecker
+
+        checker = CachedChecker(
+            max_terms=settings.max_terms,
+            run_options={"jobs": settings.jobs, "max_seconds": settings.max_seconds},
+            tag_defaults=settings.tag_defaults,
+        )
+        return checker.check_path(manuscript)
+    from verifier.api import check_document
+    from verifier.config import apply_tag_defaults
+    from verifier.scan import scan_path
+
+    doc = apply_tag_defaults(scan_path(manuscript), settings.tag_defaults)
+    return check_document(doc, max_terms=settings.max_terms, jobs=settings.jobs, max_seconds=settings.max_seconds)
 
 
 def render_report(report: Report, fmt: str, verbose: bool) -> str:
