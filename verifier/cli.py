@@ -188,7 +188,9 @@ def _check(args: argparse.Namespace) -> int:
     fail_on: frozenset[str] = frozenset()
     for name in args.files:
         settings = resolve_settings(args, Path(name))
-        report = check_with_settings(Path(name), settings)
+        report = check_with_settings(Path(name), settings, args.skip_files_without_tags)
+        if report is None:
+            continue
         status = max(status, report.exit_status(settings.fail_on))
         fail_on |= settings.fail_on
         combined.claims.extend(report.claims)
@@ -233,6 +235,12 @@ def add_control_arguments(parser: argparse.ArgumentParser) -> None:
         default=None,
         help="decide every claim again: neither read nor write the verdict cache .qreferee-cache/ "
         "beside the manuscript (shared with 'watch')",
+    )
+    parser.add_argument(
+        "--skip-files-without-tags",
+        action="store_true",
+        help="leave out, silently, every FILE in which the scan finds no tag and no problem "
+        "(for hooks that pass every staged file)",
     )
     parser.add_argument(
         "--config",
@@ -289,22 +297,29 @@ def resolve_settings(args: argparse.Namespace, manuscript: Path) -> Settings:
     )
 
 
-def check_with_settings(manuscript: Path, settings: Settings) -> Report:
-    """Check one manuscript, through the verdict cache beside it unless the cache is off."""
+def check_with_settings(manuscript: Path, settings: Settings, skip_without_tags: bool = False) -> Report | None:
+    """Check one manuscript, through the verdict cache beside it unless the cache is off.
+
+    None when ``skip_without_tags`` and the scan found neither a tag nor a problem.
+    """
+    from verifier.scan import scan_path
+
+    doc = scan_path(manuscript)
+    if skip_without_tags and not doc.items and not doc.diagnostics:
+        return None
     if settings.cache:
-        from verifier.cache import CachedChecker
+        from verifier.cache import CachedChecker, default_cache_dir
 
         checker = CachedChecker(
             max_terms=settings.max_terms,
             run_options={"jobs": settings.jobs, "max_seconds": settings.max_seconds},
             tag_defaults=settings.tag_defaults,
         )
-        return checker.check_path(manuscript)
+        return checker.check_document(doc, default_cache_dir(manuscript))
     from verifier.api import check_document
     from verifier.config import apply_tag_defaults
-    from verifier.scan import scan_path
 
-    doc = apply_tag_defaults(scan_path(manuscript), settings.tag_defaults)
+    apply_tag_defaults(doc, settings.tag_defaults)
     return check_document(doc, max_terms=settings.max_terms, jobs=settings.jobs, max_seconds=settings.max_seconds)
 
 
