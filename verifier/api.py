@@ -326,8 +326,10 @@ def _block(
 ) -> None:
     name = block.options.get("name")
     fatal = [p for p in block.problems if p.code != "macro-expansion"]
+    # An error about the whole block keeps the author's text of it.
+    block_source = block.source or " ".join(row.source_text for row in block.rows)
     for p in block.problems:
-        report.claims.append(_error(p.location, p.code, p.message, p.hint, name=name))
+        report.claims.append(_error(p.location, p.code, p.message, p.hint, block_source, name=name))
     if fatal:
         return
     count = 0

@@ -275,7 +275,7 @@ class Settings:
 def resolve_settings(args: argparse.Namespace, manuscript: Path) -> Settings:
     """The command line's options, then the project's settings file, then the built-in defaults."""
     from verifier.budget import DEFAULT_MAX_SECONDS
-    from verifier.config import DEFAULT_FAIL_ON, ConfigError, project_config
+    from verifier.config import DEFAULT_FAIL_ON, ConfigError, cache_allowed, project_config
     from verifier.prove.prover import DEFAULT_MAX_TERMS
 
     try:
@@ -286,13 +286,12 @@ def resolve_settings(args: argparse.Namespace, manuscript: Path) -> Settings:
     def pick(given: Any, configured: Any, default: Any) -> Any:
         return given if given is not None else (configured if configured is not None else default)
 
-    no_cache = bool(args.no_cache)
     return Settings(
         max_terms=pick(args.max_terms or None, config.max_terms, DEFAULT_MAX_TERMS),
         max_seconds=pick(args.max_seconds, config.max_seconds, DEFAULT_MAX_SECONDS),
         jobs=max(pick(args.jobs, config.jobs, 1), 1),
         fail_on=pick(args.fail_on, config.fail_on, DEFAULT_FAIL_ON),
-        cache=not no_cache and pick(None, config.cache, True),
+        cache=cache_allowed(bool(args.no_cache), config),
         tag_defaults=config.tag_defaults(),
     )
 

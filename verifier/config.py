@@ -16,14 +16,17 @@ Keys (``-`` and ``_`` are interchangeable)::
     cache = false                   # like --no-cache
 
 A tag's own ``nome=`` or ``group=`` wins over the default; an option on the command line
-wins over the file.  An unknown key or a value of the wrong type is an error (exit 2),
-never silently ignored.  ``qreferee screen`` never reads settings from inside a submission.
+wins over the file. The environment variable ``QREFEREE_NO_CACHE`` (set and not ``0``)
+turns the verdict cache off like ``--no-cache``, for ``check`` and ``watch``. An unknown
+key or a value of the wrong type is an error (exit 2), never silently ignored.
+``qreferee screen`` never reads settings from inside a submission.
 """
 
 from __future__ import annotations
 
 import difflib
 import math
+import os
 import tomllib
 from dataclasses import dataclass
 from pathlib import Path
@@ -37,6 +40,7 @@ PYPROJECT = "pyproject.toml"
 # The verdicts that can make the exit status non-zero, and the default set (all of them).
 FAIL_ON_CHOICES = ("refuted", "unproven", "error")
 DEFAULT_FAIL_ON = frozenset(FAIL_ON_CHOICES)
+NO_CACHE_ENV = "QREFEREE_NO_CACHE"
 KEYS = ("nome", "group", "max-seconds", "max-terms", "jobs", "fail-on", "cache")
 
 
@@ -198,6 +202,13 @@ def project_config(manuscript: Path, explicit: Path | None = None) -> ProjectCon
     if path is None:
         return ProjectConfig()
     return load_config(path)
+
+
+def cache_allowed(no_cache_option: bool, config: ProjectConfig) -> bool:
+    """Whether the verdict cache on disk is used: not if ``--no-cache``, the environment or the file says no."""
+    if no_cache_option or os.environ.get(NO_CACHE_ENV, "") not in ("", "0"):
+        return False
+    return config.cache is not False
 
 
 def apply_tag_defaults(doc: ScannedDocument, defaults: dict[str, str]) -> ScannedDocument:

@@ -623,7 +623,7 @@ def run_watch_args(args: argparse.Namespace) -> int:
         if max_runs is not None and run.number >= max_runs:
             done.set()
 
-    from verifier.config import ConfigError, project_config
+    from verifier.config import ConfigError, cache_allowed, project_config
 
     try:
         config = project_config(main)
@@ -634,7 +634,7 @@ def run_watch_args(args: argparse.Namespace) -> int:
     checker = CachedChecker(
         max_terms=args.max_terms or config.max_terms,
         tag_defaults=config.tag_defaults(),
-        use_disk=not args.no_cache and config.cache is not False,
+        use_disk=cache_allowed(bool(args.no_cache), config),
     )
     watcher = Watcher(main, show, debounce=args.debounce, polling=args.poll, checker=checker, outputs=outputs)
     watcher.start()

@@ -202,7 +202,7 @@ class _Reader:
             self.doc.items.append(define)
             return
         options, option_problems = parse_options(rest)
-        block = ClaimBlock(loc, options, [], "")
+        block = ClaimBlock(loc, options, [], "", source=" ".join(source.text[at:after].split()))
         for p in option_problems:
             block.problems.append(Diagnostic(p.code, "error", _loc(source, rest_start + p.offset), p.message, p.hint))
         self.doc.items.append(block)
@@ -237,6 +237,7 @@ class _Reader:
             )
             return
         block.environment = env
+        block.source = " ".join(source.text[opener.end() : close].split())
         content = MappedText(bare[opener.end() : close], list(range(opener.end(), close)), source)
         for row in rows_of(content, env):
             try:
