@@ -32,7 +32,7 @@ _INCLUDE = re.compile(
     r"\\(?P<cmd>input|include|subfile)(?![A-Za-z])\s*(?:\{(?P<braced>[^{}]*)\}|(?P<bare>[^\s{}\\%]+))"
 )
 # The visible form of the tags (qreferee.sty): \qrclaim[options] and \qrdefine{NAME = ...}.
-_COMMAND_TAG = re.compile(r"\\qr(?P<kind>claim|define)(?![A-Za-z@])")
+COMMAND_TAG = re.compile(r"\\qr(?P<kind>claim|define)(?![A-Za-z@])")
 # A command tag right after one of these is the command being defined, not a tag.
 _DEFINING = re.compile(
     r"\\(?:(?:re)?newcommand|providecommand|DeclareRobustCommand|def|let|gdef|edef|xdef)\*?\s*\{?\s*$"
@@ -76,7 +76,7 @@ class _Reader:
         events: list[tuple[int, str, re.Match[str] | tuple[int, macro_mod.Macro | macro_mod.DefinitionProblem]]] = []
         for m in _TAG_LINE.finditer(raw):
             events.append((m.start(), "tag", m))
-        for m in _COMMAND_TAG.finditer(bare):
+        for m in COMMAND_TAG.finditer(bare):
             if not _DEFINING.search(bare, max(0, m.start() - 40), m.start()):
                 events.append((m.start(), "command", m))
         for m in _INCLUDE.finditer(bare):
@@ -156,27 +156,12 @@ class _Reader:
     def _command_tag(self, source: SourceFile, bare: str, m: re.Match[str], tag_offsets: list[int]) -> None:
         """``\\qrclaim[options]`` (the brackets are optional) or ``\\qrdefine{NAME = ...}``."""
         kind = m.group("kind")
-        i = m.end()
-        while i < len(bare) and bare[i] in " \t\r\n":
-            i += 1
-        opener = "[" if kind == "claim" else "{"
-        if i < len(bare) and bare[i] == opener:
-            close = _matching(bare, i, "]" if kind == "claim" else "}")
-            if close < 0:
-                what = "options" if kind == "claim" else "definition"
-                self._problem(
-                    "bad-option" if kind == "claim" else "bad-define",
-                    _loc(source, i),
-                    f"the {what} of \\qr{kind} are never closed",
-                    f"close them with {']' if kind == 'claim' else '}'}",
-                )
-                return
-            rest, rest_start, after = bare[i + 1 : close], i + 1, close + 1
-        elif kind == "claim":
-            rest, rest_start, after = "", m.end(), m.end()
-        else:
-            self._problem("bad-define", _loc(source, m.start()), "\\qrdefine needs its definition in braces", "")
+        extent = command_extent(bare, m)
+        if isinstance(extent, str):
+            self._problem("bad-option" if kind == "claim" else "bad-define", _loc(source, m.start()), extent, "")
             return
+        rest_start, after = extent
+        rest = bare[rest_start : after - 1] if after > m.end() else ""
         self._tagged(source, bare, kind, m.start(), rest, rest_start, after, tag_offsets)
 
     def _tagged(
@@ -257,6 +242,43 @@ class _Reader:
     def _problem(self, code: str, at: Location | None, message: str, hint: str) -> None:
         where = at or Location(str(self.root), 1, 1)
         self.doc.diagnostics.append(Diagnostic(code, "error", where, message, hint))
+
+
+def command_extent(bare: str, m: re.Match[str]) -> tuple[int, int] | str:
+    """Where a command tag's argument starts and where the tag ends, or what is wrong with it.
+
+    ``m`` is a match of :data:`COMMAND_TAG` in the comment-free text ``bare``.
+    """
+    kind = m.group("kind")
+    i = m.end()
+    while i < len(bare) and bare[i] in " \t\r\n":
+        i += 1
+    opener, closer = ("[", "]") if kind == "claim" else ("{", "}")
+    if i < len(bare) and bare[i] == opener:
+        close = _matching(bare, i, closer)
+        if close < 0:
+            return f"the {'options' if kind == 'claim' else 'definition'} of \\qr{kind} are never closed"
+        return i + 1, close + 1
+    if kind == "claim":
+        return m.end(), m.end()
+    return "\\qrdefine needs its definition in braces: \\qrdefine{F = E_4 E_6}"
+
+
+def find_tags(text: str) -> list[tuple[int, int, str]]:
+    """Every tag of a LaTeX source as the scanner reads it: (start, end, kind), in order.
+
+    Comment lines (``%@claim``, ``%@define``) and commands (``\\qrclaim[...]``,
+    ``\\qrdefine{...}``) alike; a claim tag tags the display that starts after ``end``.
+    """
+    bare = blank_comments(text)
+    found = [(m.start(), m.end(), m.group("kind")) for m in _TAG_LINE.finditer(text)]
+    for m in COMMAND_TAG.finditer(bare):
+        if _DEFINING.search(bare, max(0, m.start() - 40), m.start()):
+            continue
+        extent = command_extent(bare, m)
+        if not isinstance(extent, str):
+            found.append((m.start(), extent[1], m.group("kind")))
+    return sorted(found)
 
 
 def _matching(text: str, start: int, closer: str) -> int:
