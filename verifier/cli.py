@@ -43,6 +43,7 @@ examples:
   qreferee check paper.tex --format html -o report.html
   qreferee check paper.tex --format sarif -o qreferee.sarif
   qreferee check paper.tex --annotate paper-checked.tex
+  qreferee check paper.tex --fail-on refuted,error --only-failures
   qreferee explain mixed-weight
 """
 
