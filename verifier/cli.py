@@ -12,12 +12,12 @@ import os
 import sys
 import tempfile
 from collections.abc import Sequence
-from dataclasses import dataclass
 from pathlib import Path
-from typing import TYPE_CHECKING, Any
+from typing import TYPE_CHECKING
 
 if TYPE_CHECKING:
     from verifier.api import Report
+    from verifier.config import Settings
 
 EXIT_ALL_PROVED = 0
 EXIT_FINDINGS = 1  # some claim refuted or unproven
@@ -261,40 +261,22 @@ def _fail_on(value: str) -> frozenset[str]:
         raise argparse.ArgumentTypeError(str(exc)) from exc
 
 
-@dataclass(frozen=True)
-class Settings:
-    """What one manuscript is checked with: the command line over the project's defaults."""
-
-    max_terms: int
-    max_seconds: float
-    jobs: int
-    fail_on: frozenset[str]
-    cache: bool
-    tag_defaults: dict[str, str]
-
-
 def resolve_settings(args: argparse.Namespace, manuscript: Path) -> Settings:
-    """The command line's options, then the project's settings file, then the built-in defaults."""
-    from verifier.budget import DEFAULT_MAX_SECONDS
-    from verifier.config import DEFAULT_FAIL_ON, ConfigError, cache_allowed, project_config
-    from verifier.prove.prover import DEFAULT_MAX_TERMS
+    """The command line's options over the project's settings file over the built-in defaults."""
+    from verifier.config import ConfigError, resolve
 
     try:
-        config = project_config(manuscript, Path(args.config) if args.config else None)
+        return resolve(
+            manuscript,
+            Path(args.config) if args.config else None,
+            max_terms=args.max_terms or None,
+            max_seconds=args.max_seconds,
+            jobs=args.jobs,
+            fail_on=args.fail_on,
+            no_cache=bool(args.no_cache),
+        )
     except ConfigError as exc:
         raise UsageError(str(exc)) from exc
-
-    def pick(given: Any, configured: Any, default: Any) -> Any:
-        return given if given is not None else (configured if configured is not None else default)
-
-    return Settings(
-        max_terms=pick(args.max_terms or None, config.max_terms, DEFAULT_MAX_TERMS),
-        max_seconds=pick(args.max_seconds, config.max_seconds, DEFAULT_MAX_SECONDS),
-        jobs=max(pick(args.jobs, config.jobs, 1), 1),
-        fail_on=pick(args.fail_on, config.fail_on, DEFAULT_FAIL_ON),
-        cache=cache_allowed(bool(args.no_cache), config),
-        tag_defaults=config.tag_defaults(),
-    )
 
 
 def check_with_settings(manuscript: Path, settings: Settings, skip_without_tags: bool = False) -> Report | None:

@@ -204,6 +204,48 @@ def project_config(manuscript: Path, explicit: Path | None = None) -> ProjectCon
     return load_config(path)
 
 
+@dataclass(frozen=True)
+class Settings:
+    """What one manuscript is checked with: the command line over the project's defaults."""
+
+    max_terms: int
+    max_seconds: float
+    jobs: int
+    fail_on: frozenset[str]
+    cache: bool
+    tag_defaults: dict[str, str]
+
+
+def resolve(
+    manuscript: Path,
+    explicit: Path | None = None,
+    *,
+    max_terms: int | None = None,
+    max_seconds: float | None = None,
+    jobs: int | None = None,
+    fail_on: frozenset[str] | None = None,
+    no_cache: bool = False,
+) -> Settings:
+    """The settings for ``manuscript``: each value given here wins over the project's file,
+    which wins over the built-in default.  Raises ConfigError for a bad settings file."""
+    from verifier.budget import DEFAULT_MAX_SECONDS
+    from verifier.prove.prover import DEFAULT_MAX_TERMS
+
+    config = project_config(manuscript, explicit)
+
+    def pick(given: Any, configured: Any, default: Any) -> Any:
+        return given if given is not None else (configured if configured is not None else default)
+
+    return Settings(
+        max_terms=pick(max_terms, config.max_terms, DEFAULT_MAX_TERMS),
+        max_seconds=pick(max_seconds, config.max_seconds, DEFAULT_MAX_SECONDS),
+        jobs=max(pick(jobs, config.jobs, 1), 1),
+        fail_on=pick(fail_on, config.fail_on, DEFAULT_FAIL_ON),
+        cache=cache_allowed(no_cache, config),
+        tag_defaults=config.tag_defaults(),
+    )
+
+
 def cache_allowed(no_cache_option: bool, config: ProjectConfig) -> bool:
     """Whether the verdict cache on disk is used: not if ``--no-cache``, the environment or the file says no."""
     if no_cache_option or os.environ.get(NO_CACHE_ENV, "") not in ("", "0"):
