@@ -9,6 +9,7 @@ input.
 
 from __future__ import annotations
 
+import json
 import os
 import re
 import shutil
@@ -30,6 +31,8 @@ from verifier.annotate import (
     tt_escape,
 )
 from verifier.api import Report
+
+from report_contract import validate_report
 
 REPO = Path(__file__).resolve().parent.parent
 SAMPLES = REPO / "sample_docs"
@@ -369,6 +372,7 @@ def test_cli_annotate_writes_the_copy(tmp_path: Path) -> None:
     proc = run("check", "paper.tex", "--annotate", "checked.tex", "--format", "json", cwd=tmp_path)
     assert proc.returncode == 2, proc.stderr
     assert proc.stdout.startswith("{")  # the report still goes to stdout
+    validate_report(json.loads(proc.stdout))
     copy = (tmp_path / "checked.tex").read_text(encoding="utf-8")
     assert strip_annotations(copy, False) == (SAMPLES / "paper.tex").read_text(encoding="utf-8")
     assert sorted(p.name for p in tmp_path.iterdir()) == ["checked.tex", "paper.tex"], "no temporary file left"

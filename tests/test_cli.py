@@ -17,6 +17,8 @@ from typing import Any
 
 import pytest
 
+from report_contract import validate_report
+
 REPO = Path(__file__).resolve().parent.parent
 SAMPLES = REPO / "sample_docs"
 
@@ -73,7 +75,9 @@ def write(tmp_path: Path, name: str, text: str) -> Path:
 
 def run_json(*args: str, cwd: Path = REPO) -> tuple[int, dict[str, Any]]:
     proc = run("check", "--format", "json", *args, cwd=cwd)
-    return proc.returncode, json.loads(proc.stdout)
+    data = json.loads(proc.stdout)
+    validate_report(data)
+    return proc.returncode, data
 
 
 TRUE_DOC = "%@claim name=a\n\\[ E_4^2 = E_8 \\]\n%@claim name=b\n\\[ 1728\\Delta = E_4^3 - E_6^2 \\]\n"
@@ -198,7 +202,7 @@ def test_json_contract(tmp_path: Path) -> None:
 def test_json_is_the_only_thing_on_stdout(tmp_path: Path) -> None:
     write(tmp_path, "doc.tex", TRUE_DOC)
     proc = run("check", "--format", "json", "doc.tex", cwd=tmp_path)
-    json.loads(proc.stdout)  # the whole of stdout parses
+    validate_report(json.loads(proc.stdout))  # the whole of stdout parses, and matches the schema
     assert proc.returncode == 0
 
 

@@ -65,6 +65,7 @@ from dataclasses import dataclass, field
 from verifier.api import ClaimResult, Report
 from verifier.diagnostics import Diagnostic
 from verifier.report.text import CAUTION
+from verifier.scan.latex import find_tags
 from verifier.scan.markdown import fenced_ranges as _fenced_ranges
 from verifier.scan.text import blank_comments
 
@@ -199,7 +200,6 @@ def _diagnostic_text(d: Diagnostic) -> str:
 # LaTeX
 # ---------------------------------------------------------------------------
 
-_TAG_LINE = re.compile(r"^[ \t]*%@(?P<kind>claim|define)(?![A-Za-z]).*$", re.M)
 _ENVIRONMENTS = ("equation", "align", "gather", "multline", "flalign")
 _DISPLAY_OPEN = re.compile(r"\\\[|\$\$|\\begin\s*\{(?P<env>(?:" + "|".join(_ENVIRONMENTS) + r")\*?)\}")
 _BEGIN_DOCUMENT = re.compile(r"\\begin\s*\{document\}")
@@ -298,17 +298,17 @@ def _latex_span(body: str) -> str:
 def _latex_blocks(text: str) -> list[_Block]:
     """Every tagged display of a LaTeX source, found as the scanner finds it."""
     bare = blank_comments(text)
-    tags = list(_TAG_LINE.finditer(text))
-    starts = [m.start() for m in tags]
+    tags = find_tags(text)
+    starts = [start for start, _, _ in tags]
     blocks: list[_Block] = []
-    for m in tags:
-        if m.group("kind") != "claim":
+    for tag_start, tag_end, kind in tags:
+        if kind != "claim":
             continue
-        i = m.end()
+        i = tag_end
         while i < len(bare) and bare[i] in " \t\r\n":
             i += 1
         opener = _DISPLAY_OPEN.match(bare, i)
-        next_tag = next((t for t in starts if t > m.start()), None)
+        next_tag = next((t for t in starts if t > tag_start), None)
         if opener is None or (next_tag is not None and next_tag < i):
             continue
         env = opener.group("env")
@@ -321,7 +321,7 @@ def _latex_blocks(text: str) -> list[_Block]:
             end = found + len(token) if found >= 0 else -1
         if end < 0:
             continue
-        blocks.append(_Block(_line_of(text, m.start()), _line_of(text, end - 1), end))
+        blocks.append(_Block(_line_of(text, tag_start), _line_of(text, end - 1), end))
     return blocks
 
 

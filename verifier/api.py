@@ -8,7 +8,7 @@ from __future__ import annotations
 
 import re
 import time
-from collections.abc import Callable
+from collections.abc import Callable, Collection
 from dataclasses import dataclass, field
 from fractions import Fraction
 from pathlib import Path
@@ -21,6 +21,7 @@ from verifier.arith.terms import Var as tVar
 from verifier.arith.terms import free_variables
 from verifier.arith.values import NotEvaluable, Values
 from verifier.budget import DEFAULT_MAX_SECONDS, TimeExceeded, decide_all, internal_error, time_limit
+from verifier.config import DEFAULT_FAIL_ON
 from verifier.diagnostics import Diagnostic
 from verifier.elaborate import ir
 from verifier.elaborate.elaborator import Elaborator, Problem, normal_name
@@ -126,10 +127,18 @@ class Report:
     @property
     def exit_code(self) -> int:
         """0 all proved, 1 some refuted/unproven, 2 some error or unreadable input."""
+        return self.exit_status()
+
+    def exit_status(self, fail_on: Collection[str] = DEFAULT_FAIL_ON) -> int:
+        """The exit status when only the verdicts in ``fail_on`` count as failures.
+
+        ``error`` covers claims with an error and problems outside claims (an unreadable
+        file, a missing ``\\input``); it gives 2, ``refuted`` and ``unproven`` give 1.
+        """
         s = self.summary
-        if s["error"] or any(d.severity == "error" for d in self.diagnostics):
+        if "error" in fail_on and (s["error"] or any(d.severity == "error" for d in self.diagnostics)):
             return 2
-        if s["refuted"] or s["unproven"]:
+        if any(s[v] for v in ("refuted", "unproven") if v in fail_on):
             return 1
         return 0
 
@@ -328,8 +337,10 @@ def _block(
 ) -> None:
     name = block.options.get("name")
     fatal = [p for p in block.problems if p.code != "macro-expansion"]
+    # An error about the whole block keeps the author's text of it.
+    block_source = block.source or " ".join(row.source_text for row in block.rows)
     for p in block.problems:
-        report.claims.append(_error(p.location, p.code, p.message, p.hint, name=name))
+        report.claims.append(_error(p.location, p.code, p.message, p.hint, block_source, name=name))
     if fatal:
         return
     count = 0

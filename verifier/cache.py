@@ -39,6 +39,7 @@ from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
 from verifier import __version__
+from verifier.config import apply_tag_defaults
 from verifier.diagnostics import Diagnostic
 from verifier.location import Location
 from verifier.scan.document import ClaimBlock, DefineTag, ScannedDocument
@@ -331,10 +332,14 @@ def supported_options(function: Callable[..., Any], options: dict[str, Any]) -> 
 class CachedChecker:
     """Checks documents, deciding only the tagged blocks whose cache key is new.
 
-    ``options`` are passed to :func:`verifier.api.check_document` when it accepts them
-    (``jobs``, ``max_seconds``...); they are part of the cache key.  ``check`` replaces the
-    checker (tests count what is decided with it).  ``cache_dir=None`` puts the cache
-    beside each main file; ``use_disk=False`` keeps it in memory only.
+    ``options`` are passed to :func:`verifier.api.check_document` when it accepts them;
+    they are part of the cache key.  ``run_options`` are passed the same way but are not
+    part of the key: only options that cannot change a cached verdict belong there (``jobs``
+    gives the same results; ``max_seconds`` changes only clock-dependent outcomes, which are
+    never stored).  ``tag_defaults`` are tag options every block gets unless its tag sets
+    them (project defaults); they reach the key through the block's options.  ``check``
+    replaces the checker (tests count what is decided with it).  ``cache_dir=None`` puts the
+    cache beside each main file; ``use_disk=False`` keeps it in memory only.
     """
 
     def __init__(
@@ -343,6 +348,8 @@ class CachedChecker:
         *,
         max_terms: int | None = None,
         options: dict[str, Any] | None = None,
+        run_options: dict[str, Any] | None = None,
+        tag_defaults: dict[str, str] | None = None,
         check: Check | None = None,
         use_disk: bool = True,
     ) -> None:
@@ -351,10 +358,11 @@ class CachedChecker:
 
         self.cache_dir = cache_dir
         self.use_disk = use_disk
+        self.tag_defaults = dict(tag_defaults or {})
         settings: dict[str, Any] = {"max_terms": max_terms or DEFAULT_MAX_TERMS, **(options or {})}
         self.settings = settings
         if check is None:
-            accepted, self.ignored_options = supported_options(check_document, settings)
+            accepted, self.ignored_options = supported_options(check_document, {**settings, **(run_options or {})})
 
             def default_check(doc: ScannedDocument) -> Report:
                 return check_document(doc, **accepted)
@@ -399,6 +407,7 @@ class CachedChecker:
         """Check ``doc``: cached blocks are re-located, the others decided in one run."""
         from verifier.api import Report
 
+        apply_tag_defaults(doc, self.tag_defaults)
         disk = self._disk(cache_dir if cache_dir is not None else self.cache_dir)
         stats = self.stats = CacheStats()
         starts_of: dict[int, list[int]] = {}

@@ -17,6 +17,7 @@ from typing import TYPE_CHECKING
 
 if TYPE_CHECKING:
     from verifier.api import Report
+    from verifier.config import Settings
 
 EXIT_ALL_PROVED = 0
 EXIT_FINDINGS = 1  # some claim refuted or unproven
@@ -45,6 +46,7 @@ examples:
   qreferee check paper.tex --annotate paper-checked.tex
   qreferee check paper.tex --format json -o report.json && qreferee recheck report.json
   qreferee check paper.tex --proof-tex proofs.tex
+  qreferee check paper.tex --fail-on refuted,error --only-failures
   qreferee explain mixed-weight
 """
 
@@ -111,12 +113,12 @@ def build_parser() -> argparse.ArgumentParser:
     check.add_argument(
         "--max-seconds",
         type=float,
-        default=60.0,
+        default=None,
         metavar="S",
         help="time budget of one claim in seconds (default 60); over it the claim is an error",
     )
     check.add_argument(
-        "--jobs", type=int, default=1, metavar="N", help="decide claims in N processes (same results as one)"
+        "--jobs", type=int, default=None, metavar="N", help="decide claims in N processes (same results as one)"
     )
     check.add_argument("-v", "--verbose", action="store_true", help="also print each claim as it was read")
     check.add_argument(
@@ -131,6 +133,7 @@ def build_parser() -> argparse.ArgumentParser:
         default=None,
         help="also write OUT, a LaTeX file with one proof paragraph per proved claim and a bibliography",
     )
+    add_control_arguments(check)
     recheck = sub.add_parser(
         "recheck",
         help="re-verify the certificates of a JSON report with an independent checker",
@@ -225,8 +228,7 @@ def _recheck_combined(report: Report, to_stdout: bool) -> int | None:
 
 
 def _check(args: argparse.Namespace) -> int:
-    from verifier.api import Report, check_path
-    from verifier.prove.prover import DEFAULT_MAX_TERMS
+    from verifier.api import Report
 
     if args.annotate is not None and len(args.files) != 1:
         raise UsageError("--annotate takes exactly one manuscript")
@@ -238,10 +240,16 @@ def _check(args: argparse.Namespace) -> int:
 
     annotate_source = _read_for_annotation(Path(args.files[0])) if args.annotate is not None else None
 
-    max_terms = args.max_terms if args.max_terms else DEFAULT_MAX_TERMS
     combined = Report()
+    status = EXIT_ALL_PROVED
+    fail_on: frozenset[str] = frozenset()
     for name in args.files:
-        report = check_path(name, max_terms=max_terms, jobs=max(args.jobs, 1), max_seconds=args.max_seconds)
+        settings = resolve_settings(args, Path(name))
+        report = check_with_settings(Path(name), settings, args.skip_files_without_tags)
+        if report is None:
+            continue
+        status = max(status, report.exit_status(settings.fail_on))
+        fail_on |= settings.fail_on
         combined.claims.extend(report.claims)
         combined.diagnostics.extend(report.diagnostics)
         combined.files.extend(report.files)
@@ -254,7 +262,12 @@ def _check(args: argparse.Namespace) -> int:
         from verifier.report import proof_tex
 
         write_atomic(Path(args.proof_tex), proof_tex.render(combined).encode("utf-8"))
-    rendered = render_report(combined, args.format, args.verbose)
+    if args.only_failures and args.format == "text":
+        from verifier.report import text
+
+        rendered = text.render(combined, verbose=args.verbose, only=fail_on)
+    else:
+        rendered = render_report(combined, args.format, args.verbose)
     to_stdout = args.output is None or args.output == "-"
     if to_stdout:
         sys.stdout.write(rendered)
@@ -264,7 +277,97 @@ def _check(args: argparse.Namespace) -> int:
         failed = _recheck_combined(combined, to_stdout and args.format == "text")
         if failed is not None:
             return failed
-    return combined.exit_code
+    return status
+
+
+def add_control_arguments(parser: argparse.ArgumentParser) -> None:
+    """The options that choose what fails, what is shown, the cache and the settings file."""
+    parser.add_argument(
+        "--fail-on",
+        type=_fail_on,
+        default=None,
+        metavar="VERDICTS",
+        help="comma-separated verdicts that give a non-zero exit status: refuted, unproven, error, or none "
+        "(default refuted,unproven,error; 'error' includes unreadable files)",
+    )
+    parser.add_argument(
+        "--only-failures",
+        action="store_true",
+        help="text output: print only the claims whose verdict is in --fail-on (and the summary)",
+    )
+    parser.add_argument(
+        "--no-cache",
+        action="store_true",
+        default=None,
+        help="decide every claim again: neither read nor write the verdict cache .qreferee-cache/ "
+        "beside the manuscript (shared with 'watch')",
+    )
+    parser.add_argument(
+        "--skip-files-without-tags",
+        action="store_true",
+        help="leave out, silently, every FILE in which the scan finds no tag and no problem "
+        "(for hooks that pass every staged file)",
+    )
+    parser.add_argument(
+        "--config",
+        metavar="TOML",
+        default=None,
+        help="read project defaults from TOML (a qreferee.toml, or a pyproject.toml with [tool.qreferee]) "
+        "instead of looking for one beside the manuscript and in its parent folders",
+    )
+
+
+def _fail_on(value: str) -> frozenset[str]:
+    from verifier.config import parse_fail_on
+
+    try:
+        return parse_fail_on(value)
+    except ValueError as exc:
+        raise argparse.ArgumentTypeError(str(exc)) from exc
+
+
+def resolve_settings(args: argparse.Namespace, manuscript: Path) -> Settings:
+    """The command line's options over the project's settings file over the built-in defaults."""
+    from verifier.config import ConfigError, resolve
+
+    try:
+        return resolve(
+            manuscript,
+            Path(args.config) if args.config else None,
+            max_terms=args.max_terms or None,
+            max_seconds=args.max_seconds,
+            jobs=args.jobs,
+            fail_on=args.fail_on,
+            no_cache=bool(args.no_cache),
+        )
+    except ConfigError as exc:
+        raise UsageError(str(exc)) from exc
+
+
+def check_with_settings(manuscript: Path, settings: Settings, skip_without_tags: bool = False) -> Report | None:
+    """Check one manuscript, through the verdict cache beside it unless the cache is off.
+
+    None when ``skip_without_tags`` and the scan found neither a tag nor a problem.
+    """
+    from verifier.scan import scan_path
+
+    doc = scan_path(manuscript)
+    if skip_without_tags and not doc.items and not doc.diagnostics:
+        return None
+    if settings.cache:
+        from verifier.cache import CachedChecker, default_cache_dir
+
+        checker = CachedChecker(
+            max_terms=settings.max_terms,
+            run_options={"jobs": settings.jobs, "max_seconds": settings.max_seconds},
+            tag_defaults=settings.tag_defaults,
+        )
+        return checker.check_document(doc, default_cache_dir(manuscript))
+    from verifier.api import check_document
+    from verifier.config import apply_tag_defaults
+
+    apply_tag_defaults(doc, settings.tag_defaults)
+    return check_document(doc, max_terms=settings.max_terms, jobs=settings.jobs, max_seconds=settings.max_seconds)
 
 
 def render_report(report: Report, fmt: str, verbose: bool) -> str:

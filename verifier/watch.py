@@ -623,7 +623,19 @@ def run_watch_args(args: argparse.Namespace) -> int:
         if max_runs is not None and run.number >= max_runs:
             done.set()
 
-    checker = CachedChecker(max_terms=args.max_terms, use_disk=not args.no_cache)
+    from verifier.config import ConfigError, cache_allowed, project_config
+
+    try:
+        config = project_config(main)
+    except ConfigError as exc:
+        print(f"qreferee: {exc}", file=sys.stderr)
+        return 2
+    # The same project defaults and cache key as `qreferee check`, so the two share verdicts.
+    checker = CachedChecker(
+        max_terms=args.max_terms or config.max_terms,
+        tag_defaults=config.tag_defaults(),
+        use_disk=cache_allowed(bool(args.no_cache), config),
+    )
     watcher = Watcher(main, show, debounce=args.debounce, polling=args.poll, checker=checker, outputs=outputs)
     watcher.start()
     try:

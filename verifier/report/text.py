@@ -2,12 +2,10 @@
 
 from __future__ import annotations
 
-from verifier.api import ClaimResult, Report
+from collections.abc import Collection
 
-CAUTION = (
-    "'proved' certifies each claim as qreferee read it, with q = e^{2 pi i tau} and E_k normalised "
-    "to constant term 1; check that reading."
-)
+from verifier.api import VERDICTS, ClaimResult, Report
+
 CAUTION = (
     "'proved' certifies each claim as qreferee read it, with q = e^{2 pi i tau} and E_k normalised "
     "to constant term 1; check that reading."
@@ -24,13 +22,24 @@ def claim_line(c: ClaimResult) -> str:
     return f"{c.location}: {SEVERITY[o.verdict]}: {o.verdict}{label}: {o.message}{code}{hint}"
 
 
-def render(report: Report, verbose: bool = False) -> str:
-    """The whole terminal report: diagnostics, one line per claim, a summary."""
+def render(report: Report, verbose: bool = False, only: Collection[str] | None = None) -> str:
+    """The whole terminal report: diagnostics, one line per claim, a summary.
+
+    With ``only`` (a set of verdicts, as for ``--fail-on``), just the claims with those
+    verdicts are listed, and the diagnostics of severity ``error`` if ``error`` is among them;
+    the summary still counts everything, and a last line says how many claims were not shown.
+    """
     lines: list[str] = []
+    hidden = 0
     for d in report.diagnostics:
+        if only is not None and not (d.severity == "error" and "error" in only):
+            continue
         hint = f" (hint: {d.hint})" if d.hint else ""
         lines.append(f"{d.location}: {d.severity}: {d.message} [{d.code}]{hint}")
     for c in report.claims:
+        if only is not None and c.verdict not in only:
+            hidden += 1
+            continue
         lines.append(claim_line(c))
         if verbose:
             lines.append(f"    claim: {c.source}")
@@ -40,6 +49,9 @@ def render(report: Report, verbose: bool = False) -> str:
         f"qreferee: {total} claim{'s' if total != 1 else ''}: {s['proved']} proved, {s['refuted']} refuted, "
         f"{s['unproven']} unproven, {s['error']} error{'s' if s['error'] != 1 else ''}"
     )
+    if only is not None:
+        shown = ", ".join(v for v in VERDICTS if v in only) or "nothing"
+        lines.append(f"qreferee: showing only {shown}; {hidden} claim{'s' if hidden != 1 else ''} not shown")
     if report.claims:
         lines.append(CAUTION)
     return "\n".join(lines) + "\n"

@@ -23,6 +23,9 @@ class ClaimBlock:
     rows: list[Row]
     environment: str
     problems: list[Diagnostic] = field(default_factory=list)
+    # The author's text of the display (of the tag itself when no display follows), with
+    # runs of white space squashed: the source of an error that concerns the whole block.
+    source: str = ""
 
 
 @dataclass

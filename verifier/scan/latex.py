@@ -31,6 +31,12 @@ _TAG_LINE = re.compile(r"^\ufeff?[ \t]*%@(?P<kind>claim|define)(?P<rest>(?![A-Za
 _INCLUDE = re.compile(
     r"\\(?P<cmd>input|include|subfile)(?![A-Za-z])\s*(?:\{(?P<braced>[^{}]*)\}|(?P<bare>[^\s{}\\%]+))"
 )
+# The visible form of the tags (qreferee.sty): \qrclaim[options] and \qrdefine{NAME = ...}.
+COMMAND_TAG = re.compile(r"\\qr(?P<kind>claim|define)(?![A-Za-z@])")
+# A command tag right after one of these is the command being defined, not a tag.
+_DEFINING = re.compile(
+    r"\\(?:(?:re)?newcommand|providecommand|DeclareRobustCommand|def|let|gdef|edef|xdef)\*?\s*\{?\s*$"
+)
 _DISPLAY_OPEN = re.compile(r"\\\[|\$\$|\\begin\s*\{(?P<env>(?:" + "|".join(ENVIRONMENTS) + r")\*?)\}")
 
 
@@ -70,12 +76,15 @@ class _Reader:
         events: list[tuple[int, str, re.Match[str] | tuple[int, macro_mod.Macro | macro_mod.DefinitionProblem]]] = []
         for m in _TAG_LINE.finditer(raw):
             events.append((m.start(), "tag", m))
+        for m in COMMAND_TAG.finditer(bare):
+            if not _DEFINING.search(bare, max(0, m.start() - 40), m.start()):
+                events.append((m.start(), "command", m))
         for m in _INCLUDE.finditer(bare):
             events.append((m.start(), "include", m))
         for offset, found in macro_mod.find_definitions(bare):
             events.append((offset, "macro", (offset, found)))
         events.sort(key=lambda e: e[0])
-        tag_offsets = [e[0] for e in events if e[1] == "tag"]
+        tag_offsets = [e[0] for e in events if e[1] in ("tag", "command")]
         for offset, kind, payload in events:
             if kind == "macro":
                 assert isinstance(payload, tuple)
@@ -98,6 +107,9 @@ class _Reader:
             elif kind == "include":
                 assert isinstance(payload, re.Match)
                 self._include(source, payload)
+            elif kind == "command":
+                assert isinstance(payload, re.Match)
+                self._command_tag(source, bare, payload, tag_offsets)
             else:
                 assert isinstance(payload, re.Match)
                 self._tag(source, bare, payload, tag_offsets)
@@ -137,11 +149,35 @@ class _Reader:
         self.read_path(target, at)
 
     def _tag(self, source: SourceFile, bare: str, m: re.Match[str], tag_offsets: list[int]) -> None:
-        loc = _loc(source, m.start("kind") - 2)
-        rest_start = m.start("rest")
         # A further '%' on the tag line starts the author's own remark.
         rest = re.split(r"(?<!\\)%", m.group("rest"), maxsplit=1)[0]
-        if m.group("kind") == "define":
+        self._tagged(source, bare, m.group("kind"), m.start("kind") - 2, rest, m.start("rest"), m.end(), tag_offsets)
+
+    def _command_tag(self, source: SourceFile, bare: str, m: re.Match[str], tag_offsets: list[int]) -> None:
+        """``\\qrclaim[options]`` (the brackets are optional) or ``\\qrdefine{NAME = ...}``."""
+        kind = m.group("kind")
+        extent = command_extent(bare, m)
+        if isinstance(extent, str):
+            self._problem("bad-option" if kind == "claim" else "bad-define", _loc(source, m.start()), extent, "")
+            return
+        rest_start, after = extent
+        rest = bare[rest_start : after - 1] if after > m.end() else ""
+        self._tagged(source, bare, kind, m.start(), rest, rest_start, after, tag_offsets)
+
+    def _tagged(
+        self,
+        source: SourceFile,
+        bare: str,
+        kind: str,
+        at: int,
+        rest: str,
+        rest_start: int,
+        after: int,
+        tag_offsets: list[int],
+    ) -> None:
+        """A tag of ``kind`` at offset ``at`` with option or definition text ``rest``; the display follows ``after``."""
+        loc = _loc(source, at)
+        if kind == "define":
             text = MappedText(rest, list(range(rest_start, rest_start + len(rest))), source)
             define = DefineTag(loc, None)
             try:
@@ -151,16 +187,15 @@ class _Reader:
             self.doc.items.append(define)
             return
         options, option_problems = parse_options(rest)
-        block = ClaimBlock(loc, options, [], "")
+        block = ClaimBlock(loc, options, [], "", source=" ".join(source.text[at:after].split()))
         for p in option_problems:
             block.problems.append(Diagnostic(p.code, "error", _loc(source, rest_start + p.offset), p.message, p.hint))
         self.doc.items.append(block)
-        after = m.end()
         i = after
         while i < len(bare) and bare[i] in " \t\r\n":
             i += 1
         opener = _DISPLAY_OPEN.match(bare, i)
-        next_tag = next((t for t in tag_offsets if t > m.start()), None)
+        next_tag = next((t for t in tag_offsets if t > at), None)
         if opener is None or (next_tag is not None and next_tag < i):
             block.problems.append(
                 Diagnostic(
@@ -187,6 +222,7 @@ class _Reader:
             )
             return
         block.environment = env
+        block.source = " ".join(source.text[opener.end() : close].split())
         content = MappedText(bare[opener.end() : close], list(range(opener.end(), close)), source)
         for row in rows_of(content, env):
             try:
@@ -206,6 +242,64 @@ class _Reader:
     def _problem(self, code: str, at: Location | None, message: str, hint: str) -> None:
         where = at or Location(str(self.root), 1, 1)
         self.doc.diagnostics.append(Diagnostic(code, "error", where, message, hint))
+
+
+def command_extent(bare: str, m: re.Match[str]) -> tuple[int, int] | str:
+    """Where a command tag's argument starts and where the tag ends, or what is wrong with it.
+
+    ``m`` is a match of :data:`COMMAND_TAG` in the comment-free text ``bare``.
+    """
+    kind = m.group("kind")
+    i = m.end()
+    while i < len(bare) and bare[i] in " \t\r\n":
+        i += 1
+    opener, closer = ("[", "]") if kind == "claim" else ("{", "}")
+    if i < len(bare) and bare[i] == opener:
+        close = _matching(bare, i, closer)
+        if close < 0:
+            return f"the {'options' if kind == 'claim' else 'definition'} of \\qr{kind} are never closed"
+        return i + 1, close + 1
+    if kind == "claim":
+        return m.end(), m.end()
+    return "\\qrdefine needs its definition in braces: \\qrdefine{F = E_4 E_6}"
+
+
+def find_tags(text: str) -> list[tuple[int, int, str]]:
+    """Every tag of a LaTeX source as the scanner reads it: (start, end, kind), in order.
+
+    Comment lines (``%@claim``, ``%@define``) and commands (``\\qrclaim[...]``,
+    ``\\qrdefine{...}``) alike; a claim tag tags the display that starts after ``end``.
+    """
+    bare = blank_comments(text)
+    found = [(m.start(), m.end(), m.group("kind")) for m in _TAG_LINE.finditer(text)]
+    for m in COMMAND_TAG.finditer(bare):
+        if _DEFINING.search(bare, max(0, m.start() - 40), m.start()):
+            continue
+        extent = command_extent(bare, m)
+        if not isinstance(extent, str):
+            found.append((m.start(), extent[1], m.group("kind")))
+    return sorted(found)
+
+
+def _matching(text: str, start: int, closer: str) -> int:
+    """The offset of ``closer`` matching the bracket at ``start``, outside braces; -1 if none."""
+    depth = 0
+    i = start + 1
+    while i < len(text):
+        c = text[i]
+        if c == "\\":
+            i += 2
+            continue
+        if c == "{":
+            depth += 1
+        elif c == "}":
+            if depth == 0:
+                return i if closer == "}" else -1
+            depth -= 1
+        elif c == closer and depth == 0:
+            return i
+        i += 1
+    return -1
 
 
 def _find_closer(text: str, start: int, closer: str, env: str) -> int:

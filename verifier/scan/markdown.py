@@ -60,7 +60,7 @@ def _tag(source: SourceFile, m: re.Match[str], macros: dict[str, macro_mod.Macro
         doc.items.append(define)
         return
     options, problems = parse_options(rest.replace("\n", " "))
-    block = ClaimBlock(loc, options, [], "")
+    block = ClaimBlock(loc, options, [], "", source=" ".join(text[m.start() : m.end()].split()))
     for p in problems:
         block.problems.append(Diagnostic(p.code, "error", _loc(source, rest_start + p.offset), p.message, p.hint))
     doc.items.append(block)
@@ -101,6 +101,7 @@ def _tag(source: SourceFile, m: re.Match[str], macros: dict[str, macro_mod.Macro
         )
         return
     block.environment = opener
+    block.source = " ".join(text[start:close].split())
     content = MappedText(text[start:close], list(range(start, close)), source)
     for row in rows_of(content, opener):
         try:
