@@ -12,6 +12,7 @@ from collections.abc import Callable, Iterator
 from typing import Any
 
 import pytest
+from hypothesis import HealthCheck, settings
 from verifier.api import ClaimResult, Report
 from verifier.screen import ScreenResult
 
@@ -21,6 +22,16 @@ from report_contract import validate_claim, validate_report
 # must not be answered from it, so it is off for the whole suite, subprocesses included;
 # tests of the cache turn it back on (monkeypatch.delenv).
 os.environ["QREFEREE_NO_CACHE"] = "1"
+
+# Property-based tests (hypothesis): a small, repeatable profile for CI, and a long campaign
+# for local runs with QREFEREE_HYPOTHESIS=large (DEVELOPERS.md, "Soundness campaigns").
+settings.register_profile(
+    "ci", max_examples=20, deadline=None, derandomize=True, suppress_health_check=[HealthCheck.too_slow]
+)
+settings.register_profile(
+    "large", max_examples=500, deadline=None, suppress_health_check=[HealthCheck.too_slow, HealthCheck.filter_too_much]
+)
+settings.load_profile(os.environ.get("QREFEREE_HYPOTHESIS", "ci"))
 
 
 def _wrapped(

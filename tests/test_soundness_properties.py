@@ -22,20 +22,13 @@ Profiles: the default runs a few examples per property so that CI stays fast; se
 from __future__ import annotations
 
 import math
-import os
 from dataclasses import dataclass
 from fractions import Fraction
 
 import pytest
-from hypothesis import HealthCheck, given, settings
+from hypothesis import given
 from hypothesis import strategies as st
 from verifier import check_text
-
-settings.register_profile(
-    "ci", max_examples=12, deadline=None, derandomize=True, suppress_health_check=[HealthCheck.too_slow]
-)
-settings.register_profile("large", max_examples=400, deadline=None, suppress_health_check=[HealthCheck.too_slow])
-settings.load_profile(os.environ.get("QREFEREE_HYPOTHESIS", "ci"))
 
 
 @dataclass(frozen=True)
