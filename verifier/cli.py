@@ -243,9 +243,11 @@ def _check(args: argparse.Namespace) -> int:
     combined = Report()
     status = EXIT_ALL_PROVED
     fail_on: frozenset[str] = frozenset()
-    for name in args.files:
-        settings = resolve_settings(args, Path(name))
-        report = check_with_settings(Path(name), settings, args.skip_files_without_tags)
+    manuscripts = [Path(name) for name in args.files]
+    all_settings = [resolve_settings(args, m) for m in manuscripts]
+    for settings, report in zip(
+        all_settings, check_manuscripts(manuscripts, all_settings, args.skip_files_without_tags), strict=True
+    ):
         if report is None:
             continue
         status = max(status, report.exit_status(settings.fail_on))
@@ -368,6 +370,30 @@ def check_with_settings(manuscript: Path, settings: Settings, skip_without_tags:
 
     apply_tag_defaults(doc, settings.tag_defaults)
     return check_document(doc, max_terms=settings.max_terms, jobs=settings.jobs, max_seconds=settings.max_seconds)
+
+
+def check_manuscripts(
+    manuscripts: list[Path], all_settings: list[Settings], skip_without_tags: bool = False
+) -> list[Report | None]:
+    """:func:`check_with_settings` for each manuscript, in order.
+
+    With several manuscripts and ``--jobs N`` (N > 1), the manuscripts are checked side by
+    side in N processes, each with its claims in order (see :mod:`verifier.parallel`);
+    a single manuscript has its claims shared out instead.  The reports are the same.
+    """
+    jobs = max((s.jobs for s in all_settings), default=1)
+    if len(manuscripts) < 2 or jobs < 2:
+        return [check_with_settings(m, s, skip_without_tags) for m, s in zip(manuscripts, all_settings, strict=True)]
+    import dataclasses
+
+    from verifier.api import warm_up
+    from verifier.parallel import map_in_order
+
+    warm_up()
+    one_each = [dataclasses.replace(s, jobs=1) for s in all_settings]
+    return map_in_order(
+        lambda i: check_with_settings(manuscripts[i], one_each[i], skip_without_tags), len(manuscripts), jobs
+    )
 
 
 def render_report(report: Report, fmt: str, verbose: bool) -> str:
