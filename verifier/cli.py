@@ -70,8 +70,12 @@ class UsageError(Exception):
     """A request the command refuses (exit status 2), with the message to print."""
 
 
-def build_parser() -> argparse.ArgumentParser:
-    """The argument parser (exposed for tests and documentation)."""
+def build_parser(plugins: bool = True) -> argparse.ArgumentParser:
+    """The argument parser (exposed for tests and documentation).
+
+    ``plugins=False`` leaves out the subcommands of :data:`PLUGIN_MODULES` (and their
+    imports), for a command line that cannot need them (see :func:`_needs_plugins`).
+    """
     from verifier import __version__
 
     parser = argparse.ArgumentParser(
@@ -145,7 +149,7 @@ def build_parser() -> argparse.ArgumentParser:
     recheck.add_argument("--format", choices=("text", "json"), default="text", help="output format")
     explain = sub.add_parser("explain", help="describe a diagnostic code")
     explain.add_argument("code", nargs="?", help="a code such as mixed-weight; none lists all codes")
-    for name in PLUGIN_MODULES:
+    for name in PLUGIN_MODULES if plugins else ():
         try:
             module = importlib.import_module(name)
         except ImportError:
@@ -158,7 +162,7 @@ def build_parser() -> argparse.ArgumentParser:
 
 def main(argv: Sequence[str] | None = None) -> int:
     """Run the command line; returns the exit status."""
-    parser = build_parser()
+    parser = build_parser(plugins=_needs_plugins(sys.argv[1:] if argv is None else list(argv)))
     args = parser.parse_args(argv)
     if args.command is None:
         parser.print_help()
@@ -180,6 +184,18 @@ def main(argv: Sequence[str] | None = None) -> int:
     except Exception as exc:  # a bug, not a finding: say so distinctly
         print(f"qreferee: internal error: {type(exc).__name__}: {exc}", file=sys.stderr)
         return EXIT_INTERNAL
+
+
+def _needs_plugins(argv: list[str]) -> bool:
+    """False when ``argv`` names a built-in command or asks only for ``--version``.
+
+    Then the plugin modules are not imported at all, so that ``qreferee --version`` and
+    ``qreferee check`` start without loading what ``watch`` and ``screen`` use.
+    """
+    words = [a for a in argv if not a.startswith("-")]
+    if words:
+        return words[0] not in ("check", "explain")
+    return not ("--version" in argv and not {"-h", "--help"} & set(argv))
 
 
 def _explain(code: str | None) -> int:
