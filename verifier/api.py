@@ -63,6 +63,7 @@ class ClaimResult:
     outcome: Outcome
     seconds: float = 0.0
     reading: str = ""  # the claim as the parser saw it (after the author's macros were expanded)
+    link: tuple[int, int] | None = None  # (i, n): the i-th link of a chain A = B = ... of n links
 
     @property
     def verdict(self) -> str:
@@ -378,10 +379,13 @@ def _block(
         return
     count = 0
     previous_side: MappedText | None = None
+    chains: list[list[ClaimResult]] = []  # the claims of each chain A = B = C (rows continued by "&= D" too)
     for row in block.rows:
         text, modulus, start_n = _qualifiers(row.text, block.options)
         stripped = text.text.lstrip()
         continuation = stripped.startswith(("=", "\\ne", "\\not="))
+        if not (continuation and previous_side is not None):
+            chains.append([])
         offset = 0
         if continuation and previous_side is not None:
             offset = len(previous_side) + 1
@@ -431,11 +435,17 @@ def _block(
             )
             if isinstance(pending_claim, ClaimResult):
                 report.claims.append(pending_claim)
+                chains[-1].append(pending_claim)
             else:
                 report.claims.append(pending_claim.result)
+                chains[-1].append(pending_claim.result)
                 pending.append(pending_claim)
         last = parsed.sides[-1]
         previous_side = text.slice(last.span[0], last.span[1])
+    for chain in chains:
+        if len(chain) > 1:
+            for i, result in enumerate(chain, start=1):
+                result.link = (i, len(chain))
 
 
 def _claim(

@@ -57,12 +57,14 @@ PLUGIN_MODULES = ("verifier.watch", "verifier.screen")
 FORMATS = ("text", "json", "html", "sarif")
 
 ANNOTATE_HELP = (
-    "also write a copy of the manuscript (one FILE) to OUT with each claim's verdict next to it. "
+    "also write a copy of the manuscript (one FILE) to OUT with each claim's verdict next to it; "
+    "if OUT ends with '/' or is a folder, a copy of every file of the paper (\\input files too) under OUT, "
+    "at the same relative paths, so that the copy compiles as a whole. "
     "LaTeX: a coloured note after each tagged display, on the same line, so line numbers are kept; "
-    "Markdown: a blockquote line under each claim block. Only claims of FILE itself are placed; "
-    "claims in \\input files are counted in a summary. To get FILE back byte for byte, delete every span "
-    "from \\iffalse<qreferee>\\fi to \\iffalse</qreferee>\\fi (LaTeX) or every line containing "
-    "<!-- qreferee-note --> (Markdown)"
+    "Markdown: a blockquote under each claim block, between blank lines. With a single OUT file only the claims "
+    "of FILE itself are placed; claims in \\input files are counted in a summary. To get FILE back byte for byte, "
+    "delete every span from \\iffalse<qreferee>\\fi to \\iffalse</qreferee>\\fi (LaTeX), or every line "
+    "containing <!-- qreferee-note --> and the blank line before and after each group of them (Markdown)"
 )
 
 
@@ -248,13 +250,16 @@ def _check(args: argparse.Namespace) -> int:
 
     if args.annotate is not None and len(args.files) != 1:
         raise UsageError("--annotate takes exactly one manuscript")
+    tree = args.annotate is not None and is_folder_target(args.annotate)  # a copy of every file of the paper
     inputs = [Path(f) for f in args.files]
-    targets = [Path(t) for t in (args.output, args.annotate, args.proof_tex) if t is not None and t != "-"]
+    targets = [
+        Path(t) for t in (args.output, None if tree else args.annotate, args.proof_tex) if t is not None and t != "-"
+    ]
     _refuse_inputs(targets, inputs)
     if args.output is not None and args.annotate is not None and _same_file(Path(args.output), Path(args.annotate)):
         raise UsageError("--output and --annotate name the same file")
 
-    annotate_source = _read_for_annotation(Path(args.files[0])) if args.annotate is not None else None
+    annotate_source = _read_for_annotation(Path(args.files[0])) if args.annotate is not None and not tree else None
 
     combined = Report()
     status = EXIT_ALL_PROVED
@@ -274,7 +279,9 @@ def _check(args: argparse.Namespace) -> int:
     # \input files are inputs too.
     _refuse_inputs(targets, [Path(f) for f in combined.files])
 
-    if args.annotate is not None and annotate_source is not None:
+    if tree:
+        write_paper_copies(combined, Path(args.files[0]).resolve().parent, Path(args.annotate))
+    elif args.annotate is not None and annotate_source is not None:
         _annotate(Path(args.files[0]), annotate_source, Path(args.annotate), combined)
     if args.proof_tex is not None:
         from verifier.report import proof_tex
@@ -461,6 +468,36 @@ def _annotate(source: Path, text: str, out: Path, report: Report) -> None:
         raise UsageError(f"cannot annotate {source}: it could not be read")
     annotated = annotate(text, report, report.files[0], markdown=is_markdown(source.name))
     write_atomic(out, annotated.encode("utf-8", errors="surrogateescape"))
+
+
+def is_folder_target(target: str) -> bool:
+    """``--annotate OUT`` names a folder: it ends with a slash, or is an existing folder."""
+    return target.endswith(("/", os.sep)) or Path(target).is_dir()
+
+
+def write_paper_copies(report: Report, root: Path, out: Path) -> None:
+    """An annotated copy of every file of the paper under ``out``, at its path relative to ``root``.
+
+    Every target is checked before anything is written: none may be a file the run read.
+    """
+    from verifier.annotate import AlreadyAnnotated, paper_copies
+
+    if not report.files:
+        raise UsageError("cannot annotate: the manuscript could not be read")
+    try:
+        copies = paper_copies(report, root)
+    except AlreadyAnnotated as exc:
+        raise UsageError(str(exc)) from exc
+    except (OSError, ValueError) as exc:
+        raise UsageError(f"cannot annotate: {exc}") from exc
+    targets = {out / rel: data for rel, data in copies.items()}
+    _refuse_inputs(list(targets), [Path(f) for f in report.files])
+    for target, data in targets.items():
+        try:
+            target.parent.mkdir(parents=True, exist_ok=True)
+        except OSError as exc:
+            raise UsageError(f"cannot write {target}: {exc.strerror or exc}") from exc
+        write_atomic(target, data)
 
 
 def _same_file(a: Path, b: Path) -> bool:
