@@ -1,9 +1,12 @@
 r"""An annotated copy of a manuscript: every tagged claim carries its verdict.
 
-Only the claims of the main file are placed next to their display; claims read from
-``\input``/``\include`` files, claims whose display cannot be found (an orphan tag, an
-unclosed display) and document diagnostics are listed in a summary instead.  The input
-is never modified: the command line writes the copy to another file.
+With one output file (:func:`annotate`), only the claims of the main file are placed next
+to their display; claims read from ``\input``/``\include`` files are counted in the
+summary.  With an output folder (:func:`annotate_paper`, :func:`paper_copies`), every file
+of the paper gets its own copy, at the same relative path, so that the copies compile as a
+whole.  Claims whose display cannot be found (an orphan tag, an unclosed display) and
+document diagnostics are listed in the summary.  The input is never modified: the command
+line writes the copies elsewhere.
 
 LaTeX
 =====
@@ -11,7 +14,7 @@ LaTeX
 Every insertion is one span on one line, between two markers that typeset nothing
 (``\iffalse ... \fi`` skips its text, so no package is needed)::
 
-    \iffalse<qreferee>\fi ... \iffalse</qreferee>\fi
+    \iffalse<qreferee>\fi ... \iffalse</qreferee>\fi{}
 
 No line is added or removed, so every line of the copy keeps its number (and pdflatex's
 messages about the copy point at the source's lines).  The spans are:
@@ -29,9 +32,10 @@ messages about the copy point at the source's lines).  The spans are:
 * just before ``\end{document}`` (at the start, for a file without one): the summary.
 
 To get the source back byte for byte, delete every span from ``\iffalse<qreferee>\fi`` to
-the next ``\iffalse</qreferee>\fi``, for instance with::
+the next ``\iffalse</qreferee>\fi{}`` (the ``{}`` keeps a letter after the span from
+joining the ``\fi``), for instance with::
 
-    perl -pe 's{\\iffalse<qreferee>\\fi.*?\\iffalse</qreferee>\\fi}{}g' copy.tex > source.tex
+    perl -pe 's{\\iffalse<qreferee>\\fi.*?\\iffalse</qreferee>\\fi\{\}}{}g' copy.tex > source.tex
 
 or call :func:`strip_annotations`.  The text inside a span is ASCII and its backslashes
 are escaped, so a span never contains the closing marker early.
@@ -39,14 +43,19 @@ are escaped, so a span never contains the closing marker early.
 Markdown
 ========
 
-Every insertion is a whole line that contains the marker ``<!-- qreferee-note -->``.
-After the line that closes each tagged math block come a blockquote line with the
-verdict (one list item per claim when the block holds several) and a line holding only
-the marker, an HTML comment that ends the blockquote so that the following text is not
-drawn into it.  The summary goes at the end of the file.  Both render in any Markdown
-viewer.  To get the source back, delete every line that contains the marker::
+Every insertion is a group of whole lines around the marker ``<!-- qreferee-note -->``.
+After the line that closes each tagged math block come a blank line, a blockquote line
+with the verdict (one list item per claim when the block holds several), a line holding
+only the marker (an HTML comment) and another blank line: Pandoc and CommonMark both need
+the blank lines to start and end a blockquote, so the text after the block is not drawn
+into it.  The summary goes at the end of the file, after a blank line.  The notes are
+printable ASCII with plain-text verdicts (``**qreferee: proved**``), so the copy also goes
+through Pandoc to PDF with a default LaTeX engine.  To get the source back, delete every
+line that contains the marker, the blank line just before each group of them and the
+blank line just after it (every group but the summary has one); :data:`MARKDOWN_STRIP` is
+that as a Perl substitution::
 
-    sed '/<!-- qreferee-note -->/d' copy.md > source.md
+    perl -0777 -pe 's/^\r?\n(?:[^\n]*<!-- qreferee-note -->[^\n]*(?:\n|\z))+(?:\r?\n)?//mg' copy.md > source.md
 
 with one exception: if the source did not end with a line break, the copy gained a
 ``\n`` before its first note line at the end, and that ``\n`` must go too
@@ -72,8 +81,11 @@ from verifier.scan.markdown import fenced_ranges as _fenced_ranges
 from verifier.scan.text import blank_comments
 
 LATEX_OPEN = r"\iffalse<qreferee>\fi"
-LATEX_CLOSE = r"\iffalse</qreferee>\fi"
+# The closing marker ends in "{}" so that text right after it (a letter) never merges with \fi.
+LATEX_CLOSE = r"\iffalse</qreferee>\fi{}"
 MARKDOWN_MARK = "<!-- qreferee-note -->"
+# Perl (-0777) substitution that removes the Markdown notes (see the module documentation).
+MARKDOWN_STRIP = r"s/^\r?\n(?:[^\n]*<!-- qreferee-note -->[^\n]*(?:\n|\z))+(?:\r?\n)?//mg"
 
 _LATEX_SPAN = re.compile(re.escape(LATEX_OPEN) + r".*?" + re.escape(LATEX_CLOSE))
 

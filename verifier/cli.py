@@ -63,7 +63,7 @@ ANNOTATE_HELP = (
     "LaTeX: a coloured note after each tagged display, on the same line, so line numbers are kept; "
     "Markdown: a blockquote under each claim block, between blank lines. With a single OUT file only the claims "
     "of FILE itself are placed; claims in \\input files are counted in a summary. To get FILE back byte for byte, "
-    "delete every span from \\iffalse<qreferee>\\fi to \\iffalse</qreferee>\\fi (LaTeX), or every line "
+    "delete every span from \\iffalse<qreferee>\\fi to \\iffalse</qreferee>\\fi{} (LaTeX), or every line "
     "containing <!-- qreferee-note --> and the blank line before and after each group of them (Markdown)"
 )
 
@@ -454,7 +454,7 @@ def _read_for_annotation(source: Path) -> str | None:
         how = (
             "delete the lines containing <!-- qreferee-note -->"
             if markdown
-            else "delete each span from \\iffalse<qreferee>\\fi to \\iffalse</qreferee>\\fi"
+            else "delete each span from \\iffalse<qreferee>\\fi to \\iffalse</qreferee>\\fi{}"
         )
         raise UsageError(f"{source} already contains qreferee annotations; strip them first ({how})")
     return text

@@ -166,6 +166,11 @@ def message_tex(message: str) -> str:
     return "".join(out)
 
 
+# Commands that change what TeX reads or defines, or that cannot stand in a note.
+_UNSAFE_COMMAND = re.compile(
+    r"\\(?:if[A-Za-z]*|fi|else|or|csname|endcsname|catcode|[egx]?def|let|begin|end|label|tag|input|include"
+    r"|(?:re|provide|new)command|write|immediate|open(?:out|in)|read|special|expandafter|noexpand|par)(?![A-Za-z])"
+)
 _SAFE_MATH = re.compile(r"[A-Za-z0-9 \\{}^_()+\-=*/.,;:!'\[\]|<>]*")
 
 
@@ -178,7 +183,7 @@ def reading_tex(reading: str) -> str | None:
     text = " ".join(reading.split())
     if not text or len(text) > 160 or not _SAFE_MATH.fullmatch(text):
         return None
-    if "\\\\" in text or re.search(r"\\(?:begin|end|label|tag|input|include|def|newcommand)(?![A-Za-z])", text):
+    if "\\\\" in text or _UNSAFE_COMMAND.search(text):
         return None
     depth = 0
     for i, ch in enumerate(text):
