@@ -914,11 +914,9 @@ def section_processes(quick: bool) -> bool:
     import subprocess
     import tempfile
 
-    from verifier.parallel import available_cores
-
     print("\n== 6. start-up, a heavy claim beside a light one, several processes ==")
     env = {**os.environ, "PYTHONPATH": str(_REPO)}
-    cores = available_cores()
+    cores = len(os.sched_getaffinity(0)) if hasattr(os, "sched_getaffinity") else (os.cpu_count() or 1)
     load = os.getloadavg()[0] if hasattr(os, "getloadavg") else float("nan")
     print(f"   {cores} cores; load average {load:.2f} before this section (other work slows the parallel figures)")
 
