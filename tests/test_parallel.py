@@ -153,3 +153,16 @@ def test_results_come_back_in_order_whatever_the_split() -> None:
     assert map_in_order(lambda i: i, 1, 4) == [0]
     assert map_in_order(lambda i: i, 0, 4) == []
     assert run_length(20, 2) == 2 and run_length(3, 2) == 1
+
+
+def test_work_lost_with_a_worker_is_done_again_here() -> None:
+    import os
+
+    parent = os.getpid()
+
+    def work(i: int) -> int:
+        if i == 5 and os.getpid() != parent:
+            os._exit(1)  # the worker dies (as if killed for its memory)
+        return 10 * i
+
+    assert map_in_order(work, 12, 2) == [10 * i for i in range(12)]

@@ -10,7 +10,8 @@ How the work is split: items are handed out one at a time to whichever worker is
 (a heavy claim does not hold up the light ones queued behind it), but in *runs* of
 neighbouring items, since neighbours in a manuscript tend to use the same forms and a
 worker keeps its series cache between items.  Where fork is not available, or ``jobs``
-is 1, or there is only one item, everything runs in this process, in order.
+is 1, or there is only one item, everything runs in this process, in order.  If a worker
+dies, the runs it left undone are computed here.
 """
 
 from __future__ import annotations
@@ -18,6 +19,8 @@ from __future__ import annotations
 import multiprocessing
 import os
 from collections.abc import Callable, Sequence
+from concurrent.futures import ProcessPoolExecutor
+from concurrent.futures.process import BrokenProcessPool
 from typing import Any, TypeVar
 
 T = TypeVar("T")
@@ -49,7 +52,11 @@ def _run(span: tuple[int, int]) -> list[Any]:
 
 
 def map_in_order(work: Callable[[int], T], count: int, jobs: int) -> list[T]:
-    """``[work(0), ..., work(count - 1)]``, computed in up to ``jobs`` forked processes."""
+    """``[work(0), ..., work(count - 1)]``, computed in up to ``jobs`` forked processes.
+
+    A run whose worker process dies (killed for its memory, say) is computed again in this
+    process, so the result is always the one a single process gives.
+    """
     global _WORK
     jobs = min(jobs, count)
     if jobs <= 1 or not can_fork():
@@ -57,9 +64,19 @@ def map_in_order(work: Callable[[int], T], count: int, jobs: int) -> list[T]:
     step = run_length(count, jobs)
     spans: Sequence[tuple[int, int]] = [(i, min(i + step, count)) for i in range(0, count, step)]
     previous, _WORK = _WORK, work
+    parts: list[list[T] | None] = [None] * len(spans)
     try:
-        with multiprocessing.get_context("fork").Pool(jobs) as pool:
-            parts = pool.map(_run, spans, chunksize=1)
+        with ProcessPoolExecutor(max_workers=jobs, mp_context=multiprocessing.get_context("fork")) as pool:
+            futures = [pool.submit(_run, span) for span in spans]
+            for k, future in enumerate(futures):
+                try:
+                    parts[k] = future.result()
+                except BrokenProcessPool:
+                    break
     finally:
         _WORK = previous
-    return [result for part in parts for result in part]
+    out: list[T] = []
+    for k, span in enumerate(spans):
+        part = parts[k]
+        out.extend(part if part is not None else [work(i) for i in range(*span)])
+    return out
