@@ -281,3 +281,14 @@ def test_pandoc_renders_the_markdown_copy_to_pdf(tmp_path: Path) -> None:
     text = subprocess.run([pdftotext, str(tmp_path / "note.pdf"), "-"], capture_output=True, text=True).stdout
     shown = re.findall(r"qreferee: (proved|refuted|unproven|error)", " ".join(text.split()))
     assert sorted(shown) == sorted(c.verdict for c in check_path(NOTE_MD).claims)
+
+
+def test_a_markdown_manuscript_in_folder_mode_and_a_suggestion_said_once(tmp_path: Path) -> None:
+    shutil.copy(NOTE_MD, tmp_path / "note.md")
+    proc = run("check", "note.md", "--annotate", "out/", cwd=tmp_path)
+    assert proc.returncode == 2, proc.stderr
+    copy = (tmp_path / "out" / "note.md").read_text(encoding="utf-8")
+    assert strip_annotations(copy, True) == NOTE_MD.read_text(encoding="utf-8")
+    for c in check_path(NOTE_MD).claims:
+        if c.outcome.suggestion:
+            assert copy.count(c.outcome.suggestion) == 1, c.outcome.suggestion

@@ -266,7 +266,7 @@ def _claim_message(c: ClaimResult) -> str:
     code = f" [{o.code}]" if o.code else ""
     hint = f" (hint: {o.hint})" if o.hint else ""
     suggestion = getattr(o, "suggestion", None)
-    fix = f" (suggested: {suggestion})" if suggestion else ""
+    fix = f" (suggested: {suggestion})" if suggestion and suggestion not in o.message else ""
     return " ".join(f"{o.message}{code}{hint}{fix}".split())
 
 
