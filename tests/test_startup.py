@@ -43,6 +43,7 @@ def test_check_help_does_not_load_the_plugins() -> None:
         (["--version"], False),
         (["check", "paper.tex", "--format", "json"], False),
         (["explain", "syntax"], False),
+        (["recheck", "report.json"], False),
         (["screen", "x.zip"], True),
         (["watch", "paper.tex"], True),
         (["--help"], True),

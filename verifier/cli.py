@@ -192,11 +192,11 @@ def _needs_plugins(argv: list[str]) -> bool:
     """False when ``argv`` names a built-in command or asks only for ``--version``.
 
     Then the plugin modules are not imported at all, so that ``qreferee --version`` and
-    ``qreferee check`` start without loading what ``watch`` and ``screen`` use.
+    ``qreferee check`` (or ``explain``, ``recheck``) start without loading what ``watch`` and ``screen`` use.
     """
     words = [a for a in argv if not a.startswith("-")]
     if words:
-        return words[0] not in ("check", "explain")
+        return words[0] not in ("check", "explain", "recheck")
     return not ("--version" in argv and not {"-h", "--help"} & set(argv))
 
 
