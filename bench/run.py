@@ -855,6 +855,184 @@ def section_level(quick: bool) -> bool:
 
 
 # ---------------------------------------------------------------------------------
+# Section 5: start-up, one heavy claim beside light ones, and several processes
+# ---------------------------------------------------------------------------------
+
+
+def _jacobi(d: int) -> str:
+    """theta(d tau)^4 in eta form (Jacobi's four squares, Rademacher, Topics, ch. 7)."""
+    return f"\\frac{{\\eta({2 * d}\\tau)^{{20}}}}{{\\eta({d}\\tau)^8\\eta({4 * d}\\tau)^8}}"
+
+
+def _mixed_claim(d: int, e: int) -> str:
+    """(theta(tau) theta(d tau))^(4e) against its eta form: weight 4e on Gamma_0(4d), real work."""
+    rhs = f"\\left({_jacobi(1)}\\right)^{{{e}}}\\left({_jacobi(d)}\\right)^{{{e}}}"
+    return f"%@claim\n\\[ \\theta(\\tau)^{{{4 * e}}}\\theta({d}\\tau)^{{{4 * e}}} = {rhs} \\]\n"
+
+
+def _folder_manuscript(i: int, quick: bool) -> str:
+    """Manuscript i of the folder: ordinary claims plus level-N identities of its own."""
+    text, _, _ = synthetic_manuscript(30 if quick else 60, seed=500 + i)
+    levels = (211 + 10 * i, 223 + 10 * i) if quick else (401 + 10 * i, 409 + 10 * i, 419 + 10 * i)
+    extra = "".join(_mixed_claim(d, 2 if quick else 3) for d in levels)
+    return text.replace("\\end{document}", extra + "\\end{document}")
+
+
+_LAST_CPU = 0.0  # CPU seconds of the last _run_cli process and its workers
+
+
+def _children_cpu() -> float:
+    import resource
+
+    usage = resource.getrusage(resource.RUSAGE_CHILDREN)
+    return usage.ru_utime + usage.ru_stime
+
+
+def _run_cli(args: list[str], env: dict[str, str]) -> tuple[float, str]:
+    """Wall seconds of one ``python -m verifier ARGS`` process, and its standard output."""
+    import subprocess
+
+    global _LAST_CPU
+    cpu0, t0 = _children_cpu(), perf()
+    done = subprocess.run([sys.executable, "-m", "verifier", *args], capture_output=True, text=True, env=env)
+    wall = perf() - t0
+    _LAST_CPU = _children_cpu() - cpu0
+    if done.returncode not in (0, 1, 2):
+        raise Mismatch(f"qreferee {' '.join(args[:2])} exited with {done.returncode}: {done.stderr[-300:]}")
+    return wall, done.stdout
+
+
+def _spin(n: int) -> int:
+    total = 0
+    for i in range(n):
+        total += i * i
+    return total
+
+
+def _capacity(n: int) -> float:
+    """How much faster n processes finish n equal pure-Python loops than one process does,
+    now: the parallel capacity this machine offers at the moment (n on an idle machine)."""
+    import multiprocessing
+
+    if n <= 1:
+        return 1.0
+    size = 1_500_000
+    t0 = perf()
+    for _ in range(n):
+        _spin(size)
+    serial = perf() - t0
+    t0 = perf()
+    with multiprocessing.get_context("fork").Pool(n) as pool:
+        pool.map(_spin, [size] * n)
+    return serial / (perf() - t0)
+
+
+def _claims_without_timing(out: str) -> list[Any]:
+    import json
+
+    return [{k: v for k, v in c.items() if k != "seconds"} for c in json.loads(out)["claims"]]
+
+
+def section_processes(quick: bool) -> bool:
+    import json
+    import os
+    import subprocess
+    import tempfile
+
+    print("\n== 6. start-up, a heavy claim beside a light one, several processes ==")
+    env = {**os.environ, "PYTHONPATH": str(_REPO)}
+    cores = len(os.sched_getaffinity(0)) if hasattr(os, "sched_getaffinity") else (os.cpu_count() or 1)
+    load = os.getloadavg()[0] if hasattr(os, "getloadavg") else float("nan")
+    print(f"   {cores} cores; load average {load:.2f} before this section (other work slows the parallel figures)")
+
+    # (a) start-up: qreferee --version against a bare interpreter, best of several.
+    def bare() -> float:
+        t0 = perf()
+        subprocess.run([sys.executable, "-c", "pass"], check=True)
+        return perf() - t0
+
+    t_bare = min(bare() for _ in range(5))
+    t_version = min(_run_cli(["--version"], env)[0] for _ in range(5))
+    print(
+        f"   (a) qreferee --version: {t_version * 1000:.0f} ms (target <= 150 ms); bare python {t_bare * 1000:.0f} ms; "
+        f"ratio {fmt_ratio(t_version / t_bare)}"
+    )
+
+    with tempfile.TemporaryDirectory(prefix="qreferee-bench-") as tmp:
+        folder = Path(tmp)
+        # (b) a 300-claim manuscript, start-up included.
+        text, _, _ = synthetic_manuscript(300, seed=77)
+        big = folder / "three-hundred.tex"
+        big.write_text(text, encoding="utf-8")
+        t_big, out = _run_cli(["check", str(big), "--format", "json"], env)
+        report = json.loads(out)
+        print(
+            f"   (b) a manuscript of 300 tagged blocks ({len(report['claims'])} claims), one process, start-up "
+            f"included: {t_big:.2f} s (target < 2 s); {t_big / t_version:.1f}x the start-up alone"
+        )
+
+        # (c) a light claim alone and beside a weight-48 claim on Gamma_0(1430).
+        light = f"%@claim name=light\n\\[ \\theta(\\tau)^4 = {_jacobi(1)} \\]\n"
+        heavy = "%@claim name=heavy\n\\[ E_4(1430\\tau)^{6} E_6(2\\tau)^4 = E_6(2\\tau)^4 E_4(1430\\tau)^{6} \\]\n"
+        alone = folder / "light.tex"
+        alone.write_text(light, encoding="utf-8")
+        beside = folder / "heavy-and-light.tex"
+        beside.write_text(heavy + light, encoding="utf-8")
+        seconds = {}
+        for path in (alone, beside):
+            _, out = _run_cli(["check", str(path), "--format", "json"], env)
+            for c in json.loads(out)["claims"]:
+                if c["verdict"] != "proved":
+                    raise Mismatch(f"{c['name']}: expected proved, got {c['verdict']}")
+                seconds[(path.name, c["name"])] = c["seconds"]
+        t_alone, t_beside = seconds[("light.tex", "light")], seconds[("heavy-and-light.tex", "light")]
+        print(
+            f"   (c) the level-4 claim alone {t_alone * 1000:.1f} ms, after the weight-48 level-1430 claim "
+            f"{t_beside * 1000:.1f} ms (ratio {fmt_ratio(t_beside / t_alone)}; the heavy claim itself "
+            f"{seconds[('heavy-and-light.tex', 'heavy')]:.2f} s)"
+        )
+
+        # (d) a folder of 20 manuscripts and (e) one long manuscript, with --jobs 1, 2, all cores.
+        paths = []
+        for i in range(20):
+            path = folder / f"m{i:02d}.tex"
+            path.write_text(_folder_manuscript(i, quick), encoding="utf-8")
+            paths.append(str(path))
+        long_text, _, _ = synthetic_manuscript(100 if quick else 200, seed=91)
+        extra = "".join(_mixed_claim(d, 2) for d in range(201, 401 if quick else 801, 10))
+        long_doc = folder / "long.tex"
+        long_doc.write_text(long_text.replace("\\end{document}", extra + "\\end{document}"), encoding="utf-8")
+        counts = sorted({1, 2, cores})
+        for label, files in (("(d) 20 manuscripts", paths), ("(e) one manuscript", [str(long_doc)])):
+            header = (
+                f"{'jobs':>6}{'wall s':>9}{'cpu s':>8}{'speed-up':>10}{'per core':>10}{'capacity':>10}{'vs cap':>8}"
+            )
+            print(f"   {label}, start-up included:")
+            print("   " + header)
+            base_wall, base_claims = 0.0, None
+            for n in counts:
+                capacity = _capacity(n)
+                wall, out = _run_cli(["check", *files, "--format", "json", "--jobs", str(n)], env)
+                capacity = (capacity + _capacity(n)) / 2  # the machine's capacity around the run
+                claims = _claims_without_timing(out)
+                if base_claims is None:
+                    base_wall, base_claims = wall, claims
+                elif claims != base_claims:
+                    raise Mismatch(f"--jobs {n} gives another report than --jobs 1")
+                speed = base_wall / wall
+                print(
+                    f"   {n:>6}{wall:>9.2f}{_LAST_CPU:>8.2f}{fmt_ratio(speed):>10}{speed / n:>10.2f}"
+                    f"{fmt_ratio(capacity):>10}{speed / capacity:>8.2f}",
+                    flush=True,
+                )
+            print(
+                f"   ({len(base_claims or [])} claims; same report with every --jobs; target per core >= 0.70 on idle "
+                "cores; capacity = what n processes of a pure-Python loop gain right now, vs cap = speed-up / capacity)"
+            )
+    return True
+
+
+# ---------------------------------------------------------------------------------
 
 
 # ---------------------------------------------------------------------------------
@@ -913,7 +1091,9 @@ def main(argv: list[str] | None = None) -> int:
         help="seconds allowed for all pure-Python cells together (default unlimited, 15 with --quick)",
     )
     ap.add_argument(
-        "--skip", default="", help="comma-separated sections to skip: engine, scan, pipeline, level, recheck"
+        "--skip",
+        default="",
+        help="comma-separated sections to skip: engine, scan, pipeline, level, recheck, processes",
     )
     args = ap.parse_args(argv)
     quick = args.quick
@@ -930,6 +1110,7 @@ def main(argv: list[str] | None = None) -> int:
         ("pipeline", lambda: section_pipeline(150 if quick else 600)),
         ("level", lambda: section_level(quick)),
         ("recheck", section_recheck),
+        ("processes", lambda: section_processes(quick)),
     ]
     for name, run in sections:
         if name in skip:

@@ -20,7 +20,7 @@ from verifier.arith.terms import Fun as tFun
 from verifier.arith.terms import Var as tVar
 from verifier.arith.terms import free_variables
 from verifier.arith.values import NotEvaluable, Values
-from verifier.budget import DEFAULT_MAX_SECONDS, TimeExceeded, decide_all, internal_error, time_limit
+from verifier.budget import DEFAULT_MAX_SECONDS, TimeExceeded, decide_timed, internal_error, time_limit
 from verifier.config import DEFAULT_FAIL_ON
 from verifier.diagnostics import Diagnostic
 from verifier.elaborate import ir
@@ -31,6 +31,7 @@ from verifier.forms.characters import parse_character
 from verifier.forms.registry import NotModular
 from verifier.location import Location
 from verifier.options import parse_group, parse_nome, parse_weight
+from verifier.parallel import map_in_order
 from verifier.parse import ast
 from verifier.parse.grammar import ParseFailure, parse_claim, parse_definition, parse_expression
 from verifier.parse.spaces import dimension_prefix, parse_space, split_membership
@@ -62,6 +63,7 @@ class ClaimResult:
     outcome: Outcome
     seconds: float = 0.0
     reading: str = ""  # the claim as the parser saw it (after the author's macros were expanded)
+    link: tuple[int, int] | None = None  # (i, n): the i-th link of a chain A = B = ... of n links
 
     @property
     def verdict(self) -> str:
@@ -165,6 +167,29 @@ def check_path(
     return check_document(doc, max_terms=max_terms, jobs=jobs, max_seconds=max_seconds)
 
 
+def check_paths(
+    paths: list[str | Path],
+    max_terms: int = DEFAULT_MAX_TERMS,
+    jobs: int = 1,
+    max_seconds: float | None = DEFAULT_MAX_SECONDS,
+) -> list[Report]:
+    """One report per manuscript, in order; ``jobs > 1`` shares the processes out.
+
+    Several manuscripts are checked side by side, one process each at a time (each one's
+    claims in order, with its own series cache); a single manuscript has its claims
+    shared out instead.  Either way the reports are the ones a single process gives.
+    """
+    if len(paths) > 1 and jobs > 1:
+        warm_up()
+        return map_in_order(lambda i: check_path(paths[i], max_terms, 1, max_seconds), len(paths), jobs)
+    return [check_path(p, max_terms=max_terms, jobs=jobs, max_seconds=max_seconds) for p in paths]
+
+
+def warm_up() -> None:
+    """Build the claim grammar once here, so that forked workers inherit it."""
+    parse_claim("1 = 1")
+
+
 def check_text(
     text: str,
     filename: str = "<text>",
@@ -201,6 +226,8 @@ def check_document(
     ``max_seconds`` bounds the time of each claim (see :mod:`verifier.budget`).
     """
     report = Report(diagnostics=list(doc.diagnostics), files=list(doc.files))
+    if jobs > 1:
+        warm_up()
     elaborator = Elaborator()
     prover = Prover(AtomTable(), max_terms=max_terms)
     pending: list[_Pending] = []
@@ -209,39 +236,46 @@ def check_document(
             _define(item, elaborator, report)
         else:
             _block(item, elaborator, report, pending)
-    identities = [p for p in pending if p.task is None]
-    decided = decide_all([(p.left, p.right, p.rel, p.unit) for p in identities], jobs, max_terms, max_seconds, prover)
-    for p, (outcome, seconds) in zip(identities, decided, strict=True):
-        p.result.outcome = _check_character(outcome, p.character)
+    decided = map_in_order(lambda i: _decide(pending[i], prover, max_seconds), len(pending), jobs)
+    for p, (outcome, seconds) in zip(pending, decided, strict=True):
+        p.result.outcome = outcome
         p.result.seconds = seconds
-    for p in pending:
-        if p.task is not None:
-            start = time.perf_counter()
-            try:
-                with time_limit(max_seconds):
-                    p.result.outcome = p.task(prover)
-            except TimeExceeded:
-                p.result.outcome = Outcome(
-                    "error",
-                    p.result.outcome.kind,
-                    f"stopped after {max_seconds:g} s (the time budget)",
-                    code="time-budget",
-                    hint="raise --max-seconds if this is intended",
-                )
-            except Exception as exc:  # a bug: this claim only
-                p.result.outcome = internal_error(p.result.outcome.kind, exc)
-            p.result.seconds = time.perf_counter() - start
-    for p in pending:
-        o = p.result.outcome
-        if p.suggest is not None and o.verdict == "refuted" and o.kind == "equality":
-            try:
-                with time_limit(max_seconds):
-                    o.suggestion = p.suggest(prover)
-            except Exception:  # a suggestion is a courtesy; it never changes a verdict
-                o.suggestion = None
-            if o.suggestion:
-                o.message += f"; suggestion: {o.suggestion}"
     return report
+
+
+def _decide(p: _Pending, prover: Prover, max_seconds: float | None) -> tuple[Outcome, float]:
+    """Decide one pending claim (and look for a correction if it is refuted).
+
+    Returns the outcome and the seconds this claim's own work took: its series, its proof
+    or witness, and its suggestion.
+    """
+    start = time.perf_counter()
+    if p.task is None:
+        outcome, _ = decide_timed(prover, (p.left, p.right, p.rel, p.unit), max_seconds)
+        outcome = _check_character(outcome, p.character)
+    else:
+        try:
+            with time_limit(max_seconds):
+                outcome = p.task(prover)
+        except TimeExceeded:
+            outcome = Outcome(
+                "error",
+                p.result.outcome.kind,
+                f"stopped after {max_seconds:g} s (the time budget)",
+                code="time-budget",
+                hint="raise --max-seconds if this is intended",
+            )
+        except Exception as exc:  # a bug: this claim only
+            outcome = internal_error(p.result.outcome.kind, exc)
+    if p.suggest is not None and outcome.verdict == "refuted" and outcome.kind == "equality":
+        try:
+            with time_limit(max_seconds):
+                outcome.suggestion = p.suggest(prover)
+        except Exception:  # a suggestion is a courtesy; it never changes a verdict
+            outcome.suggestion = None
+        if outcome.suggestion:
+            outcome.message += f"; suggestion: {outcome.suggestion}"
+    return outcome, time.perf_counter() - start
 
 
 def _define(item: DefineTag, elaborator: Elaborator, report: Report) -> None:
@@ -345,10 +379,13 @@ def _block(
         return
     count = 0
     previous_side: MappedText | None = None
+    chains: list[list[ClaimResult]] = []  # the claims of each chain A = B = C (rows continued by "&= D" too)
     for row in block.rows:
         text, modulus, start_n = _qualifiers(row.text, block.options)
         stripped = text.text.lstrip()
         continuation = stripped.startswith(("=", "\\ne", "\\not="))
+        if not (continuation and previous_side is not None):
+            chains.append([])
         offset = 0
         if continuation and previous_side is not None:
             offset = len(previous_side) + 1
@@ -398,11 +435,17 @@ def _block(
             )
             if isinstance(pending_claim, ClaimResult):
                 report.claims.append(pending_claim)
+                chains[-1].append(pending_claim)
             else:
                 report.claims.append(pending_claim.result)
+                chains[-1].append(pending_claim.result)
                 pending.append(pending_claim)
         last = parsed.sides[-1]
         previous_side = text.slice(last.span[0], last.span[1])
+    for chain in chains:
+        if len(chain) > 1:
+            for i, result in enumerate(chain, start=1):
+                result.link = (i, len(chain))
 
 
 def _claim(

@@ -57,12 +57,14 @@ PLUGIN_MODULES = ("verifier.watch", "verifier.screen")
 FORMATS = ("text", "json", "html", "sarif")
 
 ANNOTATE_HELP = (
-    "also write a copy of the manuscript (one FILE) to OUT with each claim's verdict next to it. "
+    "also write a copy of the manuscript (one FILE) to OUT with each claim's verdict next to it; "
+    "if OUT ends with '/' or is a folder, a copy of every file of the paper (\\input files too) under OUT, "
+    "at the same relative paths, so that the copy compiles as a whole. "
     "LaTeX: a coloured note after each tagged display, on the same line, so line numbers are kept; "
-    "Markdown: a blockquote line under each claim block. Only claims of FILE itself are placed; "
-    "claims in \\input files are counted in a summary. To get FILE back byte for byte, delete every span "
-    "from \\iffalse<qreferee>\\fi to \\iffalse</qreferee>\\fi (LaTeX) or every line containing "
-    "<!-- qreferee-note --> (Markdown)"
+    "Markdown: a blockquote under each claim block, between blank lines. With a single OUT file only the claims "
+    "of FILE itself are placed; claims in \\input files are counted in a summary. To get FILE back byte for byte, "
+    "delete every span from \\iffalse<qreferee>\\fi to \\iffalse</qreferee>\\fi{} (LaTeX), or every line "
+    "containing <!-- qreferee-note --> and the blank line before and after each group of them (Markdown)"
 )
 
 
@@ -70,8 +72,12 @@ class UsageError(Exception):
     """A request the command refuses (exit status 2), with the message to print."""
 
 
-def build_parser() -> argparse.ArgumentParser:
-    """The argument parser (exposed for tests and documentation)."""
+def build_parser(plugins: bool = True) -> argparse.ArgumentParser:
+    """The argument parser (exposed for tests and documentation).
+
+    ``plugins=False`` leaves out the subcommands of :data:`PLUGIN_MODULES` (and their
+    imports), for a command line that cannot need them (see :func:`_needs_plugins`).
+    """
     from verifier import __version__
 
     parser = argparse.ArgumentParser(
@@ -145,7 +151,7 @@ def build_parser() -> argparse.ArgumentParser:
     recheck.add_argument("--format", choices=("text", "json"), default="text", help="output format")
     explain = sub.add_parser("explain", help="describe a diagnostic code")
     explain.add_argument("code", nargs="?", help="a code such as mixed-weight; none lists all codes")
-    for name in PLUGIN_MODULES:
+    for name in PLUGIN_MODULES if plugins else ():
         try:
             module = importlib.import_module(name)
         except ImportError:
@@ -158,7 +164,7 @@ def build_parser() -> argparse.ArgumentParser:
 
 def main(argv: Sequence[str] | None = None) -> int:
     """Run the command line; returns the exit status."""
-    parser = build_parser()
+    parser = build_parser(plugins=_needs_plugins(sys.argv[1:] if argv is None else list(argv)))
     args = parser.parse_args(argv)
     if args.command is None:
         parser.print_help()
@@ -180,6 +186,18 @@ def main(argv: Sequence[str] | None = None) -> int:
     except Exception as exc:  # a bug, not a finding: say so distinctly
         print(f"qreferee: internal error: {type(exc).__name__}: {exc}", file=sys.stderr)
         return EXIT_INTERNAL
+
+
+def _needs_plugins(argv: list[str]) -> bool:
+    """False when ``argv`` names a built-in command or asks only for ``--version``.
+
+    Then the plugin modules are not imported at all, so that ``qreferee --version`` and
+    ``qreferee check`` (or ``explain``, ``recheck``) start without loading what ``watch`` and ``screen`` use.
+    """
+    words = [a for a in argv if not a.startswith("-")]
+    if words:
+        return words[0] not in ("check", "explain", "recheck")
+    return not ("--version" in argv and not {"-h", "--help"} & set(argv))
 
 
 def _explain(code: str | None) -> int:
@@ -232,20 +250,25 @@ def _check(args: argparse.Namespace) -> int:
 
     if args.annotate is not None and len(args.files) != 1:
         raise UsageError("--annotate takes exactly one manuscript")
+    tree = args.annotate is not None and is_folder_target(args.annotate)  # a copy of every file of the paper
     inputs = [Path(f) for f in args.files]
-    targets = [Path(t) for t in (args.output, args.annotate, args.proof_tex) if t is not None and t != "-"]
+    targets = [
+        Path(t) for t in (args.output, None if tree else args.annotate, args.proof_tex) if t is not None and t != "-"
+    ]
     _refuse_inputs(targets, inputs)
     if args.output is not None and args.annotate is not None and _same_file(Path(args.output), Path(args.annotate)):
         raise UsageError("--output and --annotate name the same file")
 
-    annotate_source = _read_for_annotation(Path(args.files[0])) if args.annotate is not None else None
+    annotate_source = _read_for_annotation(Path(args.files[0])) if args.annotate is not None and not tree else None
 
     combined = Report()
     status = EXIT_ALL_PROVED
     fail_on: frozenset[str] = frozenset()
-    for name in args.files:
-        settings = resolve_settings(args, Path(name))
-        report = check_with_settings(Path(name), settings, args.skip_files_without_tags)
+    manuscripts = [Path(name) for name in args.files]
+    all_settings = [resolve_settings(args, m) for m in manuscripts]
+    for settings, report in zip(
+        all_settings, check_manuscripts(manuscripts, all_settings, args.skip_files_without_tags), strict=True
+    ):
         if report is None:
             continue
         status = max(status, report.exit_status(settings.fail_on))
@@ -256,7 +279,9 @@ def _check(args: argparse.Namespace) -> int:
     # \input files are inputs too.
     _refuse_inputs(targets, [Path(f) for f in combined.files])
 
-    if args.annotate is not None and annotate_source is not None:
+    if tree:
+        write_paper_copies(combined, Path(args.files[0]).resolve().parent, Path(args.annotate))
+    elif args.annotate is not None and annotate_source is not None:
         _annotate(Path(args.files[0]), annotate_source, Path(args.annotate), combined)
     if args.proof_tex is not None:
         from verifier.report import proof_tex
@@ -370,6 +395,30 @@ def check_with_settings(manuscript: Path, settings: Settings, skip_without_tags:
     return check_document(doc, max_terms=settings.max_terms, jobs=settings.jobs, max_seconds=settings.max_seconds)
 
 
+def check_manuscripts(
+    manuscripts: list[Path], all_settings: list[Settings], skip_without_tags: bool = False
+) -> list[Report | None]:
+    """:func:`check_with_settings` for each manuscript, in order.
+
+    With several manuscripts and ``--jobs N`` (N > 1), the manuscripts are checked side by
+    side in N processes, each with its claims in order (see :mod:`verifier.parallel`);
+    a single manuscript has its claims shared out instead.  The reports are the same.
+    """
+    jobs = max((s.jobs for s in all_settings), default=1)
+    if len(manuscripts) < 2 or jobs < 2:
+        return [check_with_settings(m, s, skip_without_tags) for m, s in zip(manuscripts, all_settings, strict=True)]
+    import dataclasses
+
+    from verifier.api import warm_up
+    from verifier.parallel import map_in_order
+
+    warm_up()
+    one_each = [dataclasses.replace(s, jobs=1) for s in all_settings]
+    return map_in_order(
+        lambda i: check_with_settings(manuscripts[i], one_each[i], skip_without_tags), len(manuscripts), jobs
+    )
+
+
 def render_report(report: Report, fmt: str, verbose: bool) -> str:
     """The report in one of the output formats (text, json, html, sarif)."""
     if fmt == "json":
@@ -405,7 +454,7 @@ def _read_for_annotation(source: Path) -> str | None:
         how = (
             "delete the lines containing <!-- qreferee-note -->"
             if markdown
-            else "delete each span from \\iffalse<qreferee>\\fi to \\iffalse</qreferee>\\fi"
+            else "delete each span from \\iffalse<qreferee>\\fi to \\iffalse</qreferee>\\fi{}"
         )
         raise UsageError(f"{source} already contains qreferee annotations; strip them first ({how})")
     return text
@@ -419,6 +468,36 @@ def _annotate(source: Path, text: str, out: Path, report: Report) -> None:
         raise UsageError(f"cannot annotate {source}: it could not be read")
     annotated = annotate(text, report, report.files[0], markdown=is_markdown(source.name))
     write_atomic(out, annotated.encode("utf-8", errors="surrogateescape"))
+
+
+def is_folder_target(target: str) -> bool:
+    """``--annotate OUT`` names a folder: it ends with a slash, or is an existing folder."""
+    return target.endswith(("/", os.sep)) or Path(target).is_dir()
+
+
+def write_paper_copies(report: Report, root: Path, out: Path) -> None:
+    """An annotated copy of every file of the paper under ``out``, at its path relative to ``root``.
+
+    Every target is checked before anything is written: none may be a file the run read.
+    """
+    from verifier.annotate import AlreadyAnnotated, paper_copies
+
+    if not report.files:
+        raise UsageError("cannot annotate: the manuscript could not be read")
+    try:
+        copies = paper_copies(report, root)
+    except AlreadyAnnotated as exc:
+        raise UsageError(str(exc)) from exc
+    except (OSError, ValueError) as exc:
+        raise UsageError(f"cannot annotate: {exc}") from exc
+    targets = {out / rel: data for rel, data in copies.items()}
+    _refuse_inputs(list(targets), [Path(f) for f in report.files])
+    for target, data in targets.items():
+        try:
+            target.parent.mkdir(parents=True, exist_ok=True)
+        except OSError as exc:
+            raise UsageError(f"cannot write {target}: {exc.strerror or exc}") from exc
+        write_atomic(target, data)
 
 
 def _same_file(a: Path, b: Path) -> bool:

@@ -737,8 +737,12 @@ def screen(
     main: str | None = None,
     progress_stream: IO[str] | None = None,
     check: Callable[[ScannedDocument], Report] | None = None,
+    annotate_to: Path | None = None,
 ) -> ScreenResult:
     """Screen a submission (folder or archive).
+
+    ``annotate_to``: a folder that gets an annotated copy of every file of the paper, at
+    its path inside the submission (see :func:`verifier.cli.write_paper_copies`).
 
     Raises :class:`UnsafeArchive` if the archive is refused and :class:`NoMainFile` if no
     main file can be found.
@@ -804,6 +808,10 @@ def screen(
                     claims.append(c)
                     flags.append(True)
         report.claims = claims
+        if annotate_to is not None:
+            from verifier.cli import write_paper_copies
+
+            write_paper_copies(report, root, annotate_to)
         if submission.is_dir():
             label = str(submission)
             shown = [_shown(p) for p in (choice.path, *choice.candidates)]
@@ -874,6 +882,12 @@ def register(subparsers: argparse._SubParsersAction[argparse.ArgumentParser]) ->
     parser.add_argument(
         "--max-ratio", type=float, default=100.0, metavar="R", help="largest compression ratio R:1 (default 100)"
     )
+    parser.add_argument(
+        "--annotate",
+        metavar="OUTDIR",
+        default=None,
+        help="also write an annotated copy of every file of the paper under OUTDIR, at its path in the submission",
+    )
     parser.add_argument("-v", "--verbose", action="store_true", help="also print each claim as it was read")
     parser.set_defaults(func=run_screen_args)
     return parser
@@ -895,6 +909,7 @@ def run_screen_args(args: argparse.Namespace) -> int:
             max_seconds=args.max_seconds,
             limits=limits,
             main=args.main,
+            annotate_to=Path(args.annotate) if args.annotate else None,
         )
     except UnsafeArchive as exc:
         print(f"qreferee: refused {path.name}:", file=sys.stderr)

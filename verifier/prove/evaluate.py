@@ -11,7 +11,7 @@
   Nothing is divided: every piece is holomorphic on H (eta quotients have no zeros), and
   proofs apply the Sturm or valence bound to each piece (docs/method.md#sturm-bound, #poles-at-cusps, #quasimodular).
 
-Atom series are computed once per precision by an :class:`AtomTable` and reused.
+Atom series are cached by an :class:`AtomTable`, each to what the claims so far needed.
 """
 
 from __future__ import annotations
@@ -31,22 +31,31 @@ CharacterOf = Callable[[ir.Atom], int]  # the kernel of an atom's character
 
 
 class AtomTable:
-    """Exact series of atoms, each computed once at the largest precision asked for."""
+    """Exact series of atoms, each computed to the precision the claim at hand asks for.
+
+    A series is extended only when a later request needs more than is cached, and then by
+    at least half again, so a run of claims asking a little more each time rebuilds each
+    series only a logarithmic number of times.  A light claim never pays for a heavy one:
+    it gets a truncation of what is cached, or a build at (at most 1.5 times) its own need.
+    """
+
+    GROWTH = Fraction(3, 2)  # an extension asks for at least this factor more than is cached
 
     def __init__(self) -> None:
         self._series: dict[tuple[str, tuple[Any, ...]], QSeries] = {}
-        self._planned = 0
         self.computed = 0  # how many atom expansions were built (for tests and bench)
 
-    def plan(self, prec: int) -> None:
-        """Announce a precision that will be needed, so the first build is large enough."""
-        self._planned = max(self._planned, prec)
+    def cached_precision(self, key: str, params: tuple[Any, ...] = ()) -> int:
+        """How many terms of ``key(params)`` at scale 1 are cached (0 if none)."""
+        have = self._series.get((key, params))
+        return 0 if have is None else have.prec
 
     def base(self, key: str, params: tuple[Any, ...], prec: int) -> QSeries:
         """The series of an atom family member at scale 1, to at least ``prec``."""
         have = self._series.get((key, params))
         if have is None or have.prec < prec:
-            have = build_series(key, params, max(prec, self._planned))
+            target = prec if have is None else max(prec, int(have.prec * self.GROWTH))
+            have = build_series(key, params, target)
             self.computed += 1
             self._series[(key, params)] = have
         return have.truncate(prec)
