@@ -128,19 +128,20 @@ class Report:
 
     @property
     def exit_code(self) -> int:
-        """0 all proved, 1 some refuted/unproven, 2 some error or unreadable input."""
+        """0 all proved, 1 some refuted/unproven or nothing checked, 2 some error or unreadable input."""
         return self.exit_status()
 
     def exit_status(self, fail_on: Collection[str] = DEFAULT_FAIL_ON) -> int:
         """The exit status when only the verdicts in ``fail_on`` count as failures.
 
         ``error`` covers claims with an error and problems outside claims (an unreadable
-        file, a missing ``\\input``); it gives 2, ``refuted`` and ``unproven`` give 1.
+        file, a missing ``\\input``); it gives 2, ``refuted`` and ``unproven`` give 1.  A run
+        that checked no claim at all gives 1 whatever ``fail_on`` says: nothing checked is no pass.
         """
         s = self.summary
         if "error" in fail_on and (s["error"] or any(d.severity == "error" for d in self.diagnostics)):
             return 2
-        if any(s[v] for v in ("refuted", "unproven") if v in fail_on):
+        if any(s[v] for v in ("refuted", "unproven") if v in fail_on) or not self.claims:
             return 1
         return 0
 
@@ -240,7 +241,20 @@ def check_document(
     for p, (outcome, seconds) in zip(pending, decided, strict=True):
         p.result.outcome = outcome
         p.result.seconds = seconds
+    if not report.claims and not any(d.severity == "error" for d in report.diagnostics):
+        report.diagnostics.append(no_claims_warning(report.files[0] if report.files else "<text>"))
     return report
+
+
+NO_CLAIMS_HINT = (
+    "tag each identity with a %@claim line (Markdown: <!-- @claim -->), "
+    "or run 'qreferee screen --untagged FILE' to check the displays that carry no tag"
+)
+
+
+def no_claims_warning(file: str, hint: str = NO_CLAIMS_HINT) -> Diagnostic:
+    """The warning of a run that found nothing to check (its exit status is 1, never 0)."""
+    return Diagnostic("no-claims", "warning", Location(file, 1, 1), f"no tagged claims in {file}; nothing was checked", hint)
 
 
 def _decide(p: _Pending, prover: Prover, max_seconds: float | None) -> tuple[Outcome, float]:

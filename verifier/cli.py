@@ -79,6 +79,7 @@ def build_parser(plugins: bool = True) -> argparse.ArgumentParser:
     imports), for a command line that cannot need them (see :func:`_needs_plugins`).
     """
     from verifier import __version__
+    from verifier.argtypes import positive_int, positive_seconds
 
     parser = argparse.ArgumentParser(
         prog="qreferee",
@@ -111,20 +112,20 @@ def build_parser(plugins: bool = True) -> argparse.ArgumentParser:
     check.add_argument("--annotate", metavar="OUT", default=None, help=ANNOTATE_HELP)
     check.add_argument(
         "--max-terms",
-        type=int,
+        type=positive_int,
         default=None,
         metavar="N",
         help="most coefficients one claim may compute (default 50000); over it the claim is an error",
     )
     check.add_argument(
         "--max-seconds",
-        type=float,
+        type=positive_seconds,
         default=None,
         metavar="S",
         help="time budget of one claim in seconds (default 60); over it the claim is an error",
     )
     check.add_argument(
-        "--jobs", type=int, default=None, metavar="N", help="decide claims in N processes (same results as one)"
+        "--jobs", type=positive_int, default=None, metavar="N", help="decide claims in N processes (same results as one)"
     )
     check.add_argument("-v", "--verbose", action="store_true", help="also print each claim as it was read")
     check.add_argument(

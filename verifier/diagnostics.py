@@ -26,6 +26,11 @@ CODES: dict[str, tuple[str, str]] = {
     "include-missing": ("scan", "An \\input/\\include names a file that does not exist."),
     "include-cycle": ("scan", "An \\input/\\include would read a file that is already being read."),
     "orphan-tag": ("scan", "A claim tag is not followed by a display-math block."),
+    "near-miss-tag": (
+        "scan",
+        "A comment looks like a tag but is not one (a space, a capital letter, a plural), so nothing after it is checked.",
+    ),
+    "no-claims": ("scan", "The document has no tagged claim, so nothing was checked; the run does not pass."),
     "unclosed-display": ("scan", "A tagged display-math block is never closed."),
     "bad-option": ("scan", "A tag option cannot be read (no value, unclosed brace, given twice)."),
     "unknown-option": ("scan", "A tag option has a name the tool does not know."),

@@ -823,7 +823,26 @@ def screen(
                 f"{label}:{p.resolve().relative_to(root.resolve()).as_posix()}"
                 for p in (choice.path, *choice.candidates)
             ]
+    _explain_empty(report, untagged)
     return ScreenResult(label, shown[0], choice.reason, shown[1:], report, flags, notes, untagged)
+
+
+def _explain_empty(report: Report, untagged: bool) -> None:
+    """A submission with nothing checked says so (exit status 1), with the next step."""
+    from verifier.api import no_claims_warning
+
+    report.diagnostics[:] = [d for d in report.diagnostics if d.code != "no-claims"]
+    if report.claims or any(d.severity == "error" for d in report.diagnostics):
+        return
+    where = report.files[0] if report.files else "the submission"
+    if untagged:
+        warning = no_claims_warning(where, "no display reads as an identity between modular forms; tag the claims")
+        warning = replace(warning, message=f"no claims in {where}, tagged or untagged; nothing was checked")
+    else:
+        warning = no_claims_warning(
+            where, "run 'qreferee screen --untagged' to check the displays without a tag, or tag the claims"
+        )
+    report.diagnostics.append(warning)
 
 
 # -- the command line ------------------------------------------------------------------------
@@ -849,6 +868,8 @@ def render_text(result: ScreenResult, verbose: bool = False) -> str:
 
 def register(subparsers: argparse._SubParsersAction[argparse.ArgumentParser]) -> argparse.ArgumentParser:
     """Add the ``screen`` command to the ``qreferee`` command line."""
+    from verifier.argtypes import positive_int, positive_seconds, ratio
+
     parser = subparsers.add_parser(
         "screen",
         help="check a whole submission (folder, .zip or .tar.gz)",
@@ -869,18 +890,18 @@ def register(subparsers: argparse._SubParsersAction[argparse.ArgumentParser]) ->
     )
     parser.add_argument("-o", "--output", metavar="FILE", help="write the report to FILE instead of standard output")
     parser.add_argument("--untagged", action="store_true", help="also check displays that carry no tag")
-    parser.add_argument("--jobs", type=int, default=None, metavar="N", help="decide claims in N processes")
+    parser.add_argument("--jobs", type=positive_int, default=None, metavar="N", help="decide claims in N processes")
     parser.add_argument("--main", metavar="FILE", help="the main file, relative to the submission (skips detection)")
-    parser.add_argument("--max-terms", type=int, default=None, metavar="N", help="most coefficients one claim may use")
+    parser.add_argument("--max-terms", type=positive_int, default=None, metavar="N", help="most coefficients one claim may use")
     parser.add_argument(
-        "--max-seconds", type=float, default=None, metavar="S", help="time budget of one claim (default: the engine's)"
+        "--max-seconds", type=positive_seconds, default=None, metavar="S", help="time budget of one claim (default: the engine's)"
     )
     parser.add_argument(
-        "--max-size", type=int, default=100, metavar="MB", help="largest unpacked size of an archive (default 100)"
+        "--max-size", type=positive_int, default=100, metavar="MB", help="largest unpacked size of an archive (default 100)"
     )
-    parser.add_argument("--max-files", type=int, default=2000, metavar="N", help="most members of an archive")
+    parser.add_argument("--max-files", type=positive_int, default=2000, metavar="N", help="most members of an archive")
     parser.add_argument(
-        "--max-ratio", type=float, default=100.0, metavar="R", help="largest compression ratio R:1 (default 100)"
+        "--max-ratio", type=ratio, default=100.0, metavar="R", help="largest compression ratio R:1 (default 100)"
     )
     parser.add_argument(
         "--annotate",

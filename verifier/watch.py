@@ -550,6 +550,8 @@ class Watcher:
 
 def register(subparsers: argparse._SubParsersAction[argparse.ArgumentParser]) -> argparse.ArgumentParser:
     """Add the ``watch`` command to the ``qreferee`` command line."""
+    from verifier.argtypes import non_negative_seconds, positive_int
+
     parser = subparsers.add_parser(
         "watch",
         help="re-check a manuscript whenever it changes, printing only what changed",
@@ -572,7 +574,7 @@ def register(subparsers: argparse._SubParsersAction[argparse.ArgumentParser]) ->
     parser.add_argument("--annotate", metavar="OUT", help="rewrite an annotated copy of the manuscript to OUT")
     parser.add_argument(
         "--debounce",
-        type=float,
+        type=non_negative_seconds,
         default=DEFAULT_DEBOUNCE,
         metavar="SECONDS",
         help=f"quiet period before re-checking (default {DEFAULT_DEBOUNCE})",
@@ -580,7 +582,7 @@ def register(subparsers: argparse._SubParsersAction[argparse.ArgumentParser]) ->
     parser.add_argument(
         "--poll", action="store_true", help="poll the files instead of using notifications (network file systems)"
     )
-    parser.add_argument("--max-terms", type=int, default=None, metavar="N", help="most coefficients one claim may use")
+    parser.add_argument("--max-terms", type=positive_int, default=None, metavar="N", help="most coefficients one claim may use")
     parser.add_argument("--no-cache", action="store_true", help="keep verdicts in memory only (no .qreferee-cache/)")
     parser.add_argument("-v", "--verbose", action="store_true", help="also print each claim as it was read")
     parser.add_argument("--max-runs", type=int, default=None, help=argparse.SUPPRESS)

@@ -22,6 +22,16 @@ def claim_line(c: ClaimResult) -> str:
     return f"{c.location}: {SEVERITY[o.verdict]}: {o.verdict}{label}: {o.message}{code}{hint}"
 
 
+def _problems(report: Report) -> str:
+    """``2 problems outside claims (1 error, 1 warning)``: every diagnostic of the run."""
+    counts: dict[str, int] = {}
+    for d in report.diagnostics:
+        counts[d.severity] = counts.get(d.severity, 0) + 1
+    n = len(report.diagnostics)
+    parts = ", ".join(f"{k} {sev}{'s' if k != 1 else ''}" for sev, k in sorted(counts.items()))
+    return f"{n} problem{'s' if n != 1 else ''} outside claims ({parts})"
+
+
 def render(report: Report, verbose: bool = False, only: Collection[str] | None = None) -> str:
     """The whole terminal report: diagnostics, one line per claim, a summary.
 
@@ -45,10 +55,13 @@ def render(report: Report, verbose: bool = False, only: Collection[str] | None =
             lines.append(f"    claim: {c.source}")
     s = report.summary
     total = sum(s.values())
-    lines.append(
+    summary = (
         f"qreferee: {total} claim{'s' if total != 1 else ''}: {s['proved']} proved, {s['refuted']} refuted, "
         f"{s['unproven']} unproven, {s['error']} error{'s' if s['error'] != 1 else ''}"
     )
+    if report.diagnostics:
+        summary += "; " + _problems(report)
+    lines.append(summary)
     if only is not None:
         shown = ", ".join(v for v in VERDICTS if v in only) or "nothing"
         lines.append(f"qreferee: showing only {shown}; {hidden} claim{'s' if hidden != 1 else ''} not shown")

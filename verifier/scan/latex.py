@@ -23,6 +23,7 @@ from verifier.scan.document import (
     DefineTag,
     ScannedDocument,
 )
+from verifier.scan.files import decode_source, near_miss_tags
 from verifier.scan.options import parse_options
 from verifier.scan.text import MappedText, SourceFile, blank_comments
 
@@ -64,7 +65,12 @@ class _Reader:
         if len(data) > MAX_FILE_BYTES:
             self._problem("unreadable", at, f"{display} is larger than {MAX_FILE_BYTES} bytes", "")
             return
-        text = data.decode("utf-8", errors="replace")
+        decoded = decode_source(data, display)
+        if decoded.problem is not None:
+            self.doc.diagnostics.append(decoded.problem)
+        if decoded.text is None:
+            return
+        text = decoded.text
         self.active.append(resolved)
         self.doc.files.append(display)
         self.read_source(SourceFile(display, text, resolved))
@@ -73,6 +79,7 @@ class _Reader:
     def read_source(self, source: SourceFile) -> None:
         raw = source.text
         bare = blank_comments(raw)
+        self.doc.diagnostics.extend(near_miss_tags(source, markdown=False))
         events: list[tuple[int, str, re.Match[str] | tuple[int, macro_mod.Macro | macro_mod.DefinitionProblem]]] = []
         for m in _TAG_LINE.finditer(raw):
             events.append((m.start(), "tag", m))
@@ -128,10 +135,17 @@ class _Reader:
             )
             return
         # TeX resolves every \input against the folder it runs in: the main file's.
-        target = self.root / name
-        if target.suffix != ".tex" and not target.is_file():
-            target = target.with_name(target.name + ".tex")
-        target = target.resolve()
+        try:
+            target = self.root / name
+            if target.suffix != ".tex" and not target.is_file():
+                target = target.with_name(target.name + ".tex")
+            target = target.resolve()
+            exists = target.is_file()
+        except (OSError, ValueError) as exc:  # a name too long for the file system, a NUL byte
+            why = exc.strerror if isinstance(exc, OSError) and exc.strerror else str(exc)
+            shown = name if len(name) <= 60 else name[:57] + "..."
+            self._problem("include-missing", at, f"cannot read \\{m.group('cmd')}{{{shown}}}: {why}", "check the file name")
+            return
         if not target.is_relative_to(self.root):
             self._problem(
                 "include-outside",
@@ -140,7 +154,7 @@ class _Reader:
                 "keep all parts of the manuscript under the main file's folder",
             )
             return
-        if not target.is_file():
+        if not exists:
             self._problem("include-missing", at, f"{name} not found", "check the file name")
             return
         if target in self.active:

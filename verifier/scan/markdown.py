@@ -15,6 +15,7 @@ from verifier.location import Location
 from verifier.scan import macros as macro_mod
 from verifier.scan.display import join_continued_rows, normalise_row, rows_of
 from verifier.scan.document import MAX_FILE_BYTES, ClaimBlock, DefineTag, ScannedDocument
+from verifier.scan.files import decode_source, near_miss_tags
 from verifier.scan.options import parse_options
 from verifier.scan.text import MappedText, SourceFile
 
@@ -27,6 +28,7 @@ def scan_markdown_source(source: SourceFile) -> ScannedDocument:
     doc = ScannedDocument(files=[source.display])
     text = source.text
     fenced = fenced_ranges(text)
+    doc.diagnostics.extend(near_miss_tags(source, markdown=True, skip=fenced))
     # A tag shown inside a fenced code block is an example, not a claim.
     events: list[tuple[int, object]] = [
         (m.start(), m) for m in _TAG.finditer(text) if not any(a <= m.start() < b for a, b in fenced)
@@ -167,4 +169,11 @@ def scan_markdown_path(path: Path, display: str) -> ScannedDocument:
             )
         )
         return doc
-    return scan_markdown_source(SourceFile(display, data.decode("utf-8", errors="replace"), path))
+    decoded = decode_source(data, display)
+    if decoded.text is None:
+        doc = ScannedDocument()
+    else:
+        doc = scan_markdown_source(SourceFile(display, decoded.text, path))
+    if decoded.problem is not None:
+        doc.diagnostics.insert(0, decoded.problem)
+    return doc
