@@ -29,6 +29,7 @@ from verifier.elaborate.rescale import rescale_factor, rescale_side
 from verifier.forms import registry
 from verifier.forms.characters import parse_character
 from verifier.forms.registry import NotModular
+from verifier.limits import TooLarge, allow_exact_values
 from verifier.location import Location
 from verifier.options import parse_group, parse_nome, parse_weight
 from verifier.parallel import map_in_order
@@ -232,11 +233,23 @@ def check_document(
     elaborator = Elaborator()
     prover = Prover(AtomTable(), max_terms=max_terms)
     pending: list[_Pending] = []
+    allow_exact_values()
     for item in doc.items:
-        if isinstance(item, DefineTag):
-            _define(item, elaborator, report)
-        else:
-            _block(item, elaborator, report, pending)
+        # Reading a block (parsing, folding constants, elaborating) is under the time budget too.
+        claims_before, pending_before = len(report.claims), len(pending)
+        try:
+            with time_limit(max_seconds):
+                if isinstance(item, DefineTag):
+                    _define(item, elaborator, report)
+                else:
+                    _block(item, elaborator, report, pending)
+        except TimeExceeded:
+            del report.claims[claims_before:], pending[pending_before:]
+            report.claims.append(_unread(item, f"reading it took more than {max_seconds:g} s (the time budget)"))
+            report.claims[-1].outcome.code = "time-budget"
+        except (RecursionError, TooLarge, MemoryError) as exc:
+            del report.claims[claims_before:], pending[pending_before:]
+            report.claims.append(_unread(item, f"it is too large to read ({type(exc).__name__}: {exc})"))
     decided = map_in_order(lambda i: _decide(pending[i], prover, max_seconds), len(pending), jobs)
     for p, (outcome, seconds) in zip(pending, decided, strict=True):
         p.result.outcome = outcome
@@ -254,7 +267,9 @@ NO_CLAIMS_HINT = (
 
 def no_claims_warning(file: str, hint: str = NO_CLAIMS_HINT) -> Diagnostic:
     """The warning of a run that found nothing to check (its exit status is 1, never 0)."""
-    return Diagnostic("no-claims", "warning", Location(file, 1, 1), f"no tagged claims in {file}; nothing was checked", hint)
+    return Diagnostic(
+        "no-claims", "warning", Location(file, 1, 1), f"no tagged claims in {file}; nothing was checked", hint
+    )
 
 
 def _decide(p: _Pending, prover: Prover, max_seconds: float | None) -> tuple[Outcome, float]:
@@ -290,6 +305,23 @@ def _decide(p: _Pending, prover: Prover, max_seconds: float | None) -> tuple[Out
         if outcome.suggestion:
             outcome.message += f"; suggestion: {outcome.suggestion}"
     return outcome, time.perf_counter() - start
+
+
+def _unread(item: ClaimBlock | DefineTag, why: str) -> ClaimResult:
+    """An error claim for a block (or definition) that could not be read within the limits."""
+    what = "definition" if isinstance(item, DefineTag) else "claim"
+    name = item.options.get("name") if isinstance(item, ClaimBlock) else None
+    source = ""
+    if isinstance(item, ClaimBlock) and item.rows:
+        source = " ".join(item.rows[0].source_text.split())[:200]
+    return _error(
+        item.tag,
+        "too-large",
+        f"this {what} was not checked: {why}",
+        "split it into smaller claims, or raise --max-seconds",
+        source,
+        name,
+    )
 
 
 def _define(item: DefineTag, elaborator: Elaborator, report: Report) -> None:
@@ -493,6 +525,18 @@ def _claim(
             "congruence",
             end,
         )
+    if modulus is not None and modulus <= 0:
+        return _error(
+            loc,
+            "too-large" if modulus < 0 else "syntax",
+            f"the modulus has more than {MAX_MODULUS_DIGITS} digits" if modulus < 0 else "the modulus is 0",
+            "a congruence needs a modulus of at least 1",
+            source,
+            name,
+            row.label,
+            "congruence",
+            end,
+        )
     if modulus is not None and rel == "=":
         rel = "≡"
     forms, matrices = elaborator.definitions, elaborator.matrices
@@ -557,6 +601,7 @@ def _claim(
     return _Pending(result, left, right, rel, Fraction(t) * nome, block.options.get("character"), suggest=suggest)
 
 
+MAX_MODULUS_DIGITS = 40
 _MODULUS = re.compile(
     r"\\pmod\s*\{\s*(\d+)\s*\}|\\pmod\s*(\d+)|\(\s*\\(?:bmod|mod)\s*\{?\s*(\d+)\s*\}?\s*\)"
     r"|\\(?:bmod|mod)\s*\{?\s*(\d+)\s*\}?"
@@ -573,7 +618,8 @@ def _qualifiers(text: MappedText, options: dict[str, str]) -> tuple[MappedText, 
     modulus = None
     m = _MODULUS.search(text.text)
     if m:
-        modulus = int(next(g for g in m.groups() if g))
+        digits = next(g for g in m.groups() if g)
+        modulus = int(digits) if len(digits) <= MAX_MODULUS_DIGITS else -1  # -1: too large
         text = MappedText(
             text.text[: m.start()] + " " * (m.end() - m.start()) + text.text[m.end() :], text.origins, text.source
         )

@@ -61,6 +61,16 @@ def add(a: ir.Expr, b: ir.Expr, sign: int = 1) -> ir.Expr:
     return ir.Sum(typ, f"{a.text} {'+' if sign > 0 else '-'} {b.text}", a, b, sign)
 
 
+def add_all(pieces: list[ir.Expr]) -> ir.Expr:
+    """The sum of ``pieces``, added pairwise so that a long sum gives a shallow tree."""
+    assert pieces
+    while len(pieces) > 1:
+        pieces = [add(pieces[i], pieces[i + 1]) for i in range(0, len(pieces) - 1, 2)] + (
+            [pieces[-1]] if len(pieces) % 2 else []
+        )
+    return pieces[0]
+
+
 def mul(a: ir.Expr, b: ir.Expr) -> ir.Expr:
     """``a * b``."""
     if isinstance(a, ir.Const) and a.value == 1:
@@ -167,7 +177,7 @@ def _times(a: Mono, b: Mono) -> Mono:
 # -- generating functions -------------------------------------------------------------
 def generating_function(e: t.A, var: str, values: Values) -> ir.Expr:
     """``sum_{var >= 0} e(var) q^var`` as a typed expression (see the module docstring)."""
-    total: ir.Expr | None = None
+    pieces: list[ir.Expr] = []
     for m in monomials(e, var, values):
         if m.basic is None:
             raise Untranslatable(
@@ -175,9 +185,8 @@ def generating_function(e: t.A, var: str, values: Values) -> ir.Expr:
             )
         piece = deriv(_basic(m.basic, var, values), m.power)
         piece = mul(const(m.coeff), piece)
-        total = piece if total is None else add(total, piece)
-    assert total is not None
-    return total
+        pieces.append(piece)
+    return add_all(pieces)
 
 
 def _scale_of(arg: t.A, var: str, values: Values) -> int:
@@ -249,7 +258,7 @@ def _convolution(s: t.Sum, var: str, values: Values) -> ir.Expr:
     if c not in (0, 1):
         raise Untranslatable(f"{s.text}: the sum must end at {var} or {var} - 1")
     other = "\u2113"  # a fresh variable for n - m
-    total: ir.Expr | None = None
+    pieces: list[ir.Expr] = []
     for a, e, coeff, x, y in _conv_monomials(s.body, var, m, other, values):
         if x is None or y is None:
             raise Untranslatable(f"{s.text}: each term needs a function of {m} and a function of {var} - {m}")
@@ -257,9 +266,8 @@ def _convolution(s: t.Sum, var: str, values: Values) -> ir.Expr:
         gy = _restricted(generating_function(y, other, values), y, other, c, values)
         piece = deriv(mul(deriv(gx, a), gy), e)
         piece = mul(const(coeff), piece)
-        total = piece if total is None else add(total, piece)
-    assert total is not None
-    return total
+        pieces.append(piece)
+    return add_all(pieces)
 
 
 def _offset_below(upper: t.A, var: str, values: Values) -> int | None:
@@ -372,7 +380,7 @@ def _divisor_sum(s: t.Sum, var: str, values: Values) -> ir.Expr:
                 return rescale_expr(_divisor_sum(inner, var, values), int(c))
     if not (isinstance(s.lower, t.Var) and s.lower.name == var):
         raise Untranslatable(f"{s.text}: only sums over the divisors of {var} or {var}/c are translated")
-    total: ir.Expr | None = None
+    pieces: list[ir.Expr] = []
     for coeff, a, b, sign, psi, phi in _divisor_monomials(s.body, var, d, values):
         if psi == 1 and phi == 1:
             piece = _parity_split(a, b, sign)
@@ -381,9 +389,8 @@ def _divisor_sum(s: t.Sum, var: str, values: Values) -> ir.Expr:
         else:
             piece = _character_sum(a, b, psi, phi)
         piece = mul(const(coeff), piece)
-        total = piece if total is None else add(total, piece)
-    assert total is not None
-    return total
+        pieces.append(piece)
+    return add_all(pieces)
 
 
 Sign = tuple[int, int, int, int] | None  # (alpha, beta, gamma, delta) of (-1)^{alpha n + beta d + gamma n/d + delta}
@@ -557,13 +564,12 @@ def _parity_split(a: int, b: int, sign: Sign) -> ir.Expr:
         (1, 1): [(Fraction(1), s), (-(two_a + two_b), s2), (two_a * two_b, s4)],
     }
     alpha, beta, gamma, delta = sign
-    total: ir.Expr | None = None
+    pieces: list[ir.Expr] = []
     for (dp, ep), parts in classes.items():
         n_odd = dp * ep  # n is odd exactly when d and n/d are both odd (parity 1 = odd)
         exponent = alpha * n_odd + beta * dp + gamma * ep + delta
         sgn = -1 if exponent % 2 else 1
         for c, g in parts:
             piece = mul(const(sgn * c), g)
-            total = piece if total is None else add(total, piece)
-    assert total is not None
-    return total
+            pieces.append(piece)
+    return add_all(pieces)

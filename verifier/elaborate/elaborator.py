@@ -23,6 +23,7 @@ from typing import Any
 from verifier.elaborate import ir
 from verifier.forms.registry import AtomInfo, Unknown, eta_params, lookup
 from verifier.parse import ast
+from verifier.parse.shape import BALANCE_FROM
 
 MAX_EXPONENT = 10_000
 MAX_WEIGHT = Fraction(20_000)
@@ -75,9 +76,10 @@ class Elaborator:
             trunc: Fraction | None = None
             dots = False
             kept: list[tuple[int, ast.Node]] = []
+            printed_terms = [k for k, (_, t) in enumerate(terms) if not isinstance(t, ast.Dots | ast.BigO)]
+            last_printed = printed_terms[-1] if printed_terms else -1
             for k, (sign, term) in enumerate(terms):
-                later = [t for _, t in terms[k + 1 :] if not isinstance(t, ast.Dots | ast.BigO)]
-                if isinstance(term, ast.Dots) and later:
+                if isinstance(term, ast.Dots) and k < last_printed:
                     raise _err(
                         "bad-expansion",
                         "\\cdots stands between printed terms",
@@ -129,23 +131,40 @@ class Elaborator:
 
     # -- expressions ----------------------------------------------------------------
     def _sum_of(self, terms: list[tuple[int, ast.Node]], text: str) -> ir.Expr:
+        if len(terms) > BALANCE_FROM:
+            return self._long_sum(terms, text)
         acc: ir.Expr | None = None
         for sign, node in terms:
             e = self.expr(node, text)
-            if acc is not None:
-                try:
-                    acc = _add(acc, e, sign, node)
-                except ElaborationError as exc:
-                    if exc.problem.code != "mixed-weight" or not self.allow_mixed:
-                        raise
-                    # A claim about a generating function compares weight by weight (docs/method.md#quasimodular).
-                    from verifier.arith.genfun import add as mixed_add
-
-                    acc = mixed_add(acc, e, sign)
-            else:
-                acc = e if sign > 0 else _neg(e)
+            acc = (e if sign > 0 else _neg(e)) if acc is None else self._plus(acc, e, sign, node)
         assert acc is not None
         return acc
+
+    def _plus(self, acc: ir.Expr, e: ir.Expr, sign: int, node: ast.Node) -> ir.Expr:
+        try:
+            return _add(acc, e, sign, node)
+        except ElaborationError as exc:
+            if exc.problem.code != "mixed-weight" or not self.allow_mixed:
+                raise
+            # A claim about a generating function compares weight by weight (docs/method.md#quasimodular).
+            from verifier.arith.genfun import add as mixed_add
+
+            return mixed_add(acc, e, sign)
+
+    def _long_sum(self, terms: list[tuple[int, ast.Node]], text: str) -> ir.Expr:
+        """A long sum added pairwise, so that its expression tree stays shallow (depth log2 n)."""
+        level: list[tuple[int, ir.Expr, ast.Node]] = [(s, self.expr(n, text), n) for s, n in terms]
+        if level[0][0] < 0:
+            level[0] = (1, _neg(level[0][1]), level[0][2])
+        while len(level) > 1:
+            paired: list[tuple[int, ir.Expr, ast.Node]] = []
+            for i in range(0, len(level) - 1, 2):
+                (sa, ea, _), (sb, eb, nb) = level[i], level[i + 1]
+                paired.append((sa, self._plus(ea, eb, sa * sb, nb), nb))  # sa*ea + sb*eb = sa*(ea + sa*sb*eb)
+            if len(level) % 2:
+                paired.append(level[-1])
+            level = paired
+        return level[0][1]
 
     def expr(self, node: ast.Node, text: str) -> ir.Expr:
         """Elaborate an expression node (raises :class:`ElaborationError`)."""
@@ -215,6 +234,7 @@ class Elaborator:
         """A product, where the operators D, D^r and partial_k apply to the factor after them."""
         factors = _factors(node)
         out: ir.Expr | None = None
+        pieces: list[ir.Expr] = []
         i = 0
         while i < len(factors):
             f = factors[i]
@@ -228,9 +248,17 @@ class Elaborator:
             else:
                 piece = self.expr(f, text)
                 i += 1
-            out = piece if out is None else _mul(out, piece, src, node)
-        assert out is not None
-        return out
+            pieces.append(piece)
+        if len(pieces) <= BALANCE_FROM:
+            for piece in pieces:
+                out = piece if out is None else _mul(out, piece, src, node)
+            assert out is not None
+            return out
+        while len(pieces) > 1:  # a long product multiplied pairwise: a shallow tree
+            pieces = [_mul(pieces[i], pieces[i + 1], src, node) for i in range(0, len(pieces) - 1, 2)] + (
+                [pieces[-1]] if len(pieces) % 2 else []
+            )
+        return pieces[0]
 
     def _apply(self, op: tuple[str, int | Fraction | None], operand: ir.Expr, src: str, node: ast.Node) -> ir.Expr:
         kind, value = op
@@ -381,10 +409,16 @@ def _arith_mul(a: Any, b: Any) -> Any:
 
 
 def _factors(node: ast.Node) -> list[ast.Node]:
-    """The factors of a left-nested product chain, in order."""
-    if isinstance(node, ast.BinOp) and node.op == "*":
-        return _factors(node.left) + _factors(node.right)
-    return [node]
+    """The factors of a product chain, in order."""
+    out: list[ast.Node] = []
+    stack = [node]
+    while stack:
+        n = stack.pop()
+        if isinstance(n, ast.BinOp) and n.op == "*":
+            stack += [n.right, n.left]
+        else:
+            out.append(n)
+    return out
 
 
 _HECKE = re.compile(r"^([TU])_(?:\{\s*(\d+)\s*\}|(\d))$")
@@ -466,15 +500,17 @@ def _atom(info: AtomInfo, scale: Fraction, src: str, node: ast.Node) -> ir.Atom:
 
 def _summands(node: ast.Node) -> list[tuple[int, ast.Node]]:
     """Flatten a chain of + and - into signed terms."""
-    if isinstance(node, ast.BinOp) and node.op in "+-":
-        left = _summands(node.left)
-        right = _summands(node.right)
-        if node.op == "-":
-            right = [(-s, t) for s, t in right]
-        return left + right
-    if isinstance(node, ast.Neg):
-        return [(-s, t) for s, t in _summands(node.operand)]
-    return [(1, node)]
+    out: list[tuple[int, ast.Node]] = []
+    stack: list[tuple[int, ast.Node]] = [(1, node)]
+    while stack:
+        sign, n = stack.pop()
+        if isinstance(n, ast.BinOp) and n.op in "+-":
+            stack += [(-sign if n.op == "-" else sign, n.right), (sign, n.left)]
+        elif isinstance(n, ast.Neg):
+            stack.append((-sign, n.operand))
+        else:
+            out.append((sign, n))
+    return out
 
 
 def _big_o_exponent(node: ast.BigO) -> Fraction:

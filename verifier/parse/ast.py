@@ -10,6 +10,8 @@ from __future__ import annotations
 from dataclasses import dataclass
 from fractions import Fraction
 
+from verifier.limits import MAX_CONSTANT_BITS, TooLarge, check_bits, number_text, power_bits
+
 Span = tuple[int, int]
 
 
@@ -172,21 +174,59 @@ def children(node: Node) -> tuple[Node, ...]:
 def constant_value(node: Node) -> Fraction | None:
     """The value of a node made only of numbers (3, 441/691, \\frac{1}{24}, 691^{-1}), else None.
 
-    Raises ZeroDivisionError for a zero denominator.
+    Raises ZeroDivisionError for a zero denominator, and :class:`verifier.limits.TooLarge`
+    before building a constant of more than ``MAX_CONSTANT_BITS`` bits (a tower such as
+    2^{2^{2^{2^{2}}}}).  The walk is iterative, so a sum of any length is folded.
     """
-    if isinstance(node, Number):
-        return Fraction(node.value)
-    if isinstance(node, Neg):
-        inner = constant_value(node.operand)
-        return None if inner is None else -inner
-    if isinstance(node, BinOp):
-        a, b = constant_value(node.left), constant_value(node.right)
-        if a is None or b is None:
-            return None
-        if node.op == "/":
-            return a / b
-        return a + b if node.op == "+" else a - b if node.op == "-" else a * b
-    if isinstance(node, Power) and isinstance(node.exponent, Fraction) and node.exponent.denominator == 1:
-        base = constant_value(node.base)
-        return None if base is None else base ** int(node.exponent)
-    return None
+    results: list[Fraction | None] = []
+    stack: list[tuple[Node, bool]] = [(node, False)]
+    while stack:
+        n, ready = stack.pop()
+        if isinstance(n, Number):
+            results.append(Fraction(n.value))
+        elif isinstance(n, Neg):
+            if not ready:
+                stack += [(n, True), (n.operand, False)]
+                continue
+            inner = results.pop()
+            results.append(None if inner is None else -inner)
+        elif isinstance(n, BinOp):
+            if not ready:
+                stack += [(n, True), (n.right, False), (n.left, False)]
+                continue
+            b, a = results.pop(), results.pop()
+            results.append(None if a is None or b is None else _bounded(_apply(n.op, a, b)))
+        elif isinstance(n, Power) and isinstance(n.exponent, Fraction) and n.exponent.denominator == 1:
+            if not ready:
+                stack += [(n, True), (n.base, False)]
+                continue
+            base = results.pop()
+            results.append(None if base is None else _power(base, int(n.exponent)))
+        else:
+            results.append(None)
+    return results[0]
+
+
+def _apply(op: str, a: Fraction, b: Fraction) -> Fraction:
+    if op == "/":
+        return a / b
+    return a + b if op == "+" else a - b if op == "-" else a * b
+
+
+def _bounded(x: Fraction) -> Fraction:
+    check_bits(x.numerator, "a constant")
+    check_bits(x.denominator, "a constant")
+    return x
+
+
+def _power(base: Fraction, exponent: int) -> Fraction:
+    if base == 0:
+        if exponent < 0:
+            raise ZeroDivisionError("0 to a negative power")
+        return Fraction(1 if exponent == 0 else 0)
+    if abs(base.numerator) == base.denominator:  # 1 and -1: no growth
+        return base ** (exponent % 2)
+    bits = max(abs(base.numerator).bit_length(), base.denominator.bit_length())
+    if power_bits(bits, exponent) > MAX_CONSTANT_BITS:
+        raise TooLarge(f"a power of {number_text(base)} to the {number_text(exponent)} is too large to compute")
+    return base**exponent

@@ -13,9 +13,12 @@ from fractions import Fraction
 from pathlib import Path
 from typing import Any
 
+from verifier.limits import MAX_LITERAL_DIGITS, TooLarge
 from verifier.parse import ast
+from verifier.parse.shape import balance
 
 GRAMMAR_FILE = "claim.lark"
+MAX_BRACKET_INDEX = 1000
 _OPENERS = {"(": ")", "{": "}", "[": "]"}
 _CLOSERS = {v: k for k, v in _OPENERS.items()}
 
@@ -44,9 +47,11 @@ def _parser() -> Any:
 
 
 class _BadNumber(ValueError):
-    def __init__(self, message: str, offset: int) -> None:
+    def __init__(self, message: str, offset: int, code: str = "syntax", hint: str = "write a nonzero denominator") -> None:
         super().__init__(message)
         self.offset = offset
+        self.code = code
+        self.hint = hint
 
 
 @dataclass(frozen=True)
@@ -105,10 +110,16 @@ def _parse(text: str, start: str) -> ast.Node | ParseFailure:
         node = _ToAst(text).transform(tree)
     except VisitError as exc:
         if isinstance(exc.orig_exc, _BadNumber):
-            return ParseFailure("syntax", str(exc.orig_exc), "write a nonzero denominator", exc.orig_exc.offset)
+            bad = exc.orig_exc
+            return ParseFailure(bad.code, str(bad), bad.hint, bad.offset)
         raise
+    except _BadNumber as bad:
+        return ParseFailure(bad.code, str(bad), bad.hint, bad.offset)
     assert isinstance(node, ast.Node)
-    return node
+    try:
+        return balance(node)
+    except TooLarge as exc:
+        return ParseFailure("too-large", str(exc), "split the claim into smaller ones", 0)
 
 
 def _eof_failure(text: str, start: str) -> ParseFailure:
@@ -182,6 +193,20 @@ def _constant(node: ast.Node) -> Fraction | None:
         return ast.constant_value(node)
     except ZeroDivisionError as exc:
         raise _BadNumber("an exponent has denominator 0", node.span[0]) from exc
+    except TooLarge as exc:
+        raise _BadNumber(str(exc), node.span[0], "too-large", "exponents must stay small enough to compute") from exc
+
+
+def _literal(digits: str, offset: int) -> int:
+    """A number written in the claim, refused before conversion if it has too many digits."""
+    if len(digits) > MAX_LITERAL_DIGITS:
+        raise _BadNumber(
+            f"a number of {len(digits)} digits is written here (the limit is {MAX_LITERAL_DIGITS})",
+            offset,
+            "too-large",
+            "claims about numbers this large are not checked",
+        )
+    return int(digits)
 
 
 def _span(meta: Any) -> ast.Span:
@@ -198,10 +223,11 @@ def _normal_arg(arg: str) -> str:
 
 
 def _make_transformer() -> Any:
-    from lark import Transformer, v_args
+    from lark import Transformer_NonRecursive, v_args
 
+    # Not recursive: a machine-made sum of 10,000 terms is 10,000 levels deep here.
     @v_args(meta=True)
-    class ToAst(Transformer):  # type: ignore[type-arg]
+    class ToAst(Transformer_NonRecursive):
         """One method per grammar rule; each returns an AST node with its span."""
 
         def relation(self, meta: Any, items: list[Any]) -> ast.Relation:
@@ -244,7 +270,7 @@ def _make_transformer() -> Any:
             ):
                 # In math mode TeX ignores spaces: '196 884' and '196\,884' print one number.
                 digits = "".join(self.text[left.span[0] : right.span[1]].split())
-                return ast.Number((left.span[0], right.span[1]), int(digits))
+                return ast.Number((left.span[0], right.span[1]), _literal(digits, left.span[0]))
             return self._bin("*", meta, left, right)
 
         def mul(self, meta: Any, items: list[Any]) -> ast.BinOp:
@@ -309,7 +335,7 @@ def _make_transformer() -> Any:
             return value if value is not None else items[0]
 
         def integer(self, meta: Any, items: list[Any]) -> ast.Number:
-            return ast.Number(_tok_span(items[0]), int(str(items[0])))
+            return ast.Number(_tok_span(items[0]), _literal(str(items[0]), items[0].start_pos))
 
         def decimal(self, meta: Any, items: list[Any]) -> ast.Decimal:
             return ast.Decimal(_tok_span(items[0]), str(items[0]))
@@ -327,7 +353,12 @@ def _make_transformer() -> Any:
             return ast.Bracket(_span(meta), items[0], items[1], items[2])
 
         def bracket_index(self, meta: Any, items: list[Any]) -> int:
-            return int(str(items[0]))
+            n = _literal(str(items[0]), items[0].start_pos)
+            if n > MAX_BRACKET_INDEX:
+                raise _BadNumber(
+                    f"a bracket of order {n} (the limit is {MAX_BRACKET_INDEX})", items[0].start_pos, "too-large", ""
+                )
+            return n
 
         def dots(self, meta: Any, items: list[Any]) -> ast.Dots:
             return ast.Dots(_span(meta))

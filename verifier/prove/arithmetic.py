@@ -217,7 +217,7 @@ def _first_direct_difference(
             a = values.value(claim.left, {claim.var: n})
             b = values.value(claim.right, {claim.var: n})
         except NotEvaluable as exc:
-            return Outcome("error", "arithmetic", f"cannot compute the sides at n = {n}: {exc}", code="unsupported")
+            return Outcome("error", "arithmetic", f"cannot compute the sides at n = {n}: {exc}", code=exc.code)
         if _differs(a, b, claim.modulus):
             return n, a, b
     return None
@@ -228,7 +228,7 @@ def _at_a_value(claim: ArithmeticClaim, values: Values, kind: str) -> Outcome:
         a = values.value(claim.left, {})
         b = values.value(claim.right, {})
     except NotEvaluable as exc:
-        return Outcome("error", kind, f"cannot compute: {exc}", code="unsupported")
+        return Outcome("error", kind, f"cannot compute: {exc}", code=exc.code)
     equal = not _differs(a, b, claim.modulus)
     holds = equal if claim.rel != "!=" else not equal
     what = f"left {_fmt(a)}, right {_fmt(b)}" + (f" (mod {claim.modulus})" if claim.modulus else "")
