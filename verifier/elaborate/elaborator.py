@@ -67,10 +67,12 @@ class Elaborator:
         # Set while a claim with a generating-function sum is elaborated: its other side may
         # mix weights (1 - E_2)/24, which the proof splits by weight.
         self.allow_mixed = False
+        self._text = ""  # the claim text being elaborated (for hints that look past a node)
 
     # -- public -------------------------------------------------------------------
     def side(self, node: ast.Node, text: str) -> ir.Side | Problem:
         """Elaborate one side of a claim; ``text`` is the claim text the spans index."""
+        self._text = text
         try:
             terms = _summands(node)
             trunc: Fraction | None = None
@@ -260,6 +262,17 @@ class Elaborator:
             )
         return pieces[0]
 
+    def _digits_hint(self, name: str, node: ast.Node) -> str | None:
+        """``E_12`` reads as E_1 times 2: the hint names the form meant, ``E_{12}``."""
+        if not re.fullmatch(r"\\?[A-Za-z]+_[0-9A-Za-z]", name):
+            return None
+        after = re.match(r"[0-9]+", self._text[node.span[1] :])
+        if after is None:
+            return None
+        base, index = name.split("_", 1)
+        meant = f"{base}_{{{index}{after.group(0)}}}"
+        return f"write {meant}: in LaTeX {name}{after.group(0)} reads as {name} followed by {after.group(0)}"
+
     def _apply(self, op: tuple[str, int | Fraction | None], operand: ir.Expr, src: str, node: ast.Node) -> ir.Expr:
         kind, value = op
         if kind.startswith("hecke"):
@@ -391,14 +404,14 @@ class Elaborator:
                 return ir.Product(atom.typ, src, ir.Const(ir.Typ(Fraction(0)), str(found.factor), found.factor), atom)
             return atom
         if isinstance(found, Unknown):
-            raise _err("unknown-symbol", found.message, found.hint, node)
+            raise _err("unknown-symbol", found.message, self._digits_hint(name, node) or found.hint, node)
         if name in self.matrices:
             raise _err("unknown-symbol", f"{name} is a Gram matrix, not a form", f"write \\Theta_{name}", node)
         hint = (
             "known forms: E_2, E_4, ..., \\Delta, j, \\eta(d\\tau), \\theta, \\theta_2, \\theta_3, \\theta_4, \\Theta_Q"
         )
         if len(name) > 1 and name[1:2] == "_" and not name.endswith("}"):
-            hint += f"; note that in LaTeX {name}2 reads as {name} followed by 2 (write {name[:2]}{{..}})"
+            hint += "; " + (self._digits_hint(name, node) or f"write {name[:2]}{{..}} for a longer index")
         raise _err("unknown-symbol", f"unknown symbol {name}", hint, node)
 
 

@@ -30,6 +30,10 @@ _SIZED = re.compile(r"\\(left|right|middle|[bB]igg?[lrm]?)(?![A-Za-z])\s*(\\[{}]
 _HSPACE = re.compile(r"\\[hv]space\*?\s*\{[^{}]*\}")
 _INNER_ENV = re.compile(r"\\(begin|end)\s*\{(aligned|gathered|split|multlined)\}(\[[a-z]\])?")
 _MATHCAL_O = re.compile(r"\\(mathcal|mathrm|mathit)\s*(\{\s*O\s*\}|O)")
+# Bold and upright names are the plain names: \mathbf{E}_4, \mathrm{E}_4, \boldsymbol\Delta.
+_STYLED_NAME = re.compile(
+    r"\\(?:mathbf|mathrm|mathit|mathsf|boldsymbol|bm|pmb)\s*(?:\{\s*(\\[A-Za-z]+|[A-Za-z])\s*\}|(\\[A-Za-z]+))"
+)
 _FRAC_DIGITS = re.compile(r"\\([dt]?frac)\s*(\d)\s*(\d)")
 _EMPTY_GROUP = re.compile(r"\{\s*\}")
 # The derivative D = q d/dq = (2 pi i)^{-1} d/dtau, however it is spelled (docs/method.md#derivatives).
@@ -137,6 +141,7 @@ def normalise_row(row: MappedText, macros: dict[str, macro_mod.Macro]) -> Row:
     text = text.blank(_LABEL).blank(_TAG).blank(_HSPACE).blank(_DROP).blank(_EMPTY_GROUP)
     text = text.sub(_SIZED, _sized_delimiter)
     text = text.sub(_MATHCAL_O, lambda m: "O")
+    text = text.sub(_STYLED_NAME, lambda m: m.group(1) or m.group(2))
     text = text.sub(_DERIVATIVE, lambda m: "D " + " " * (len(m.group(0)) - 2))
     text = text.sub(_FRAC_DIGITS, lambda m: f"\\{m.group(1)}{{{m.group(2)}}}{{{m.group(3)}}}")
     text = text.blank(_TRAILING)
