@@ -73,11 +73,41 @@ def suggestion(
     right: ast.Node,
     make_build: Callable[[ast.Node, ast.Node, dict[str, Fraction]], Build],
 ) -> str | None:
-    """A corrected claim, when exactly one choice of the other coefficients makes it true."""
+    """A corrected claim, when exactly one choice of the other coefficients makes it true.
+
+    The first coefficient of the left side is kept fixed, then that of the right side; of
+    the two corrections the one that changes fewer coefficients wins, and on a tie the one
+    that changes a number the author wrote (a wrong 1/864 in \\frac{1}{864}(E_4^3 - E_6^2))
+    rather than an unwritten factor 1.
+    """
     lt, lu = templated(left, 0)
     rt, ru = templated(right, len(lu))
-    fixed_name, fixed_value = lu[0]
-    unknowns = [n for n, _ in lu[1:] + ru]
+    options = []
+    for fixed_index in (0, len(lu)):
+        found = _solve_fixing(prover, lt, rt, lu + ru, fixed_index, make_build)
+        if found is not None:
+            options.append(found)
+    if not options:
+        return None
+    changes = min(options, key=lambda ch: (len(ch), sum(old == 1 for old, _ in ch)))
+    return "holds with " + "; ".join(f"{_frac_str(new)} in place of {_frac_str(old)}" for old, new in changes)
+
+
+def _solve_fixing(
+    prover: Prover,
+    lt: ast.Node,
+    rt: ast.Node,
+    written: list[tuple[str, Fraction]],
+    fixed_index: int,
+    make_build: Callable[[ast.Node, ast.Node, dict[str, Fraction]], Build],
+) -> list[tuple[Fraction, Fraction]] | None:
+    """The changed coefficients (old, new) with one coefficient kept as written, or None."""
+    if fixed_index >= len(written):
+        return None
+    fixed_name, fixed_value = written[fixed_index]
+    if fixed_value == 0:
+        return None
+    unknowns = [n for i, (n, _) in enumerate(written) if i != fixed_index]
     if not unknowns or len(unknowns) > 12:
         return None
     build = make_build(lt, rt, {fixed_name: fixed_value})
@@ -85,8 +115,8 @@ def suggestion(
     if outcome.verdict != "proved" or "family" in outcome.message:
         return None
     solved = {c["unknown"]: Fraction(c["value"]) for c in outcome.components}
-    written = dict(lu[1:] + ru)
-    changes = [(written[n], solved[n]) for n in unknowns if solved[n] != written[n]]
+    values = dict(written)
+    changes = [(values[n], solved[n]) for n in unknowns if solved[n] != values[n]]
     if not changes or len(changes) > 3:
         return None
-    return "holds with " + "; ".join(f"{_frac_str(new)} in place of {_frac_str(old)}" for old, new in changes)
+    return changes
