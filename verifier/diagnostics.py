@@ -25,6 +25,10 @@ CODES: dict[str, tuple[str, str]] = {
     ),
     "include-missing": ("scan", "An \\input/\\include names a file that does not exist."),
     "include-cycle": ("scan", "An \\input/\\include would read a file that is already being read."),
+    "archive-member": (
+        "scan",
+        "A member of a submitted archive was left out (a link, an absolute path, a nested archive); the rest is screened.",
+    ),
     "orphan-tag": ("scan", "A claim tag is not followed by a display-math block."),
     "near-miss-tag": (
         "scan",
@@ -86,6 +90,48 @@ CODES: dict[str, tuple[str, str]] = {
 }
 
 
+# code -> (an example that triggers it, how to fix it); printed by ``qreferee explain CODE``.
+EXAMPLES: dict[str, tuple[str, str]] = {
+    "unreadable": ("qreferee check figure.png  (or a .tex saved as Latin-1)", "give the UTF-8 .tex or .md source"),
+    "include-outside": ("\\input{../common/defs}", "keep every part of the paper under the main file's folder"),
+    "include-missing": ("\\input{sectoin2}  (no sectoin2.tex)", "correct the file name, or add the file"),
+    "include-cycle": ("a.tex has \\input{b} and b.tex has \\input{a}", "remove the circular \\input"),
+    "archive-member": ("a .zip holding a symbolic link or figures.zip", "ask the authors for an archive of plain files"),
+    "orphan-tag": ("%@claim followed by a paragraph of text", "put the tag on the line right before \\[ ... \\]"),
+    "near-miss-tag": ("% @claim   or   %@Claim   or   <!-- @claims -->", "write exactly %@claim (or <!-- @claim -->)"),
+    "no-claims": (
+        "a paper with identities but no %@claim line",
+        "tag the identities, or run 'qreferee screen --untagged FILE' to check untagged displays",
+    ),
+    "unclosed-display": ("%@claim then \\begin{align} without \\end{align}", "close the environment"),
+    "bad-option": ("%@claim weight=", "give the option a value: weight=8"),
+    "unknown-option": ("%@claim wieght=8", "use one of name, weight, group, character, for, solve, nome"),
+    "bad-macro": ("\\newcommand{\\E}[1]{E_#1  (brace not closed)", "correct the definition"),
+    "macro-expansion": ("\\def\\x{\\x\\x} used in a claim", "define the macro without recursion"),
+    "syntax": ("E_4^2 == E_8", "write the claim in the claim language: E_4^2 = E_8"),
+    "brackets": ("(E_4 + E_6 = E_8", "close every bracket: (E_4 + E_6) ..."),
+    "no-relation": ("E_4^2", "state the identity: E_4^2 = E_8"),
+    "incomplete": ("E_4^2 = E_8 +", "complete the last term"),
+    "empty-claim": ("%@claim then \\[ \\]", "put the identity inside the display"),
+    "bad-define": ("%@define E_4 = E_2^2", "choose a new name: %@define F = E_2^2"),
+    "unknown-symbol": ("E_12 = 441/691 E_4^3 + ...", "write E_{12}; known names are listed in the README"),
+    "mixed-weight": ("E_4 + E_6 = E_{10}", "make every term of a sum the same weight: E_4 E_6 = E_{10}"),
+    "not-exact": ("E_4 = 1 + 240.0 q + \\cdots", "write exact numbers: 240 or \\frac{1}{2}"),
+    "bad-expansion": ("1 + \\cdots + 240q", "put \\cdots or O(q^n) at the end: 1 + 240q + \\cdots"),
+    "weight-mismatch": ("%@claim weight=6 on E_4^2 = E_8", "state the weight of the forms (8), or correct the claim"),
+    "group-mismatch": ("%@claim group={\\Gamma_0(3)} on E_4(2\\tau) = ...", "state a level the forms live on (2)"),
+    "character-mismatch": ("%@claim character=trivial on \\theta^2 = ...", "state the character found (\\chi_{-4})"),
+    "bad-group": ("%@claim group=Gamma", "write SL2(Z), \\Gamma_0(N) or \\Gamma_1(N)"),
+    "unsupported": ("r_3(10^{9}) = ... (no formula, too far to expand)", "restate the claim, or check it by hand"),
+    "not-modular": ("\\eta(\\tau)^5 = ...", "use a form that is modular on some Gamma_0(N), or multiply it out"),
+    "too-large": ("E_4^{2^{2^{2^{2^{2}}}}} = ...   or a 5000-digit number", "use smaller numbers, or split the claim"),
+    "zero-division": ("E_4 / (E_4^3 - E_6^2 - 1728\\Delta) = ...", "do not divide by a form that is 0"),
+    "budget": ("an identity of weight 2000 at level 1000", "raise --max-terms, or split the claim"),
+    "time-budget": ("a claim that needs minutes of computation", "raise --max-seconds"),
+    "internal": ("(a bug in qreferee)", "report it with the claim; the other claims are still checked"),
+}
+
+
 @dataclass(frozen=True)
 class Diagnostic:
     """A problem found in the document, outside the verdict of any one claim."""
@@ -118,4 +164,8 @@ def explain(code: str) -> str | None:
     if entry is None:
         return None
     stage, doc = entry
-    return f"{code} ({stage} stage): {doc}"
+    text = f"{code} ({stage} stage): {doc}"
+    example = EXAMPLES.get(code)
+    if example is not None:
+        text += f"\n  example: {example[0]}\n  fix: {example[1]}"
+    return text

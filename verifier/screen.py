@@ -169,7 +169,7 @@ def _zip_type_problem(info: zipfile.ZipInfo) -> str | None:
     return None
 
 
-def _extract_zip(path: Path, dest: Path, limits: Limits) -> int:
+def _extract_zip(path: Path, dest: Path, limits: Limits, left_out: list[str] | None = None) -> int:
     archive_size = max(path.stat().st_size, 1)
     try:
         zf = zipfile.ZipFile(path)
@@ -181,10 +181,16 @@ def _extract_zip(path: Path, dest: Path, limits: Limits) -> int:
         if len(infos) > limits.max_members:
             problems.append(f"the archive has {len(infos)} members, more than the limit of {limits.max_members}")
         declared = 0
+        skipped: set[str] = set()
         for info in infos:
             why = _name_problem(info.filename) or _zip_type_problem(info)
-            if why:
+            if why and left_out is not None:
+                left_out.append(f"member {info.filename!r} {why}; refused, and the rest screened without it")
+                skipped.add(info.filename)
+            elif why:
                 problems.append(f"member {info.filename!r} {why}; refused")
+            elif left_out is not None and _is_archive_name(info.filename):
+                left_out.append(f"member {info.filename!r} is an archive inside the archive; it was not opened")
             declared += info.file_size
             if info.file_size > limits.ratio_floor and info.file_size > limits.max_ratio * max(info.compress_size, 1):
                 problems.append(
@@ -207,8 +213,10 @@ def _extract_zip(path: Path, dest: Path, limits: Limits) -> int:
         packed = [0]
         budget = _Budget(limits, lambda: packed[0])
         for info in infos:
-            target = _target(dest, info.filename)
             packed[0] += info.compress_size
+            if info.filename in skipped:
+                continue
+            target = _target(dest, info.filename)
             if info.is_dir():
                 target.mkdir(parents=True, exist_ok=True)
                 continue
@@ -286,7 +294,7 @@ def _tar_type_problem(member: tarfile.TarInfo) -> str | None:
     return None
 
 
-def _extract_tar(path: Path, dest: Path, limits: Limits) -> int:
+def _extract_tar(path: Path, dest: Path, limits: Limits, left_out: list[str] | None = None) -> int:
     problems: list[str] = []
     count = 0
     with path.open("rb") as f:
@@ -305,6 +313,10 @@ def _extract_tar(path: Path, dest: Path, limits: Limits) -> int:
                         [*problems, f"the archive has more than {limits.max_members} members (the limit); refused"]
                     )
                 why = _name_problem(member.name) or _tar_type_problem(member)
+                if why and left_out is not None:
+                    left_out.append(f"member {member.name!r} {why}; refused, and the rest screened without it")
+                    budget.add(member.name, max(member.size, 0), 0, None)
+                    continue
                 if why:
                     problems.append(f"member {member.name!r} {why}; refused")
                     # Its data is skipped, but still counts: a refused member must not unpack a bomb.
@@ -313,6 +325,8 @@ def _extract_tar(path: Path, dest: Path, limits: Limits) -> int:
                 if problems:
                     budget.add(member.name, max(member.size, 0), 0, None)
                     continue  # refused anyway: do not write more
+                if left_out is not None and member.isfile() and _is_archive_name(member.name):
+                    left_out.append(f"member {member.name!r} is an archive inside the archive; it was not opened")
                 target = _target(dest, member.name)
                 if member.isdir():
                     target.mkdir(parents=True, exist_ok=True)
@@ -353,22 +367,34 @@ def archive_kind(path: Path) -> str | None:
     return None
 
 
-def extract_archive(path: Path, dest: Path, limits: Limits | None = None) -> int:
+def extract_archive(path: Path, dest: Path, limits: Limits | None = None, left_out: list[str] | None = None) -> int:
     """Unpack an untrusted archive into the empty folder ``dest``; returns how many members it had.
 
-    Raises :class:`UnsafeArchive` naming every refused member.
+    Raises :class:`UnsafeArchive` naming every refused member.  With a list ``left_out``,
+    a member refused for itself (a link, an absolute or '..' path, a device, encryption) is
+    skipped and described there instead, and so is a nested archive (written, never
+    opened); limits on the whole archive (size, count, compression) still refuse it all.
     """
     limits = limits or Limits()
     kind = archive_kind(path)
     if kind == "zip":
-        return _extract_zip(path, dest, limits)
+        return _extract_zip(path, dest, limits, left_out)
     if kind == "tar":
-        return _extract_tar(path, dest, limits)
+        return _extract_tar(path, dest, limits, left_out)
     raise UnsafeArchive([f"{path.name} is neither a folder nor a .zip, .tar.gz or .tgz archive"])
 
 
+_ARCHIVE_SUFFIXES = (".zip", ".tar", ".tar.gz", ".tgz", ".tar.bz2", ".tbz2", ".tar.xz", ".txz", ".gz", ".7z", ".rar")
+
+
+def _is_archive_name(name: str) -> bool:
+    return name.lower().endswith(_ARCHIVE_SUFFIXES)
+
+
 @contextlib.contextmanager
-def opened_submission(path: Path, limits: Limits | None = None) -> Iterator[Path]:
+def opened_submission(
+    path: Path, limits: Limits | None = None, left_out: list[str] | None = None
+) -> Iterator[Path]:
     """The submission's folder: the folder itself, or a temporary one holding the unpacked archive."""
     if path.is_dir():
         yield path
@@ -376,7 +402,7 @@ def opened_submission(path: Path, limits: Limits | None = None) -> Iterator[Path
     with tempfile.TemporaryDirectory(prefix="qreferee-screen-") as tmp:
         dest = Path(tmp) / "submission"
         dest.mkdir()
-        extract_archive(path, dest, limits)
+        extract_archive(path, dest, limits, left_out)
         yield dest
 
 
@@ -772,7 +798,8 @@ def screen(
     if submission.is_file() and submission.name.lower().endswith(TEX_SUFFIXES):
         # A single .tex file: its folder is the submission and it is the main file.
         main, submission = submission.name, submission.parent
-    with opened_submission(submission, limits) as root:
+    left_out: list[str] = []
+    with opened_submission(submission, limits, left_out) as root:
         if main is not None:
             chosen = (root / main).resolve()
             if not chosen.is_relative_to(root.resolve()) or not chosen.is_file():
@@ -823,6 +850,13 @@ def screen(
                 f"{label}:{p.resolve().relative_to(root.resolve()).as_posix()}"
                 for p in (choice.path, *choice.candidates)
             ]
+    from verifier.diagnostics import Diagnostic
+
+    for item in left_out:
+        notes.append(f"left out: {item}")
+        report.diagnostics.append(
+            Diagnostic("archive-member", "warning", Location(label, 1, 1), item, "ask the authors for a clean archive")
+        )
     _explain_empty(report, untagged)
     return ScreenResult(label, shown[0], choice.reason, shown[1:], report, flags, notes, untagged)
 
