@@ -27,12 +27,14 @@ CODES: dict[str, tuple[str, str]] = {
     "include-cycle": ("scan", "An \\input/\\include would read a file that is already being read."),
     "archive-member": (
         "scan",
-        "A member of a submitted archive was left out (a link, an absolute path, a nested archive); the rest is screened.",
+        "A member of a submitted archive was left out (a link, an absolute path, a nested archive); "
+        "the rest is screened.",
     ),
     "orphan-tag": ("scan", "A claim tag is not followed by a display-math block."),
     "near-miss-tag": (
         "scan",
-        "A comment looks like a tag but is not one (a space, a capital letter, a plural), so nothing after it is checked.",
+        "A comment looks like a tag but is not one (a space, a capital letter, a plural), "
+        "so nothing after it is checked.",
     ),
     "no-claims": ("scan", "The document has no tagged claim, so nothing was checked; the run does not pass."),
     "unclosed-display": ("scan", "A tagged display-math block is never closed."),
@@ -96,7 +98,10 @@ EXAMPLES: dict[str, tuple[str, str]] = {
     "include-outside": ("\\input{../common/defs}", "keep every part of the paper under the main file's folder"),
     "include-missing": ("\\input{sectoin2}  (no sectoin2.tex)", "correct the file name, or add the file"),
     "include-cycle": ("a.tex has \\input{b} and b.tex has \\input{a}", "remove the circular \\input"),
-    "archive-member": ("a .zip holding a symbolic link or figures.zip", "ask the authors for an archive of plain files"),
+    "archive-member": (
+        "a .zip holding a symbolic link or figures.zip",
+        "ask the authors for an archive of plain files",
+    ),
     "orphan-tag": ("%@claim followed by a paragraph of text", "put the tag on the line right before \\[ ... \\]"),
     "near-miss-tag": ("% @claim   or   %@Claim   or   <!-- @claims -->", "write exactly %@claim (or <!-- @claim -->)"),
     "no-claims": (

@@ -392,9 +392,7 @@ def _is_archive_name(name: str) -> bool:
 
 
 @contextlib.contextmanager
-def opened_submission(
-    path: Path, limits: Limits | None = None, left_out: list[str] | None = None
-) -> Iterator[Path]:
+def opened_submission(path: Path, limits: Limits | None = None, left_out: list[str] | None = None) -> Iterator[Path]:
     """The submission's folder: the folder itself, or a temporary one holding the unpacked archive."""
     if path.is_dir():
         yield path
@@ -926,12 +924,22 @@ def register(subparsers: argparse._SubParsersAction[argparse.ArgumentParser]) ->
     parser.add_argument("--untagged", action="store_true", help="also check displays that carry no tag")
     parser.add_argument("--jobs", type=positive_int, default=None, metavar="N", help="decide claims in N processes")
     parser.add_argument("--main", metavar="FILE", help="the main file, relative to the submission (skips detection)")
-    parser.add_argument("--max-terms", type=positive_int, default=None, metavar="N", help="most coefficients one claim may use")
     parser.add_argument(
-        "--max-seconds", type=positive_seconds, default=None, metavar="S", help="time budget of one claim (default: the engine's)"
+        "--max-terms", type=positive_int, default=None, metavar="N", help="most coefficients one claim may use"
     )
     parser.add_argument(
-        "--max-size", type=positive_int, default=100, metavar="MB", help="largest unpacked size of an archive (default 100)"
+        "--max-seconds",
+        type=positive_seconds,
+        default=None,
+        metavar="S",
+        help="time budget of one claim (default: the engine's)",
+    )
+    parser.add_argument(
+        "--max-size",
+        type=positive_int,
+        default=100,
+        metavar="MB",
+        help="largest unpacked size of an archive (default 100)",
     )
     parser.add_argument("--max-files", type=positive_int, default=2000, metavar="N", help="most members of an archive")
     parser.add_argument(

@@ -582,7 +582,9 @@ def register(subparsers: argparse._SubParsersAction[argparse.ArgumentParser]) ->
     parser.add_argument(
         "--poll", action="store_true", help="poll the files instead of using notifications (network file systems)"
     )
-    parser.add_argument("--max-terms", type=positive_int, default=None, metavar="N", help="most coefficients one claim may use")
+    parser.add_argument(
+        "--max-terms", type=positive_int, default=None, metavar="N", help="most coefficients one claim may use"
+    )
     parser.add_argument("--no-cache", action="store_true", help="keep verdicts in memory only (no .qreferee-cache/)")
     parser.add_argument("-v", "--verbose", action="store_true", help="also print each claim as it was read")
     parser.add_argument("--max-runs", type=int, default=None, help=argparse.SUPPRESS)

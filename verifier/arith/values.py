@@ -139,15 +139,15 @@ class Values:
                 _check_value_bits(value, e.text)
             return value
         if e.name == "r" and e.index is not None:
-            value = squares(e.index, n)
-            if value is not None:
-                return value
+            found = squares(e.index, n)
+            if found is not None:
+                return found
             raise TooLargeValue(
                 f"{e.text} at n = {number_text(n)}: no divisor-sum formula for sums of {e.index} squares, and "
                 f"expanding the series to n is beyond the budget of {MAX_SERIES_N} coefficients"
             )
         raise TooLargeValue(
-            f"{e.text} at n = {number_text(n)} needs {number_text(n)} coefficients, more than the budget of {MAX_SERIES_N}"
+            f"{e.text} at n = {number_text(n)} needs that many coefficients, more than the budget of {MAX_SERIES_N}"
         )
 
     def _tau_prime_power(self, p: int, k: int, e: t.Fun) -> int:
@@ -257,5 +257,5 @@ def squares(s: int, n: int) -> int | None:
     if two == 0:
         return 16 * sigma_odd
     # n even: sum over d | n of (-1)^d d^3 = sigma_3(n) - 2 sigma_3(odd part of n).
-    sigma_n = sigma_odd * (2 ** (3 * (two + 1)) - 1) // 7
-    return 16 * (sigma_n - 2 * sigma_odd)
+    sigma_n: int = sigma_odd * (2 ** (3 * (two + 1)) - 1) // 7
+    return int(16 * (sigma_n - 2 * sigma_odd))

@@ -47,7 +47,9 @@ def _parser() -> Any:
 
 
 class _BadNumber(ValueError):
-    def __init__(self, message: str, offset: int, code: str = "syntax", hint: str = "write a nonzero denominator") -> None:
+    def __init__(
+        self, message: str, offset: int, code: str = "syntax", hint: str = "write a nonzero denominator"
+    ) -> None:
         super().__init__(message)
         self.offset = offset
         self.code = code
@@ -110,16 +112,19 @@ def _parse(text: str, start: str) -> ast.Node | ParseFailure:
         node = _ToAst(text).transform(tree)
     except VisitError as exc:
         if isinstance(exc.orig_exc, _BadNumber):
-            bad = exc.orig_exc
-            return ParseFailure(bad.code, str(bad), bad.hint, bad.offset)
+            return _number_failure(exc.orig_exc)
         raise
-    except _BadNumber as bad:
-        return ParseFailure(bad.code, str(bad), bad.hint, bad.offset)
+    except _BadNumber as direct:
+        return _number_failure(direct)
     assert isinstance(node, ast.Node)
     try:
         return balance(node)
     except TooLarge as exc:
         return ParseFailure("too-large", str(exc), "split the claim into smaller ones", 0)
+
+
+def _number_failure(bad: _BadNumber) -> ParseFailure:
+    return ParseFailure(bad.code, str(bad), bad.hint, bad.offset)
 
 
 def _eof_failure(text: str, start: str) -> ParseFailure:
@@ -227,7 +232,7 @@ def _make_transformer() -> Any:
 
     # Not recursive: a machine-made sum of 10,000 terms is 10,000 levels deep here.
     @v_args(meta=True)
-    class ToAst(Transformer_NonRecursive):
+    class ToAst(Transformer_NonRecursive):  # type: ignore[type-arg]
         """One method per grammar rule; each returns an AST node with its span."""
 
         def relation(self, meta: Any, items: list[Any]) -> ast.Relation:

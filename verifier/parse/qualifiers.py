@@ -15,7 +15,11 @@ from verifier.scan.text import MappedText
 _UPPER_HALF_PLANE = r"\\(?:mathbb|mathfrak|mathcal|mathbf)\s*(?:\{\s*H\s*\}|H)|\\H(?![A-Za-z])|\\mathbb\s*\{\s*H\s*\}"
 _VARIABLE = r"(?:\\tau|z)"
 _IMAGINARY_PART = (
-    r"(?:\\(?:mathrm|operatorname|text)\s*\{\s*Im\s*\}|\\Im(?![A-Za-z])|\bIm)\s*(?:\(\s*" + _VARIABLE + r"\s*\)|" + _VARIABLE + r")"
+    r"(?:\\(?:mathrm|operatorname|text)\s*\{\s*Im\s*\}|\\Im(?![A-Za-z])|\bIm)\s*(?:\(\s*"
+    + _VARIABLE
+    + r"\s*\)|"
+    + _VARIABLE
+    + r")"
 )
 _DOMAIN = re.compile(
     r"[,;]?\s*(?P<body>\(?\s*(?:\\(?:text|textrm|mbox|mathrm)\s*\{\s*(?:for(?:\s+all|\s+every)?|where|with|if)?\s*\}\s*)?"

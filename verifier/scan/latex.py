@@ -144,7 +144,9 @@ class _Reader:
         except (OSError, ValueError) as exc:  # a name too long for the file system, a NUL byte
             why = exc.strerror if isinstance(exc, OSError) and exc.strerror else str(exc)
             shown = name if len(name) <= 60 else name[:57] + "..."
-            self._problem("include-missing", at, f"cannot read \\{m.group('cmd')}{{{shown}}}: {why}", "check the file name")
+            self._problem(
+                "include-missing", at, f"cannot read \\{m.group('cmd')}{{{shown}}}: {why}", "check the file name"
+            )
             return
         if not target.is_relative_to(self.root):
             self._problem(
