@@ -390,7 +390,7 @@ def test_define_tag_text_and_position() -> None:
     [
         "%@claim\nSome prose.\n\\[ a = b \\]\n",
         "%@claim\n",
-        "%@claim\n\\begin{eqnarray} a = b \\end{eqnarray}\n",  # not a supported environment
+        "%@claim\n\\begin{displaymath} a = b \\end{displaymath}\n",  # not a supported environment
         "%@claim\n%@define F = 1\n\\[ a = b \\]\n",  # another tag comes first
     ],
 )

@@ -206,7 +206,7 @@ def _explain(code: str | None) -> int:
 
     if code is None:
         for c in CODES:
-            print(explain(c))
+            print((explain(c) or c).splitlines()[0])  # one line per code; 'explain CODE' adds example and fix
         return EXIT_ALL_PROVED
     text = explain(code)
     if text is None:
