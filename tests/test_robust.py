@@ -275,3 +275,22 @@ def test_time_budget_holds_while_reading() -> None:
     result = verdicts(claim(body), max_seconds=0.5)
     assert result == [("error", "time-budget")]
     assert time.perf_counter() - start < 10
+
+
+def test_huge_levels_and_options_end_quickly() -> None:
+    start = time.perf_counter()
+    level = "9" * 15
+    # dim M_4(Gamma_0(N)) is far from 1 at this level (the dimension grows like N/3, Diamond-Shurman 3.9).
+    assert verdicts(claim(f"\\dim M_4(\\Gamma_0({level})) = 1"), max_seconds=5) == [("refuted", None)]
+    assert verdicts(claim(f"E_4 \\in M_4(\\Gamma_0({level}))"), max_seconds=5) == [("error", "budget")]
+    assert verdicts(claim("E_4 \\in M_4(\\Gamma_0(" + "9" * 60 + "))"), max_seconds=5) == [("error", "syntax")]
+    assert verdicts(claim("E_4^2 = E_8", "weight={" + "9" * 5000 + "}")) == [("error", "bad-option")]
+    assert time.perf_counter() - start < 5
+
+
+def test_divisors_from_the_factorisation_match_the_definition() -> None:
+    from verifier.prove import groups
+
+    for n in range(1, 500):
+        assert groups.divisors(n) == [d for d in range(1, n + 1) if n % d == 0]  # the definition
+        assert groups.prime_factors(n) == [p for p in groups.divisors(n) if p > 1 and groups.divisors(p) == [1, p]]

@@ -5,10 +5,12 @@ from __future__ import annotations
 import re
 from fractions import Fraction
 
-_WEIGHT = re.compile(r"^\s*(-?\d+)\s*(?:/\s*(\d+))?\s*$")
-_FRAC = re.compile(r"^\s*\\[dt]?frac\s*\{\s*(-?\d+)\s*\}\s*\{\s*(\d+)\s*\}\s*$")
+# Digits are bounded (a weight of 10^9 or a level of 10^15 is already far past any proof),
+# so that a hostile option never reaches a slow conversion or factorisation.
+_WEIGHT = re.compile(r"^\s*(-?\d{1,9})\s*(?:/\s*(\d{1,9}))?\s*$")
+_FRAC = re.compile(r"^\s*\\[dt]?frac\s*\{\s*(-?\d{1,9})\s*\}\s*\{\s*(\d{1,9})\s*\}\s*$")
 _SL2 = re.compile(r"^(SL_?2|SL_?\{2\})\((Z)\)$", re.I)
-_GAMMA = re.compile(r"^\\?Gamma_?\{?([01])\}?\((\d+)\)$")
+_GAMMA = re.compile(r"^\\?Gamma_?\{?([01])\}?\((\d{1,15})\)$")
 
 
 def parse_weight(value: str) -> Fraction | None:

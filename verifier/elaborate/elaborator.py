@@ -23,6 +23,7 @@ from typing import Any
 from verifier.elaborate import ir
 from verifier.forms.registry import AtomInfo, Unknown, eta_params, lookup
 from verifier.parse import ast
+from verifier.limits import number_text
 from verifier.parse.shape import BALANCE_FROM
 
 MAX_EXPONENT = 10_000
@@ -557,7 +558,7 @@ def _check_size(typ: ir.Typ, node: ast.Node) -> ir.Typ:
     )
     for what, value, limit in limits:
         if value > limit:
-            raise _err("too-large", f"{what} {value} exceeds the limit {limit}", "split the claim", node)
+            raise _err("too-large", f"{what} {number_text(value)} exceeds the limit {limit}", "split the claim", node)
     return typ
 
 
@@ -663,7 +664,7 @@ def _div(a: ir.Expr, b: ir.Expr, src: str, node: ast.Node) -> ir.Expr:
 
 def _pow(base: ir.Expr, exponent: Fraction | int, src: str, node: ast.Node) -> ir.Expr:
     if abs(Fraction(exponent)) > MAX_EXPONENT:
-        raise _err("too-large", f"exponent {exponent} exceeds the limit {MAX_EXPONENT}", "", node)
+        raise _err("too-large", f"exponent {number_text(exponent)} exceeds the limit {MAX_EXPONENT}", "", node)
     tb = base.typ
     if isinstance(base, ir.QPower):
         return ir.QPower(tb, src, base.exponent * exponent)

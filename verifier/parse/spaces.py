@@ -60,6 +60,8 @@ def parse_space(text: str) -> SpaceSpec | str:
     if not args or len(args) > 2:
         return "write the group, and optionally a character, inside the parentheses"
     group_text = args[0].strip()
+    if group_text.isdigit() and len(group_text) > 15:
+        return "the level has more than 15 digits; no space of that level can be checked"
     if group_text.isdigit():
         group: tuple[str, int] | None = ("Gamma0", int(group_text))
     else:

@@ -15,18 +15,12 @@ from verifier.forms.characters import kronecker
 
 
 def prime_factors(n: int) -> list[int]:
-    """The distinct primes dividing n."""
-    out: list[int] = []
-    p = 2
-    while p * p <= n:
-        if n % p == 0:
-            out.append(p)
-            while n % p == 0:
-                n //= p
-        p += 1
-    if n > 1:
-        out.append(n)
-    return out
+    """The distinct primes dividing n (FLINT's factorisation: a large level never loops to sqrt(n))."""
+    from flint import fmpz
+
+    if n <= 1:
+        return []
+    return sorted(int(p) for p, _ in fmpz(n).factor())
 
 
 def index_gamma0(n: int) -> int:
@@ -73,8 +67,16 @@ def elliptic_points(n: int) -> tuple[int, int]:
     return e2, e3
 
 
-def _divisors(n: int) -> list[int]:
-    return [d for d in range(1, n + 1) if n % d == 0]
+def divisors(n: int) -> list[int]:
+    """The divisors of n, from its factorisation (never a loop up to n)."""
+    out = [1]
+    for p in prime_factors(n):
+        e, m = 0, n
+        while m % p == 0:
+            m //= p
+            e += 1
+        out = [d * p**k for d in out for k in range(e + 1)]
+    return sorted(out)
 
 
 def _euler_phi(n: int) -> int:
@@ -86,7 +88,7 @@ def _euler_phi(n: int) -> int:
 
 def cusp_count(n: int) -> int:
     """epsilon_inf(N) = sum_{d | N} phi(gcd(d, N/d))."""
-    return sum(_euler_phi(math.gcd(d, n // d)) for d in _divisors(n))
+    return sum(_euler_phi(math.gcd(d, n // d)) for d in divisors(n))
 
 
 @dataclass(frozen=True)
@@ -115,7 +117,7 @@ def cusps(n: int) -> list[Cusp]:
     Ordered by denominator, then numerator: the first cusp is 0 = 0/1, the last is infinity = 1/N.
     """
     out: list[Cusp] = []
-    for d in _divisors(n):
+    for d in divisors(n):
         g = math.gcd(d, n // d)
         width = n // (d * g)
         if d == n:

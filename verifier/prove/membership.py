@@ -71,6 +71,15 @@ def decide_membership(prover: Prover, side: ir.Side, spec: SpaceSpec) -> Outcome
             work_level, (weight or Fraction(0)) + expr.typ.den_weight, orders.fraction_bounds(expr, work_level)[0]
         )
         need = setup.bound(setup.weight) + 1
+        if need > prover.max_terms:  # checked before any series is built
+            return Outcome(
+                "error",
+                KIND,
+                f"deciding it needs {need} coefficients (the Sturm bound at level {work_level}), "
+                f"more than the budget of {prover.max_terms}",
+                code="budget",
+                hint="raise --max-terms if this is intended",
+            )
         num, _ = graded_fraction(expr, max(need, 2), prover.table, chars)
         series = laurent_to(expr, max(need, 2), prover.table, prover.max_terms * 2)
     except registry.NotModular as exc:
