@@ -22,8 +22,8 @@ from typing import Any
 
 from verifier.elaborate import ir
 from verifier.forms.registry import AtomInfo, Unknown, eta_params, lookup
-from verifier.parse import ast
 from verifier.limits import number_text
+from verifier.parse import ast
 from verifier.parse.shape import BALANCE_FROM
 
 MAX_EXPONENT = 10_000
