@@ -35,7 +35,6 @@ from verifier.options import parse_group, parse_nome, parse_weight
 from verifier.parallel import map_in_order
 from verifier.parse import ast
 from verifier.parse.grammar import ParseFailure, parse_claim, parse_definition, parse_expression
-from verifier.parse.qualifiers import drop_domain
 from verifier.parse.spaces import dimension_prefix, parse_space, split_membership
 from verifier.prove.arithmetic import ArithmeticClaim, decide_arithmetic
 from verifier.prove.certificate import minimal as certificate_minimal
@@ -429,7 +428,6 @@ def _block(
     chains: list[list[ClaimResult]] = []  # the claims of each chain A = B = C (rows continued by "&= D" too)
     for row in block.rows:
         text, modulus, start_n = _qualifiers(row.text, block.options)
-        text, dropped = drop_domain(text)
         claims_before = len(report.claims)
         stripped = text.text.lstrip()
         continuation = stripped.startswith(("=", "\\ne", "\\not="))
@@ -491,9 +489,9 @@ def _block(
                 pending.append(pending_claim)
         last = parsed.sides[-1]
         previous_side = text.slice(last.span[0], last.span[1])
-        if dropped:
+        if parsed.domain:
             for c in report.claims[claims_before:]:
-                c.reading += f" (read without '{dropped}': it says where tau lives, not a claim)"
+                c.reading += f" (read without '{parsed.domain}': it says where tau lives, not a claim)"
     for chain in chains:
         if len(chain) > 1:
             for i, result in enumerate(chain, start=1):

@@ -128,6 +128,7 @@ class Relation(Node):
 
     sides: tuple[Node, ...]
     rels: tuple[str, ...]
+    domain: str | None = None  # a trailing "for all tau in H": where the functions live, not a claim
 
 
 @dataclass(frozen=True)

@@ -236,9 +236,12 @@ def _make_transformer() -> Any:
         """One method per grammar rule; each returns an AST node with its span."""
 
         def relation(self, meta: Any, items: list[Any]) -> ast.Relation:
+            domain = None
+            if items and getattr(items[-1], "type", "") == "DOMAIN":
+                domain = " ".join(str(items.pop()).lstrip(",").split())
             sides = tuple(items[0::2])
             rels = tuple({"=": "=", "\\equiv": "≡"}.get(str(r), "!=") for r in items[1::2])
-            return ast.Relation(_span(meta), sides, rels)
+            return ast.Relation(_span(meta), sides, rels, domain)
 
         def rel(self, meta: Any, items: list[Any]) -> str:
             return str(items[0])

@@ -91,9 +91,13 @@ def _paren_depth(text: str, i: int) -> int:
 def split_membership(text: str) -> tuple[int, int] | None:
     """Offsets (start, end) of a top-level ``\\in`` in a claim's text, if any."""
     for i, tok, depth in tokens_with_depth(text):
-        if tok == "\\in" and depth == 0 and _paren_depth(text, i) == 0:
+        if tok == "\\in" and depth == 0 and _paren_depth(text, i) == 0 and not _UPPER_HALF_PLANE.match(text, i + 3):
             return i, i + 3
     return None
+
+
+# '\tau \in \mathbb H' says where tau lives (the claim grammar reads it as a qualifier).
+_UPPER_HALF_PLANE = re.compile(r"\s*\\(?:mathbb|mathfrak|mathcal|mathbf)\s*(?:\{\s*H\s*\}|H)|\s*\\H(?![A-Za-z])")
 
 
 def dimension_prefix(text: str) -> int | None:
