@@ -133,6 +133,10 @@ EXAMPLES: dict[str, tuple[str, str]] = {
     "zero-division": ("E_4 / (E_4^3 - E_6^2 - 1728\\Delta) = ...", "do not divide by a form that is 0"),
     "budget": ("an identity of weight 2000 at level 1000", "raise --max-terms, or split the claim"),
     "time-budget": ("a claim that needs minutes of computation", "raise --max-seconds"),
+    "no-witness": (
+        "(a claim found to differ where no coefficient could be shown)",
+        "nothing to fix in the manuscript; report it, the claim is left undecided",
+    ),
     "internal": ("(a bug in qreferee)", "report it with the claim; the other claims are still checked"),
 }
 
