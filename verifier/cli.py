@@ -125,7 +125,11 @@ def build_parser(plugins: bool = True) -> argparse.ArgumentParser:
         help="time budget of one claim in seconds (default 60); over it the claim is an error",
     )
     check.add_argument(
-        "--jobs", type=positive_int, default=None, metavar="N", help="decide claims in N processes (same results as one)"
+        "--jobs",
+        type=positive_int,
+        default=None,
+        metavar="N",
+        help="decide claims in N processes (same results as one)",
     )
     check.add_argument("-v", "--verbose", action="store_true", help="also print each claim as it was read")
     check.add_argument(
