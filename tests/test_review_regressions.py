@@ -167,3 +167,17 @@ def test_constant_factors_in_the_other_nome() -> None:
     # eta(tau)^3 = e^{2 pi i tau / 8} + ... is p^{1/4} + ... in the nome p = e^{pi i tau}, so the
     # sides start 10/7 p^{1/4} and 15/7 p^{1/4}.
     assert report.claims[1].outcome.first_difference == {"n": "1/4", "left": "10/7", "right": "15/7"}
+
+
+def test_delta_is_a_cusp_form_on_every_gamma0() -> None:
+    # A level-one cusp form stays a cusp form on Gamma_0(N): the cusps of Gamma_0(N) are all
+    # SL2(Z)-equivalent to infinity (common practice); Delta(2 tau) = eta(2 tau)^24 vanishes at
+    # every cusp of Gamma_0(4) (Ligozat's order formula; Ligozat, "Courbes modulaires de genre 1",
+    # 1975, from memory).  Delta + E_12 has constant term 1, so it is no cusp form.
+    text = (
+        "%@claim\n\\[ \\Delta \\in S_{12}(\\Gamma_0(11)) \\]\n"
+        "%@claim\n\\[ \\Delta(2\\tau) \\in S_{12}(\\Gamma_0(4)) \\]\n"
+        "%@claim\n\\[ \\Delta(2\\tau) - \\Delta \\in S_{12}(\\Gamma_0(2)) \\]\n"
+        "%@claim\n\\[ \\Delta + E_{12} \\in S_{12}(\\Gamma_0(2)) \\]\n"
+    )
+    assert [c.verdict for c in check_text(text).claims] == ["proved", "proved", "proved", "refuted"]

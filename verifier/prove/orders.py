@@ -4,8 +4,9 @@ Clearing denominators turns ``L = R`` into ``P = N_L D_R - N_R D_L = 0`` (see
 :mod:`verifier.prove.evaluate`).  Every monomial of ``P`` is a product of atoms, so its
 order at a cusp is the sum of the atoms' orders; a lower bound for every monomial is
 also one for every piece of ``P`` (docs/method.md#poles-at-cusps: ord_s(sum) >= min, ord_s(product) = sum).
-Eta quotients contribute their Ligozat orders (docs/method.md#ligozat); Eisenstein series, Delta, theta
-series of quadratic forms and the formal E_2 contribute 0 (holomorphic at every cusp).
+Eta quotients contribute their Ligozat orders (docs/method.md#ligozat); Delta(d tau) = eta(d tau)^24 too;
+Eisenstein series, theta series of quadratic forms and the formal E_2 contribute 0
+(holomorphic at every cusp).
 
 Orders are in the local parameter of each cusp and depend only on its denominator d,
 so bounds are dicts ``d -> Fraction`` over the divisors d of N (d = N is infinity).
@@ -45,7 +46,11 @@ def _times(a: Bounds, e: int) -> Bounds:
 
 def atom_bounds(atom: ir.Atom, level: int) -> Bounds:
     """Orders of one atom at every cusp of Gamma_0(level)."""
-    orders = registry.cusp_orders(atom.key, atom.params, level)
+    if atom.key == "Delta":
+        # Delta(d tau) = eta(d tau)^24 (Jacobi's product formula), with its Ligozat orders.
+        orders = registry.cusp_orders("eta", ((int(atom.scale), 24),), level)
+    else:
+        orders = registry.cusp_orders(atom.key, atom.params, level)
     if orders is None:
         return _const(level)
     return {d: Fraction(orders[d]) for d in divisors(level)}
