@@ -296,7 +296,10 @@ class Elaborator:
         k = Fraction(value) if value is not None else operand.typ.weight
         if k is None:
             raise _err("syntax", "the weight of the Serre derivative is not known", "write \\partial_k f", node)
-        if operand.typ.weight is not None and operand.typ.weight != k:
+        # On a modular form a k other than its weight is almost always a slip, so it is an
+        # error.  On quasimodular input (E_2 in it) every k is in use: theta_k f is then the
+        # quasimodular form D f - (k/12) E_2 f of weight w + 2 (docs/method.md#derivatives).
+        if operand.typ.weight is not None and operand.typ.weight != k and not operand.typ.depth:
             raise _err(
                 "weight-mismatch",
                 f"the Serre derivative of weight {k} is applied to a form of weight {operand.typ.weight}",
