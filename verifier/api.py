@@ -34,7 +34,7 @@ from verifier.location import Location
 from verifier.options import parse_group, parse_nome, parse_weight
 from verifier.parallel import map_in_order
 from verifier.parse import ast
-from verifier.parse.grammar import ParseFailure, parse_claim, parse_definition, parse_expression
+from verifier.parse.grammar import MAX_MODULUS_DIGITS, ParseFailure, parse_definition, parse_expression, parse_row
 from verifier.parse.spaces import dimension_prefix, parse_space, split_membership
 from verifier.prove.arithmetic import ArithmeticClaim, decide_arithmetic
 from verifier.prove.certificate import minimal as certificate_minimal
@@ -65,6 +65,7 @@ class ClaimResult:
     seconds: float = 0.0
     reading: str = ""  # the claim as the parser saw it (after the author's macros were expanded)
     link: tuple[int, int] | None = None  # (i, n): the i-th link of a chain A = B = ... of n links
+    note: str = ""  # how the claim was read, when it matters (one half of an equivalence)
 
     @property
     def verdict(self) -> str:
@@ -189,7 +190,7 @@ def check_paths(
 
 def warm_up() -> None:
     """Build the claim grammar once here, so that forked workers inherit it."""
-    parse_claim("1 = 1")
+    parse_row("1 = 1")
 
 
 def check_text(
@@ -304,6 +305,8 @@ def _decide(p: _Pending, prover: Prover, max_seconds: float | None) -> tuple[Out
             outcome.suggestion = None
         if outcome.suggestion:
             outcome.message += f"; suggestion: {outcome.suggestion}"
+    if p.result.note:
+        outcome.message += f"; {p.result.note}"
     return outcome, time.perf_counter() - start
 
 
@@ -427,8 +430,8 @@ def _block(
     previous_side: MappedText | None = None
     chains: list[list[ClaimResult]] = []  # the claims of each chain A = B = C (rows continued by "&= D" too)
     for row in block.rows:
-        text, modulus, start_n = _qualifiers(row.text, block.options)
-        claims_before = len(report.claims)
+        text = row.text
+        row_modulus, row_start = None, _range_option(block.options)
         stripped = text.text.lstrip()
         continuation = stripped.startswith(("=", "\\ne", "\\not="))
         if not (continuation and previous_side is not None):
@@ -455,14 +458,14 @@ def _block(
                     pending.append(about_space)
                 previous_side = None
                 continue
-        parsed = parse_claim(text.text)
-        if isinstance(parsed, ParseFailure):
+        parsed_row = parse_row(text.text)
+        if isinstance(parsed_row, ParseFailure):
             report.claims.append(
                 _error(
-                    text.location(parsed.offset),
-                    parsed.code,
-                    parsed.message,
-                    parsed.hint,
+                    text.location(parsed_row.offset),
+                    parsed_row.code,
+                    parsed_row.message,
+                    parsed_row.hint,
                     row.source_text,
                     name,
                     row.label,
@@ -470,32 +473,45 @@ def _block(
             )
             previous_side = None
             continue
-        for i, rel in enumerate(parsed.rels):
-            count += 1
-            claim_name = name if (name is None or count == 1) else f"{name}.{count}"
-            left_node, right_node = parsed.sides[i], parsed.sides[i + 1]
-            start = left_node.span[0]
-            if continuation and i == 0 and previous_side is not None:
-                start = offset + (len(text.text) - offset - len(stripped))
-            pending_claim = _claim(
-                text, left_node, right_node, rel, start, row, claim_name, block, elaborator, modulus, start_n
-            )
-            if isinstance(pending_claim, ClaimResult):
-                report.claims.append(pending_claim)
-                chains[-1].append(pending_claim)
-            else:
-                report.claims.append(pending_claim.result)
-                chains[-1].append(pending_claim.result)
-                pending.append(pending_claim)
-        last = parsed.sides[-1]
+        for k, statement in enumerate(parsed_row.statements):
+            if k:
+                chains.append([])  # each statement of a row is its own chain
+            parsed = statement.relation
+            claims_before = len(report.claims)
+            modulus = statement.modulus if statement.modulus is not None else row_modulus
+            start_n = statement.start[1] if statement.start is not None else row_start
+            for i, rel in enumerate(parsed.rels):
+                count += 1
+                claim_name = name if (name is None or count == 1) else f"{name}.{count}"
+                left_node, right_node = parsed.sides[i], parsed.sides[i + 1]
+                start = left_node.span[0]
+                if continuation and k == 0 and i == 0 and previous_side is not None:
+                    start = offset + (len(text.text) - offset - len(stripped))
+                pending_claim = _claim(
+                    text, left_node, right_node, rel, start, row, claim_name, block, elaborator, modulus, start_n
+                )
+                result = pending_claim if isinstance(pending_claim, ClaimResult) else pending_claim.result
+                if statement.iff:
+                    result.note = _IFF_NOTE
+                    if isinstance(pending_claim, ClaimResult):
+                        result.outcome.message += f"; {_IFF_NOTE}"
+                report.claims.append(result)
+                chains[-1].append(result)
+                if not isinstance(pending_claim, ClaimResult):
+                    pending.append(pending_claim)
+            if parsed.domain:
+                for c in report.claims[claims_before:]:
+                    c.reading += f" (read without '{parsed.domain}': it says where tau lives, not a claim)"
+        last = parsed_row.statements[-1].relation.sides[-1]
         previous_side = text.slice(last.span[0], last.span[1])
-        if parsed.domain:
-            for c in report.claims[claims_before:]:
-                c.reading += f" (read without '{parsed.domain}': it says where tau lives, not a claim)"
     for chain in chains:
         if len(chain) > 1:
             for i, result in enumerate(chain, start=1):
                 result.link = (i, len(chain))
+
+
+# docs/method.md#layout: A = B \iff C = D is two claims; the equivalence is the author's.
+_IFF_NOTE = "one side of an equivalence: each equation is checked, the equivalence itself is not"
 
 
 def _claim(
@@ -605,41 +621,13 @@ def _claim(
     return _Pending(result, left, right, rel, Fraction(t) * nome, block.options.get("character"), suggest=suggest)
 
 
-MAX_MODULUS_DIGITS = 40
-_MODULUS = re.compile(
-    r"\\pmod\s*\{\s*(\d+)\s*\}|\\pmod\s*(\d+)|\(\s*\\(?:bmod|mod)\s*\{?\s*(\d+)\s*\}?\s*\)"
-    r"|\\(?:bmod|mod)\s*\{?\s*(\d+)\s*\}?"
-)
-_RANGE = re.compile(
-    r"(?:\\text\s*\{[^{}]*\}\s*|\\quad\s*|,\s*)*\(?\s*(?:\\text\s*\{\s*for(?:\s+all)?\s*\}\s*)?"
-    r"([a-z])\s*(?:\\geq?|>=|\\geqslant)\s*(-?\d+)\s*\)?\s*[.,;]?\s*$"
-)
 _RANGE_OPTION = re.compile(r"^\s*([a-z])\s*(?:\\geq?|>=|\\geqslant)\s*(-?\d+)\s*$")
 
 
-def _qualifiers(text: MappedText, options: dict[str, str]) -> tuple[MappedText, int | None, int | None]:
-    """Take ``\\pmod{M}`` and a trailing range ``(n \\geq 1)`` out of a claim's text."""
-    modulus = None
-    m = _MODULUS.search(text.text)
-    if m:
-        digits = next(g for g in m.groups() if g)
-        modulus = int(digits) if len(digits) <= MAX_MODULUS_DIGITS else -1  # -1: too large
-        text = MappedText(
-            text.text[: m.start()] + " " * (m.end() - m.start()) + text.text[m.end() :], text.origins, text.source
-        )
-    start = None
-    r = _RANGE.search(text.text)
-    if (r and "=" in text.text[: r.start()]) or (r and "\\equiv" in text.text[: r.start()]):
-        assert r is not None
-        start = int(r.group(2))
-        text = MappedText(
-            text.text[: r.start()] + " " * (r.end() - r.start()) + text.text[r.end() :], text.origins, text.source
-        )
-    if "for" in options:
-        o = _RANGE_OPTION.match(options["for"])
-        if o:
-            start = int(o.group(2))
-    return text, modulus, start
+def _range_option(options: dict[str, str]) -> int | None:
+    """The first n of the tag option ``for=n \\ge 1``; a range written in the claim wins over it."""
+    o = _RANGE_OPTION.match(options.get("for", ""))
+    return int(o.group(2)) if o else None
 
 
 def _arithmetic_claim(

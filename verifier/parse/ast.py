@@ -132,6 +132,27 @@ class Relation(Node):
 
 
 @dataclass(frozen=True)
+class Statement(Node):
+    """One relation of a row with its qualifiers (docs/method.md#layout).
+
+    ``modulus`` comes from ``\\pmod{M}``; ``start`` is ``(variable, n0)`` from ``(n \\ge n0)``;
+    ``iff`` is set on both halves of ``A = B \\iff C = D``: the equivalence itself is the author's.
+    """
+
+    relation: Relation
+    modulus: int | None = None
+    start: tuple[str, int] | None = None
+    iff: bool = False
+
+
+@dataclass(frozen=True)
+class Row(Node):
+    """The statements of one row of a display, in order."""
+
+    statements: tuple[Statement, ...]
+
+
+@dataclass(frozen=True)
 class Definition(Node):
     """``NAME = expr`` or ``NAME(\\tau) = expr`` from a define tag."""
 
@@ -169,6 +190,10 @@ def children(node: Node) -> tuple[Node, ...]:
         return node.sides
     if isinstance(node, Definition):
         return (node.body,)
+    if isinstance(node, Row):
+        return node.statements
+    if isinstance(node, Statement):
+        return (node.relation,)
     return ()
 
 

@@ -8,6 +8,7 @@ wheel as ``verifier/_grammar/``.  Parsing is LALR(1); syntax errors become a
 from __future__ import annotations
 
 import functools
+import re
 from dataclasses import dataclass
 from fractions import Fraction
 from pathlib import Path
@@ -19,6 +20,7 @@ from verifier.parse.shape import balance
 
 GRAMMAR_FILE = "claim.lark"
 MAX_BRACKET_INDEX = 1000
+MAX_MODULUS_DIGITS = 40
 _OPENERS = {"(": ")", "{": "}", "[": "]"}
 _CLOSERS = {v: k for k, v in _OPENERS.items()}
 
@@ -40,7 +42,7 @@ def _parser() -> Any:
         grammar_path().read_text(encoding="utf-8"),
         parser="lalr",
         lexer="contextual",
-        start=["relation", "definition", "expression"],
+        start=["relation", "row", "definition", "expression"],
         propagate_positions=True,
         maybe_placeholders=False,
     )
@@ -70,6 +72,13 @@ def parse_claim(text: str) -> ast.Relation | ParseFailure:
     """Parse the body of a claim (``A = B``, ``A \\neq B``, chains)."""
     result = _parse(text, "relation")
     assert isinstance(result, ast.Relation | ParseFailure)
+    return result
+
+
+def parse_row(text: str) -> ast.Row | ParseFailure:
+    """Parse one row of a display: statements, separators and qualifiers (docs/method.md#layout)."""
+    result = _parse(text, "row")
+    assert isinstance(result, ast.Row | ParseFailure)
     return result
 
 
@@ -243,6 +252,37 @@ def _make_transformer() -> Any:
             rels = tuple({"=": "=", "\\equiv": "≡"}.get(str(r), "!=") for r in items[1::2])
             return ast.Relation(_span(meta), sides, rels, domain)
 
+        # -- the layout of a row (docs/method.md#layout) -----------------------------
+        def row(self, meta: Any, items: list[Any]) -> ast.Row:
+            return _group_row(_span(meta), items)
+
+        def row_next(self, meta: Any, items: list[Any]) -> tuple[str, Any]:
+            return ("next", items[-1])
+
+        def row_iff(self, meta: Any, items: list[Any]) -> tuple[str, Any]:
+            return ("iff", items[-1])
+
+        def row_qualifier(self, meta: Any, items: list[Any]) -> tuple[str, Any]:
+            return ("qualifier", items[-1])
+
+        def q_modulus(self, meta: Any, items: list[Any]) -> tuple[str, int]:
+            digits = re.findall(r"\d+", str(items[0]))[-1]
+            # -1 stands for a modulus too large to check; 0 is reported as such (api._claim).
+            return ("modulus", int(digits) if len(digits) <= MAX_MODULUS_DIGITS else -1)
+
+        def q_range(self, meta: Any, items: list[Any]) -> tuple[str, tuple[str, int]]:
+            m = _RANGE_PARTS.search(str(items[0]))
+            assert m is not None
+            return ("start", (m.group(1), int(m.group(2))))
+
+        def q_range_bare(self, meta: Any, items: list[Any]) -> tuple[str, tuple[str, int]]:
+            name = next(t for t in items if getattr(t, "type", "") == "NAME")
+            return ("start", (str(name), items[-1]))
+
+        def signed_int(self, meta: Any, items: list[Any]) -> int:
+            value = int(str(items[-1]))
+            return -value if self.text[meta.start_pos : meta.end_pos].lstrip().startswith("-") else value
+
         def rel(self, meta: Any, items: list[Any]) -> str:
             return str(items[0])
 
@@ -375,6 +415,42 @@ def _make_transformer() -> Any:
             return ast.BigO(_span(meta), items[-1])
 
     return ToAst
+
+
+_RANGE_PARTS = re.compile(r"([a-z])\s*(?:\\geq?|>=|\\geqslant)\s*(-?\d+)\s*\)$")
+
+
+def _group_row(span: ast.Span, items: list[Any]) -> ast.Row:
+    """Statements with their qualifiers, from the flat list the grammar gives.
+
+    A qualifier belongs to the relation before it.  Qualifiers after the last relation of a
+    row also apply to the earlier relations that have none of their own: a modulus only to
+    congruences (it would weaken an equation), a range to every relation.
+    """
+    relations: list[ast.Relation] = [items[0]]
+    quals: list[dict[str, Any]] = [{}]
+    iff = [False]
+    for kind, value in items[1:]:
+        if kind in ("next", "iff"):
+            relations.append(value)
+            quals.append({})
+            iff.append(kind == "iff")
+            if kind == "iff":
+                iff[-2] = True
+        else:
+            key, payload = value
+            quals[-1][key] = payload
+    trailing = quals[-1]
+    for rel, q in zip(relations[:-1], quals[:-1], strict=True):
+        if "modulus" in trailing and "modulus" not in q and "≡" in rel.rels:
+            q["modulus"] = trailing["modulus"]
+        if "start" in trailing and "start" not in q:
+            q["start"] = trailing["start"]
+    statements = tuple(
+        ast.Statement(r.span, r, q.get("modulus"), q.get("start"), f)
+        for r, q, f in zip(relations, quals, iff, strict=True)
+    )
+    return ast.Row(span, statements)
 
 
 class _ToAst:

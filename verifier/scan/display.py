@@ -21,7 +21,7 @@ INNER_JOIN_ENVIRONMENTS = ("multlined",)
 _LABEL = re.compile(r"\\label\s*\{([^{}]*)\}")
 _TAG = re.compile(r"\\tag\*?\s*\{[^{}]*\}")
 _DROP = re.compile(
-    r"\\(nonumber|notag|displaystyle|textstyle|qquad|quad|thinspace|enspace|medspace|thickspace|"
+    r"\\(nonumber|notag|displaystyle|textstyle|thinspace|enspace|medspace|thickspace|"
     r"negthinspace)(?![A-Za-z])"
     r"|\\[,;:!> ]|~|&"
 )
@@ -129,6 +129,30 @@ def _split_columns(row: MappedText) -> list[MappedText]:
     return [row.slice(a + (1 if k else 0), b) for k, (a, b) in enumerate(itertools.pairwise(bounds))]
 
 
+_QUAD = re.compile(r"\\q?quad(?![A-Za-z])")
+# Before or after these a \quad is only spacing; between two operands it separates two
+# statements, and the grammar reads it there (docs/method.md#layout).
+_OPERATOR_BEFORE = re.compile(r"(^|[=+\-(\[{&,;<>]|\\(neq?|equiv|cdot|times|iff|in|leq?|geq?|[A-Za-z]*arrow))\s*$")
+_OPERATOR_AFTER = re.compile(r"^\s*($|[=+\-)\]}&.,;]|\\(neq?|equiv|cdot|times|[cl]?dots|iff|\\)(?![A-Za-z]))")
+
+
+def _spacing_quads(text: MappedText) -> MappedText:
+    """Blank every ``\\quad``/``\\qquad`` that stands next to an operator or an edge of the row."""
+    s = text.text
+    spans = []
+    for m in _QUAD.finditer(s):
+        before = _QUAD.sub(" ", s[max(0, m.start() - 16) : m.start()]) if m.start() else ""
+        after = s[m.end() : m.end() + 16]
+        if m.start() == 0 or _OPERATOR_BEFORE.search(before) or _OPERATOR_AFTER.match(after) or not before.strip():
+            spans.append((m.start(), m.end()))
+    if not spans:
+        return text
+    chars = list(s)
+    for a, b in spans:
+        chars[a:b] = " " * (b - a)
+    return MappedText("".join(chars), text.origins, text.source)
+
+
 def normalise_row(row: MappedText, macros: dict[str, macro_mod.Macro]) -> Row:
     """Expand macros, extract the label, delete non-mathematical commands.
 
@@ -145,6 +169,7 @@ def normalise_row(row: MappedText, macros: dict[str, macro_mod.Macro]) -> Row:
     text = text.sub(_DERIVATIVE, lambda m: "D " + " " * (len(m.group(0)) - 2))
     text = text.sub(_FRAC_DIGITS, lambda m: f"\\{m.group(1)}{{{m.group(2)}}}{{{m.group(3)}}}")
     text = text.blank(_TRAILING)
+    text = _spacing_quads(text)
     text = text.sub(_NOT_EQUAL, lambda m: "\\neq")
     return Row(text, label, source_text)
 
