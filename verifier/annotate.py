@@ -76,7 +76,7 @@ from verifier.diagnostics import Diagnostic
 from verifier.report.tex_message import ascii_line, message_tex, reading_tex, tex_escape, tt_escape
 from verifier.report.text import CAUTION
 from verifier.scan import is_markdown
-from verifier.scan.latex import find_tags
+from verifier.scan.latex import ENVIRONMENTS, find_tags
 from verifier.scan.markdown import fenced_ranges as _fenced_ranges
 from verifier.scan.text import blank_comments
 
@@ -279,7 +279,7 @@ def _diagnostic_text(d: Diagnostic) -> str:
 # LaTeX
 # ---------------------------------------------------------------------------
 
-_ENVIRONMENTS = ("equation", "align", "gather", "multline", "flalign")
+_ENVIRONMENTS = ENVIRONMENTS
 _DISPLAY_OPEN = re.compile(r"\\\[|\$\$|\\begin\s*\{(?P<env>(?:" + "|".join(_ENVIRONMENTS) + r")\*?)\}")
 _BEGIN_DOCUMENT = re.compile(r"\\begin\s*\{document\}")
 _END_DOCUMENT = re.compile(r"\\end\s*\{document\}")

@@ -458,6 +458,20 @@ def _block(
                     pending.append(about_space)
                 previous_side = None
                 continue
+        if _CASES.search(text.text):
+            report.claims.append(
+                _error(
+                    text.location(_CASES.search(text.text).start()),  # type: ignore[union-attr]
+                    "unsupported",
+                    "a case distinction that gives a value is one piecewise definition, not a claim",
+                    "tag each case as its own claim, e.g. f(n) = a \\quad (n \\ge 1)",
+                    row.source_text,
+                    name,
+                    row.label,
+                )
+            )
+            previous_side = None
+            continue
         parsed_row = parse_row(text.text)
         if isinstance(parsed_row, ParseFailure):
             report.claims.append(
@@ -510,6 +524,7 @@ def _block(
                 result.link = (i, len(chain))
 
 
+_CASES = re.compile(r"\\begin\s*\{d?cases\*?\}")
 # docs/method.md#layout: A = B \iff C = D is two claims; the equivalence is the author's.
 _IFF_NOTE = "one side of an equivalence: each equation is checked, the equivalence itself is not"
 

@@ -28,7 +28,17 @@ _DROP = re.compile(
 # \left( -> "(" at the position of the backslash, so a claim starting with \left( starts there.
 _SIZED = re.compile(r"\\(left|right|middle|[bB]igg?[lrm]?)(?![A-Za-z])\s*(\\[{}]|[()\[\]|./])?")
 _HSPACE = re.compile(r"\\[hv]space\*?\s*\{[^{}]*\}")
-_INNER_ENV = re.compile(r"\\(begin|end)\s*\{(aligned|gathered|split|multlined)\}(\[[a-z]\])?")
+# Inner environments, also the numbered ones that MathJax users put inside $$...$$
+# (docs/method.md#layout); alignat and alignedat carry their column count {n}.
+_INNER_ENV = re.compile(
+    r"\\(begin|end)\s*\{(aligned|gathered|split|multlined|align|gather|eqnarray|flalign|equation|subequations"
+    r"|alignat|alignedat|cases|dcases)\*?\}(\[[a-z]\]|\s*\{\s*\d+\s*\})?"
+)
+_PAIRED_INNER = re.compile(r"\\begin\s*\{(aligned|split|align|flalign|alignat|alignedat)\*?\}")
+# A case distinction that gives a value (f(n) = \begin{cases} ... or \left\{ \begin{array} ...) is
+# one piecewise definition, not a list of claims.
+_PIECEWISE = re.compile(r"(=|\\[{]|\\lbrace)\s*\\begin\s*\{d?cases\*?\}")
+_ALIGNAT_COLUMNS = re.compile(r"^\s*\{\s*\d+\s*\}")
 _MATHCAL_O = re.compile(r"\\(mathcal|mathrm|mathit)\s*(\{\s*O\s*\}|O)")
 # Bold and upright names are the plain names: \mathbf{E}_4, \mathrm{E}_4, \boldsymbol\Delta.
 _STYLED_NAME = re.compile(
@@ -62,9 +72,18 @@ def rows_of(content: MappedText, env: str) -> list[MappedText]:
     """Split a display's content into rows (before normalisation)."""
     content = _drop_intertext(content)
     squashed = content.text.replace(" ", "")
-    paired = env.startswith(("align", "flalign")) or any(f"\\begin{{{e}}}" in squashed for e in ("aligned", "split"))
+    paired = env.startswith(("align", "flalign", "alignat")) or _PAIRED_INNER.search(content.text) is not None
     joined = env.startswith("multline") or any(f"\\begin{{{e}}}" in squashed for e in INNER_JOIN_ENVIRONMENTS)
+    if env.startswith("alignat"):
+        content = content.blank(_ALIGNAT_COLUMNS)
+    if _PIECEWISE.search(content.text):
+        # Kept whole: the parser reports it with a hint (one claim per case).
+        return [content]
+    cases = "\\begin{cases}" in squashed or "\\begin{dcases}" in squashed
     content = content.blank(_INNER_ENV)
+    if cases:
+        # In a case list 'claim & condition' the condition follows the claim as a qualifier.
+        paired = False
     if joined:
         # multline: one equation broken over lines.
         return [content.blank(_ROW_BREAK)]

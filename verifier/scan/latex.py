@@ -27,7 +27,7 @@ from verifier.scan.files import decode_source, near_miss_tags
 from verifier.scan.options import parse_options
 from verifier.scan.text import MappedText, SourceFile, blank_comments
 
-ENVIRONMENTS = ("equation", "align", "gather", "multline", "flalign", "eqnarray")
+ENVIRONMENTS = ("equation", "align", "gather", "multline", "flalign", "alignat", "eqnarray", "subequations")
 _TAG_LINE = re.compile(r"^\ufeff?[ \t]*%@(?P<kind>claim|define)(?P<rest>(?![A-Za-z]).*)$", re.M)
 _INCLUDE = re.compile(
     r"\\(?P<cmd>input|include|subfile)(?![A-Za-z])\s*(?:\{(?P<braced>[^{}]*)\}|(?P<bare>[^\s{}\\%]+))"
