@@ -15,7 +15,7 @@ import pytest
 import sympy
 from verifier import check_text
 from verifier.parse import ast
-from verifier.parse.grammar import ParseFailure, parse_row
+from verifier.parse.grammar import parse_row
 
 N = 6
 
