@@ -24,7 +24,7 @@ from verifier.budget import DEFAULT_MAX_SECONDS, TimeExceeded, decide_timed, int
 from verifier.config import DEFAULT_FAIL_ON
 from verifier.diagnostics import Diagnostic
 from verifier.elaborate import ir
-from verifier.elaborate.elaborator import Elaborator, Problem, normal_name
+from verifier.elaborate.elaborator import Elaborator, Problem, is_builtin, normal_name
 from verifier.elaborate.rescale import rescale_factor, rescale_side
 from verifier.forms import registry
 from verifier.forms.characters import parse_character
@@ -34,7 +34,14 @@ from verifier.location import Location
 from verifier.options import parse_group, parse_nome, parse_weight
 from verifier.parallel import map_in_order
 from verifier.parse import ast
-from verifier.parse.grammar import MAX_MODULUS_DIGITS, ParseFailure, parse_definition, parse_expression, parse_row
+from verifier.parse.grammar import (
+    MAX_MODULUS_DIGITS,
+    ParseFailure,
+    parse_definition,
+    parse_definitions,
+    parse_expression,
+    parse_row,
+)
 from verifier.parse.spaces import dimension_prefix, parse_space, split_membership
 from verifier.prove.arithmetic import ArithmeticClaim, decide_arithmetic
 from verifier.prove.certificate import minimal as certificate_minimal
@@ -46,6 +53,7 @@ from verifier.prove.suggest import suggestion
 from verifier.scan import ScannedDocument, scan_path, scan_text
 from verifier.scan.display import Row
 from verifier.scan.document import ClaimBlock, DefineTag
+from verifier.scan.definitions import NEVER_DEFINED, defined_names
 from verifier.scan.text import MappedText
 
 VERDICTS = ("proved", "refuted", "unproven", "error")
@@ -331,6 +339,9 @@ def _define(item: DefineTag, elaborator: Elaborator, report: Report) -> None:
     report.diagnostics.extend(item.problems)
     if item.text is None:
         return
+    if item.origin != "tag":
+        _author_define(item, item.text, elaborator)
+        return
     text = item.text
     matrix = _MATRIX_DEFINE.match(text.text)
     if matrix is not None:
@@ -371,6 +382,72 @@ def _define(item: DefineTag, elaborator: Elaborator, report: Report) -> None:
                 problem.hint,
             )
         )
+
+
+def _author_define(item: DefineTag, text: MappedText, elaborator: Elaborator) -> None:
+    """A definition found in the author's text (docs/method.md#author-definitions).
+
+    From here on the name has the author's meaning.  A definition that cannot be read makes
+    the name unusable (a later claim that uses it is an error that says where the definition
+    is), so that no claim is ever decided with a meaning the author did not give.
+    """
+    where = f"{item.tag.file}:{item.tag.line}:{item.tag.column}"
+    if item.origin == "mention":
+        parsed_one = parse_definition(text.text)
+        if not isinstance(parsed_one, ParseFailure):
+            elaborator.mentions.setdefault(normal_name(parsed_one.name), where)
+        return
+    parsed = parse_definitions(text.text)
+    if isinstance(parsed, ParseFailure):
+        for name in defined_names(text.text):
+            elaborator.unread_definition(
+                normal_name(name), f"{name} is defined at {where} in notation qreferee does not read ({parsed.message})"
+            )
+        return
+    for d in parsed:
+        name = normal_name(d.name)
+        if name in NEVER_DEFINED or (is_builtin(name) and not _names_a_form(d.body, text.text)):
+            continue  # the nome, or an index that shares a form's letter (j = 1)
+        if d.arg not in (None, "tau", "z", "q"):
+            elaborator.unread_definition(name, f"{name} is defined at {where} as a function of another variable")
+            continue
+        problem = elaborator.define(name, d.body, text.text, author=where)
+        if problem is not None:
+            elaborator.unread_definition(
+                name, f"{name} is defined at {where}, but its definition cannot be used: {problem.message}"
+            )
+
+
+def _names_a_form(node: ast.Node, text: str) -> bool:
+    """Whether an expression has q or a form in it (a definition of j must; 'j = 1' is an index)."""
+    return any(isinstance(n, ast.Name | ast.Call | ast.BigSum) and not isinstance(n, ast.Number) for n in ast.walk(node))
+
+
+def _definition_block(block: ClaimBlock, elaborator: Elaborator, report: Report, pending: list[_Pending]) -> None:
+    """Check the author's definition of a name qreferee already knows, against qreferee's meaning."""
+    for row in block.rows:
+        parsed = parse_definitions(row.text.text)
+        if isinstance(parsed, ParseFailure):
+            continue  # the define item that follows records it as unread
+        for d in parsed:
+            name = normal_name(d.name)
+            if not is_builtin(name) or name in NEVER_DEFINED or not _names_a_form(d.body, row.text.text):
+                continue
+            if d.arg not in (None, "tau", "z", "q"):
+                continue
+            lhs = ast.Name(d.name_span, d.name, d.arg)
+            saved = elaborator.forget(name)  # compare with qreferee's meaning, not an earlier author's
+            try:
+                claim = _claim(row.text, lhs, d.body, "=", d.span[0], row, None, block, elaborator)
+            finally:
+                elaborator.restore(name, saved)
+            result = claim if isinstance(claim, ClaimResult) else claim.result
+            result.note = f"the author's definition of {d.name}, compared with qreferee's {d.name}"
+            if isinstance(claim, ClaimResult):
+                result.outcome.message += f"; {result.note}"
+            else:
+                pending.append(claim)
+            report.claims.append(result)
 
 
 _MATRIX_DEFINE = re.compile(r"^\s*([A-Za-z](?:_\{?\w+\}?)?|\\[A-Za-z]+)\s*=\s*(\\begin\s*\{[bp]?matrix\}.*)$", re.S)
@@ -425,6 +502,9 @@ def _block(
     for p in block.problems:
         report.claims.append(_error(p.location, p.code, p.message, p.hint, block_source, name=name))
     if fatal:
+        return
+    if block.definition:
+        _definition_block(block, elaborator, report, pending)
         return
     count = 0
     previous_side: MappedText | None = None
@@ -626,6 +706,16 @@ def _claim(
         return _error(block.tag, code, message, hint, source, name, row.label, kind, end)
     result = ClaimResult(loc, end, name, row.label, source, Outcome("error", kind, "not decided"))
     result.reading = " ".join(text.text[left_node.span[0] : right_node.span[1]].split())
+    redefined = sorted(
+        {
+            elaborator.authored[n]
+            for node in (left_node, right_node)
+            for n in _names_in(node)
+            if n in elaborator.authored and is_builtin(n)
+        }
+    )
+    if redefined:
+        result.reading += " [" + "; ".join(redefined) + "]"
     make_build = _side_builder(elaborator, text, nome)
 
     def suggest(prover: Prover) -> str | None:
@@ -720,6 +810,16 @@ def _arithmetic_claim(
         return decide_arithmetic(prover, claim, Values(series_of))
 
     return _Pending(result, _NO_SIDE, _NO_SIDE, "=", task=task)
+
+
+def _names_in(node: ast.Node) -> set[str]:
+    out = set()
+    for n in ast.walk(node):
+        if isinstance(n, ast.Name):
+            out.add(normal_name(n.text))
+        elif isinstance(n, ast.Call):
+            out.add(normal_name(n.name))
+    return out
 
 
 def _side_builder(

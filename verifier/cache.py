@@ -242,7 +242,7 @@ def _region(block: ClaimBlock, starts_of: dict[int, list[int]]) -> _Region | Non
 
 def _define_text(item: DefineTag) -> str:
     if item.text is not None:
-        return "=" + item.text.text
+        return item.origin + "=" + item.text.text
     return "!" + "\n".join(f"{p.code}:{p.message}" for p in item.problems)
 
 

@@ -69,6 +69,12 @@ class Elaborator:
         # mix weights (1 - E_2)/24, which the proof splits by weight.
         self.allow_mixed = False
         self._text = ""  # the claim text being elaborated (for hints that look past a node)
+        # Definitions found in the author's text (docs/method.md#author-definitions): names whose
+        # definition could not be read (name -> why), where each author-defined name was defined
+        # (name -> note for readings), and inline 'X = ...' that did not clearly define X.
+        self.unread: dict[str, str] = {}
+        self.authored: dict[str, str] = {}
+        self.mentions: dict[str, str] = {}
 
     # -- public -------------------------------------------------------------------
     def side(self, node: ast.Node, text: str) -> ir.Side | Problem:
@@ -109,10 +115,30 @@ class Elaborator:
         except ElaborationError as exc:
             return exc.problem
 
-    def define(self, name: str, node: ast.Node, text: str) -> Problem | None:
-        """Record ``name := node``; returns a problem if the body does not elaborate."""
+    def unread_definition(self, name: str, why: str) -> None:
+        """The author defines ``name`` in a way that cannot be read: later uses are errors."""
+        self.unread[name] = why
+        self.definitions.pop(name, None)
+        self.authored.pop(name, None)
+
+    def forget(self, name: str) -> tuple[ir.Expr | None, str | None, str | None]:
+        """Set aside the document's meaning of ``name`` (to compare with qreferee's own)."""
+        return self.definitions.pop(name, None), self.unread.pop(name, None), self.authored.pop(name, None)
+
+    def restore(self, name: str, saved: tuple[ir.Expr | None, str | None, str | None]) -> None:
+        """Undo :meth:`forget`."""
+        for table, value in zip((self.definitions, self.unread, self.authored), saved, strict=True):
+            if value is not None:
+                table[name] = value  # type: ignore[index]
+
+    def define(self, name: str, node: ast.Node, text: str, author: str | None = None) -> Problem | None:
+        """Record ``name := node``; returns a problem if the body does not elaborate.
+
+        ``author`` is where an author's definition stands in the text; such a definition may
+        give a built-in name the author's meaning (docs/method.md#author-definitions).
+        """
         name = normal_name(name)
-        if is_builtin(name):
+        if is_builtin(name) and author is None:
             return Problem(
                 "bad-define",
                 f"{name} is a built-in form and cannot be redefined",
@@ -130,6 +156,11 @@ class Elaborator:
                 node.span,
             )
         self.definitions[name] = result.expr
+        self.unread.pop(name, None)
+        if author is not None:
+            self.authored[name] = f"{name} as the author defines it at {author}"
+        else:
+            self.authored.pop(name, None)
         return None
 
     # -- expressions ----------------------------------------------------------------
@@ -386,6 +417,13 @@ class Elaborator:
             if node.arg is not None:
                 raise _err("syntax", "q takes no argument", "", node)
             return ir.QPower(ir.Typ(None, printed=True), src, self.nome)
+        if name in self.unread:
+            raise _err(
+                "unknown-symbol",
+                self.unread[name],
+                f"write the definition of {name} in the claim language, or add %@define {name} = ...",
+                node,
+            )
         if name in self.definitions:
             if scale != 1:
                 raise _err(
@@ -414,7 +452,12 @@ class Elaborator:
         hint = (
             "known forms: E_2, E_4, ..., \\Delta, j, \\eta(d\\tau), \\theta, \\theta_2, \\theta_3, \\theta_4, \\Theta_Q"
         )
-        if len(name) > 1 and name[1:2] == "_" and not name.endswith("}"):
+        if name in self.mentions:
+            hint = (
+                f"{name} = ... is written at {self.mentions[name]}, but not clearly as a definition; "
+                f"if it is one, add %@define {name} = ... (or write {name} := ...)"
+            )
+        elif len(name) > 1 and name[1:2] == "_" and not name.endswith("}"):
             hint += "; " + (self._digits_hint(name, node) or f"write {name[:2]}{{..}} for a longer index")
         raise _err("unknown-symbol", f"unknown symbol {name}", hint, node)
 

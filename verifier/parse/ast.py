@@ -194,6 +194,8 @@ def children(node: Node) -> tuple[Node, ...]:
         return node.statements
     if isinstance(node, Statement):
         return (node.relation,)
+    if isinstance(node, Definitions):
+        return node.items
     return ()
 
 
@@ -256,3 +258,10 @@ def _power(base: Fraction, exponent: int) -> Fraction:
     if power_bits(bits, exponent) > MAX_CONSTANT_BITS:
         raise TooLarge(f"a power of {number_text(base)} to the {number_text(exponent)} is too large to compute")
     return base**exponent
+
+
+@dataclass(frozen=True)
+class Definitions(Node):
+    """The author's definitions in one row (docs/method.md#author-definitions)."""
+
+    items: tuple[Definition, ...]

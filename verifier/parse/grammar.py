@@ -42,7 +42,7 @@ def _parser() -> Any:
         grammar_path().read_text(encoding="utf-8"),
         parser="lalr",
         lexer="contextual",
-        start=["relation", "row", "definition", "expression"],
+        start=["relation", "row", "definition", "definitions", "expression"],
         propagate_positions=True,
         maybe_placeholders=False,
     )
@@ -92,6 +92,15 @@ def parse_definition(text: str) -> ast.Definition | ParseFailure:
     result = _parse(text, "definition")
     assert isinstance(result, ast.Definition | ParseFailure)
     return result
+
+
+def parse_definitions(text: str) -> tuple[ast.Definition, ...] | ParseFailure:
+    """Parse the author's definitions of one row (``X = a, \\quad Y(\\tau) = b``)."""
+    result = _parse(text, "definitions")
+    if isinstance(result, ParseFailure):
+        return result
+    assert isinstance(result, ast.Definitions)
+    return result.items
 
 
 def _parse(text: str, start: str) -> ast.Node | ParseFailure:
@@ -294,6 +303,9 @@ def _make_transformer() -> Any:
             name_tok = items[0]
             arg = _normal_arg(str(items[1])) if len(items) == 3 else None
             return ast.Definition(_span(meta), str(name_tok), _tok_span(name_tok), items[-1], arg)
+
+        def definitions(self, meta: Any, items: list[Any]) -> ast.Definitions:
+            return ast.Definitions(_span(meta), tuple(i for i in items if isinstance(i, ast.Definition)))
 
         def neg(self, meta: Any, items: list[Any]) -> ast.Neg:
             return ast.Neg(_span(meta), items[0])

@@ -26,6 +26,9 @@ class ClaimBlock:
     # The author's text of the display (of the tag itself when no display follows), with
     # runs of white space squashed: the source of an error that concerns the whole block.
     source: str = ""
+    # A definition the author made in the text (X := ...): its block checks it where X
+    # already has a meaning (docs/method.md#author-definitions).
+    definition: bool = False
 
 
 @dataclass
@@ -35,6 +38,9 @@ class DefineTag:
     tag: Location
     text: MappedText | None
     problems: list[Diagnostic] = field(default_factory=list)
+    # "tag" (%@define, \qrdefine); or found in the author's text (docs/method.md#author-definitions):
+    # "author" (X := ...), "prose" (where $X = ...$), "mention" (an inline X = ... that defines nothing).
+    origin: str = "tag"
 
 
 @dataclass

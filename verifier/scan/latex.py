@@ -24,6 +24,7 @@ from verifier.scan.document import (
     ScannedDocument,
 )
 from verifier.scan.files import decode_source, near_miss_tags
+from verifier.scan.definitions import Region, classify, definition_items, math_regions, split_definitions
 from verifier.scan.options import parse_options
 from verifier.scan.text import MappedText, SourceFile, blank_comments
 
@@ -49,6 +50,7 @@ class _Reader:
         self.doc = ScannedDocument()
         self.macros: dict[str, macro_mod.Macro] = {}
         self.active: list[Path] = []
+        self.tagged: list[tuple[str, int, int]] = []  # tagged displays: (file, start, end)
 
     def read_path(self, path: Path, at: Location | None) -> None:
         resolved = path.resolve()
@@ -80,7 +82,9 @@ class _Reader:
         raw = source.text
         bare = blank_comments(raw)
         self.doc.diagnostics.extend(near_miss_tags(source, markdown=False))
-        events: list[tuple[int, str, re.Match[str] | tuple[int, macro_mod.Macro | macro_mod.DefinitionProblem]]] = []
+        events: list[
+            tuple[int, str, re.Match[str] | Region | tuple[int, macro_mod.Macro | macro_mod.DefinitionProblem]]
+        ] = []
         for m in _TAG_LINE.finditer(raw):
             events.append((m.start(), "tag", m))
         for m in COMMAND_TAG.finditer(bare):
@@ -90,6 +94,9 @@ class _Reader:
             events.append((m.start(), "include", m))
         for offset, found in macro_mod.find_definitions(bare):
             events.append((offset, "macro", (offset, found)))
+        for region in math_regions(bare):
+            if classify(region, bare):
+                events.append((region.start, "author", region))
         events.sort(key=lambda e: e[0])
         tag_offsets = [e[0] for e in events if e[1] in ("tag", "command")]
         for offset, kind, payload in events:
@@ -111,6 +118,10 @@ class _Reader:
                             "claims using this macro will not parse",
                         )
                     )
+            elif kind == "author":
+                assert isinstance(payload, Region)
+                if not any(f == source.display and a <= payload.start < b for f, a, b in self.tagged):
+                    self.doc.items.extend(definition_items(payload, bare, source, self.macros))
             elif kind == "include":
                 assert isinstance(payload, re.Match)
                 self._include(source, payload)
@@ -238,6 +249,7 @@ class _Reader:
             )
             return
         block.environment = env
+        self.tagged.append((source.display, opener.start(), close + 1))
         block.source = " ".join(source.text[opener.end() : close].split())
         content = MappedText(bare[opener.end() : close], list(range(opener.end(), close)), source)
         for row in rows_of(content, env):
@@ -254,6 +266,8 @@ class _Reader:
                     )
                 )
         block.rows = join_continued_rows(block.rows)
+        if not block.problems:
+            self.doc.items[-1:] = split_definitions(block)
 
     def _problem(self, code: str, at: Location | None, message: str, hint: str) -> None:
         where = at or Location(str(self.root), 1, 1)

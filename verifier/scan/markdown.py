@@ -13,6 +13,7 @@ from pathlib import Path
 from verifier.diagnostics import Diagnostic
 from verifier.location import Location
 from verifier.scan import macros as macro_mod
+from verifier.scan.definitions import Region, classify, definition_items, math_regions, split_definitions
 from verifier.scan.display import join_continued_rows, normalise_row, rows_of
 from verifier.scan.document import MAX_FILE_BYTES, ClaimBlock, DefineTag, ScannedDocument
 from verifier.scan.files import decode_source, near_miss_tags
@@ -34,20 +35,35 @@ def scan_markdown_source(source: SourceFile) -> ScannedDocument:
         (m.start(), m) for m in _TAG.finditer(text) if not any(a <= m.start() < b for a, b in fenced)
     ]
     events.extend(macro_mod.find_definitions(text))
+    # Definitions in the author's text (docs/method.md#author-definitions), outside code.
+    events.extend(
+        (r.start, r)
+        for r in math_regions(text)
+        if classify(r, text) and not any(a <= r.start < b for a, b in fenced)
+    )
     events.sort(key=lambda e: e[0])
     macros: dict[str, macro_mod.Macro] = {}
+    tagged: list[tuple[int, int]] = []
     for offset, payload in events:
-        if isinstance(payload, macro_mod.Macro):
+        if isinstance(payload, Region):
+            if not any(a <= payload.start < b for a, b in tagged):
+                doc.items.extend(definition_items(payload, text, source, macros))
+        elif isinstance(payload, macro_mod.Macro):
             macros[payload.name] = payload
         elif isinstance(payload, macro_mod.DefinitionProblem):
             doc.diagnostics.append(Diagnostic("bad-macro", "warning", _loc(source, offset), payload.message, ""))
         else:
             assert isinstance(payload, re.Match)
-            _tag(source, payload, macros, doc)
+            span = _tag(source, payload, macros, doc)
+            if span is not None:
+                tagged.append(span)
     return doc
 
 
-def _tag(source: SourceFile, m: re.Match[str], macros: dict[str, macro_mod.Macro], doc: ScannedDocument) -> None:
+def _tag(
+    source: SourceFile, m: re.Match[str], macros: dict[str, macro_mod.Macro], doc: ScannedDocument
+) -> tuple[int, int] | None:
+    """Read one tag; returns the offsets of the math block it tags, if any."""
     text = source.text
     loc = _loc(source, m.start())
     rest_start = m.start("rest")
@@ -60,7 +76,7 @@ def _tag(source: SourceFile, m: re.Match[str], macros: dict[str, macro_mod.Macro
         except macro_mod.MacroError as exc:
             define.problems.append(Diagnostic("macro-expansion", "error", _loc(source, exc.origin), str(exc), ""))
         doc.items.append(define)
-        return
+        return None
     options, problems = parse_options(rest.replace("\n", " "))
     block = ClaimBlock(loc, options, [], "", source=" ".join(text[m.start() : m.end()].split()))
     for p in problems:
@@ -85,7 +101,7 @@ def _tag(source: SourceFile, m: re.Match[str], macros: dict[str, macro_mod.Macro
                     "put a $$ ... $$ block or a ```math fence right after the tag",
                 )
             )
-            return
+            return None
         start = fence.end()
         closing = re.compile(r"^[ \t]*" + re.escape(fence.group("fence")) + r"[ \t]*\r?$", re.M)
         found = closing.search(text, start)
@@ -101,7 +117,7 @@ def _tag(source: SourceFile, m: re.Match[str], macros: dict[str, macro_mod.Macro
                 "close the math block",
             )
         )
-        return
+        return None
     block.environment = opener
     block.source = " ".join(text[start:close].split())
     content = MappedText(text[start:close], list(range(start, close)), source)
@@ -111,6 +127,9 @@ def _tag(source: SourceFile, m: re.Match[str], macros: dict[str, macro_mod.Macro
         except macro_mod.MacroError as exc:
             block.problems.append(Diagnostic("macro-expansion", "error", _loc(source, exc.origin), str(exc), ""))
     block.rows = join_continued_rows(block.rows)
+    if not block.problems:
+        doc.items[-1:] = split_definitions(block)
+    return (i, close + 2)
 
 
 _FENCE_LINE = re.compile(r"^[ \t]{0,3}(`{3,}|~{3,})[^\n]*$", re.M)
