@@ -421,7 +421,8 @@ class Elaborator:
             raise _err(
                 "unknown-symbol",
                 self.unread[name],
-                f"write the definition of {name} in the claim language, or add %@define {name} = ...",
+                f"write the definition of {name} in notation qreferee reads (README)"
+                + ("" if is_builtin(name) else f", or add %@define {name} = ..."),
                 node,
             )
         if name in self.definitions:
