@@ -51,9 +51,9 @@ from verifier.prove.prover import DEFAULT_MAX_TERMS, Outcome, Prover, claim_leve
 from verifier.prove.solve import decide_solve
 from verifier.prove.suggest import suggestion
 from verifier.scan import ScannedDocument, scan_path, scan_text
+from verifier.scan.definitions import NEVER_DEFINED, defined_names
 from verifier.scan.display import Row
 from verifier.scan.document import ClaimBlock, DefineTag
-from verifier.scan.definitions import NEVER_DEFINED, defined_names
 from verifier.scan.text import MappedText
 
 VERDICTS = ("proved", "refuted", "unproven", "error")
@@ -420,7 +420,9 @@ def _author_define(item: DefineTag, text: MappedText, elaborator: Elaborator) ->
 
 def _names_a_form(node: ast.Node, text: str) -> bool:
     """Whether an expression has q or a form in it (a definition of j must; 'j = 1' is an index)."""
-    return any(isinstance(n, ast.Name | ast.Call | ast.BigSum) and not isinstance(n, ast.Number) for n in ast.walk(node))
+    return any(
+        isinstance(n, ast.Name | ast.Call | ast.BigSum) and not isinstance(n, ast.Number) for n in ast.walk(node)
+    )
 
 
 def _definition_block(block: ClaimBlock, elaborator: Elaborator, report: Report, pending: list[_Pending]) -> None:

@@ -526,15 +526,29 @@ def _verbatim_ranges(bare: str) -> list[tuple[int, int]]:
 
 def untagged_blocks(doc: ScannedDocument) -> list[ClaimBlock]:
     """A block for each untagged display of ``doc``'s LaTeX files that reads as a claim about forms."""
-    from verifier.parse.grammar import ParseFailure, parse_claim
+    from verifier.parse.grammar import ParseFailure, parse_row
     from verifier.scan import macros as macro_mod
+    from verifier.scan.definitions import defined_names
     from verifier.scan.display import join_continued_rows, normalise_row, rows_of
 
     tagged: dict[str, set[int]] = {}
+    # Names the author defines in the text (X := ...): a display that uses one is a claim too.
+    authored: set[str] = set()
     for item in doc.items:
         if isinstance(item, ClaimBlock):
             for row in item.rows:
                 tagged.setdefault(row.text.source.display, set()).update(row.text.origins)
+        elif item.origin in ("author", "prose") and item.text is not None:
+            authored.update(defined_names(item.text.text))
+    uses_authored = (
+        re.compile("|".join(re.escape(n) + r"(?![A-Za-z0-9])" for n in sorted(authored, key=len, reverse=True)))
+        if authored
+        else None
+    )
+
+    def about_forms(text: str) -> bool:
+        return mentions_form(text) or (uses_authored is not None and uses_authored.search(text) is not None)
+
     macros: dict[str, macro_mod.Macro] = {}
     blocks: list[ClaimBlock] = []
     for display in dict.fromkeys(doc.files):
@@ -574,9 +588,7 @@ def untagged_blocks(doc: ScannedDocument) -> list[ClaimBlock]:
                 rows = join_continued_rows([normalise_row(r, macros) for r in rows_of(content, env)])
             except macro_mod.MacroError:
                 continue
-            if not any(
-                mentions_form(r.text.text) and not isinstance(parse_claim(r.text.text), ParseFailure) for r in rows
-            ):
+            if not any(about_forms(r.text.text) and not isinstance(parse_row(r.text.text), ParseFailure) for r in rows):
                 continue
             line, col = source.line_col(start)
             blocks.append(ClaimBlock(Location(display, line, col), {}, rows, env))

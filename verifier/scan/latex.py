@@ -14,6 +14,7 @@ from pathlib import Path
 from verifier.diagnostics import Diagnostic
 from verifier.location import Location
 from verifier.scan import macros as macro_mod
+from verifier.scan.definitions import Region, classify, definition_items, math_regions, split_definitions
 from verifier.scan.display import join_continued_rows, normalise_row, rows_of
 from verifier.scan.document import (
     MAX_FILE_BYTES,
@@ -23,8 +24,8 @@ from verifier.scan.document import (
     DefineTag,
     ScannedDocument,
 )
-from verifier.scan.files import decode_source, near_miss_tags
 from verifier.scan.definitions import Region, classify, definition_items, math_regions, split_definitions
+from verifier.scan.files import decode_source, near_miss_tags
 from verifier.scan.options import parse_options
 from verifier.scan.text import MappedText, SourceFile, blank_comments
 

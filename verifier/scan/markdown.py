@@ -37,9 +37,7 @@ def scan_markdown_source(source: SourceFile) -> ScannedDocument:
     events.extend(macro_mod.find_definitions(text))
     # Definitions in the author's text (docs/method.md#author-definitions), outside code.
     events.extend(
-        (r.start, r)
-        for r in math_regions(text)
-        if classify(r, text) and not any(a <= r.start < b for a, b in fenced)
+        (r.start, r) for r in math_regions(text) if classify(r, text) and not any(a <= r.start < b for a, b in fenced)
     )
     events.sort(key=lambda e: e[0])
     macros: dict[str, macro_mod.Macro] = {}
