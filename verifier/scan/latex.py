@@ -24,7 +24,6 @@ from verifier.scan.document import (
     DefineTag,
     ScannedDocument,
 )
-from verifier.scan.definitions import Region, classify, definition_items, math_regions, split_definitions
 from verifier.scan.files import decode_source, near_miss_tags
 from verifier.scan.options import parse_options
 from verifier.scan.text import MappedText, SourceFile, blank_comments
