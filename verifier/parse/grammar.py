@@ -256,7 +256,7 @@ def _make_transformer() -> Any:
         def relation(self, meta: Any, items: list[Any]) -> ast.Relation:
             domain = None
             if items and getattr(items[-1], "type", "") == "DOMAIN":
-                domain = " ".join(str(items.pop()).lstrip(",").split())
+                domain = " ".join(re.sub(r"^(,|\s|\\q?quad(?![A-Za-z]))*", "", str(items.pop())).split())
             sides = tuple(items[0::2])
             rels = tuple({"=": "=", "\\equiv": "≡"}.get(str(r), "!=") for r in items[1::2])
             return ast.Relation(_span(meta), sides, rels, domain)
