@@ -157,3 +157,21 @@ def test_indices_and_the_nome_are_not_definitions() -> None:
 def test_a_definition_holds_from_its_place_on() -> None:
     text = "%@claim\n\\[ F = E_{10} \\]\nSet $F := E_4 E_6$.\n%@claim\n\\[ F = E_{10} \\]\n"
     assert [v for v, _ in _run(text)] == ["error", "proved"]
+
+
+def test_a_definition_that_starts_a_chain_keeps_the_chain_as_claims() -> None:
+    # F := E_4^2 = E_8 = 1 + 480q + ...: the definition of F and two claims about E_4^2
+    # (E_4^2 = E_8 and E_8 = 1 + 480q + 61920q^2 + ...: Serre, A Course in Arithmetic, ch. VII,
+    # §4.2).  G := E_4 E_6 = E_12 is false: E_4 E_6 = E_10 has another weight.
+    text = (
+        "%@claim\n\\[ F := E_4^2 = E_8 = 1 + 480q + \\cdots \\]\n"
+        "%@claim\n\\[ G := E_4E_6 = E_{12} \\]\n"
+        "%@claim\n\\[ F = E_8 \\]\n"
+    )
+    report = check_text(text)
+    assert [(c.location.line, c.verdict) for c in report.claims] == [
+        (2, "proved"),
+        (2, "proved"),
+        (4, "refuted"),
+        (6, "proved"),
+    ]

@@ -162,6 +162,31 @@ def pieces(row: MappedText) -> list[MappedText]:
     return [p for p in out if p.text.strip()]
 
 
+_RELATION_TOKENS = frozenset({"=", "\\neq", "\\ne"})
+
+
+def chain_after_definition(piece: MappedText) -> tuple[MappedText, MappedText | None]:
+    """``X := B = C`` as the definition ``X := B`` and the claim ``B = C`` (None: no chain).
+
+    The first definition symbol is the definition's; the next relation at the top level
+    (outside braces and brackets) starts the chain that the author claims about B.
+    """
+    m = DEF_SYMBOL.search(piece.text)
+    if m is None:
+        return piece, None
+    depth = 0
+    for i, tok, brace in tokens_with_depth(piece.text, m.end()):
+        if tok in "([":
+            depth += 1
+        elif tok in ")]":
+            depth -= 1
+        elif brace == 0 and depth == 0 and tok in _RELATION_TOKENS:
+            if DEF_SYMBOL.match(piece.text, i):
+                continue
+            return piece.slice(0, i), piece.slice(m.end())
+    return piece, None
+
+
 def split_definitions(block: ClaimBlock) -> list[ClaimBlock | DefineTag]:
     """A tagged display whose rows hold definitions (``X := ...``), in reading order: blocks
     with the claims, and for each definition a checking block and its define item."""
@@ -184,6 +209,7 @@ def split_definitions(block: ClaimBlock) -> list[ClaimBlock | DefineTag]:
                 kept.append(Row(piece, row.label, " ".join(piece.source_slice().split())))
                 continue
             flush()
+            piece, chain = chain_after_definition(piece)
             text = as_equation(piece)
             lead = len(text.text) - len(text.text.lstrip())
             at = text.location(lead)
@@ -191,6 +217,8 @@ def split_definitions(block: ClaimBlock) -> list[ClaimBlock | DefineTag]:
             check = ClaimBlock(at, {}, [Row(text, row.label, source_text)], block.environment, source=source_text)
             check.definition = True
             out.extend([check, DefineTag(at, text, origin="author")])
+            if chain is not None:
+                kept.append(Row(chain, row.label, " ".join(chain.source_slice().split())))
     flush()
     return out
 
