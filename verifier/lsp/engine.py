@@ -19,8 +19,8 @@ import os
 import sys
 import time
 from collections.abc import Callable
-from multiprocessing.connection import Connection
 from dataclasses import dataclass, field
+from multiprocessing.connection import Connection
 from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
@@ -115,7 +115,11 @@ def check(request: Request, stop: Callable[[], bool] = lambda: False) -> Checked
         hint = f" (hint: {d.hint})" if d.hint else ""
         done.findings.append(
             Finding(
-                span_of(d.location), SCAN_SEVERITY.get(d.severity, "error"), d.message + hint, d.code, method.for_code(d.code)
+                span_of(d.location),
+                SCAN_SEVERITY.get(d.severity, "error"),
+                d.message + hint,
+                d.code,
+                method.for_code(d.code),
             )
         )
     if not stop():

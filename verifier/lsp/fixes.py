@@ -205,7 +205,9 @@ def define_skeleton(block: ClaimBlock, result: ClaimResult, markdown: bool) -> F
     name = m.group(1)
     tag = Span(absolute(block.tag.file), Pos(block.tag.line - 1, 0), Pos(block.tag.line - 1, 0))
     line = f"<!-- @define {name} = -->\n" if markdown else f"%@define {name} = \n"
-    return Fix(f"qreferee: define {name} (a %@define line before the claim; complete its right side)", [Edit(tag, line)])
+    return Fix(
+        f"qreferee: define {name} (a %@define line before the claim; complete its right side)", [Edit(tag, line)]
+    )
 
 
 def add_tag(block: ClaimBlock) -> tuple[Span, Fix] | None:

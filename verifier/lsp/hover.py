@@ -62,9 +62,7 @@ def _certificate(cert: dict[str, Any]) -> list[str]:
             )
     coefficients = cert.get("coefficients")
     if isinstance(coefficients, dict) and "from" in coefficients:
-        lines.append(
-            f"- coefficients compared: $q^{{{coefficients.get('from')}}}$ to $q^{{{coefficients.get('to')}}}$"
-        )
+        lines.append(f"- coefficients compared: $q^{{{coefficients.get('from')}}}$ to $q^{{{coefficients.get('to')}}}$")
     return lines
 
 

@@ -18,6 +18,7 @@ reported in that file), and only for files whose diagnostics changed.  After eac
 from __future__ import annotations
 
 import asyncio
+import contextlib
 import multiprocessing
 import sys
 import time
@@ -32,7 +33,7 @@ from pygls.lsp.server import LanguageServer
 from pygls.uris import from_fs_path, to_fs_path
 
 from verifier import __version__, method
-from verifier.lsp import engine, hover, roots
+from verifier.lsp import DEFAULT_SECONDS, engine, hover, roots
 from verifier.lsp.model import Checked, Edit, Finding, Fix, Pos, Span
 
 SUFFIXES = (".tex", ".ltx", ".latex", ".md", ".markdown", ".mdown")
@@ -53,7 +54,7 @@ class Options:
     """The command line of ``qreferee lsp``."""
 
     debounce: float = DEFAULT_DEBOUNCE
-    max_seconds: float | None = engine.DEFAULT_SECONDS
+    max_seconds: float | None = DEFAULT_SECONDS
     max_terms: int | None = None
     no_cache: bool = False
     config: str | None = None
@@ -109,10 +110,8 @@ class QrefereeServer(LanguageServer):
     def _drop_worker(self) -> None:
         if self.worker is None:
             return
-        try:
+        with contextlib.suppress(RuntimeError, ValueError, OSError):
             asyncio.get_running_loop().remove_reader(self.worker.conn.fileno())
-        except (RuntimeError, ValueError, OSError):
-            pass
         self.worker.stop()
         self.worker = None
 
@@ -270,8 +269,8 @@ class QrefereeServer(LanguageServer):
         for uri in self.workspace.text_documents:
             fs = to_fs_path(uri)
             if fs and str(Path(fs).resolve()) == path:
-                return uri
-        return from_fs_path(path) or Path(path).as_uri()
+                return str(uri)
+        return str(from_fs_path(path) or Path(path).as_uri())
 
     # -- positions ---------------------------------------------------------------------------
 
@@ -392,7 +391,8 @@ class QrefereeServer(LanguageServer):
                     )
             for span, fix in zip(checked.untagged_spans, checked.untagged, strict=True):
                 if _touches(span, path, start, end):
-                    out.append(types.CodeAction(title=fix.title, kind=types.CodeActionKind.QuickFix, edit=self._edit(fix)))
+                    action = types.CodeAction(title=fix.title, kind=types.CodeActionKind.QuickFix, edit=self._edit(fix))
+                    out.append(action)
         return out
 
 
