@@ -298,7 +298,10 @@ def test_a_macro_change_in_the_main_file_rechecks_the_input_file(paper: Path) ->
 
 def test_a_claim_over_its_time_budget_is_reported_and_the_next_edit_is_served(tmp_path: Path) -> None:
     # A product of high weight needs thousands of coefficients: far more than a millisecond.
-    text = "%@claim name=slow\n\\[ E_4^{40} E_6^{40} = E_4^{40} E_6^{40} + 0 \\]\n%@claim name=quick\n\\[ E_8 = E_4^2 \\]\n"
+    text = (
+        "%@claim name=slow\n\\[ E_4^{40} E_6^{40} = E_4^{40} E_6^{40} + 0 \\]\n"
+        "%@claim name=quick\n\\[ E_8 = E_4^2 \\]\n"
+    )
     (tmp_path / "slow.tex").write_text(text, encoding="utf-8")
 
     async def body(s: Session) -> None:
