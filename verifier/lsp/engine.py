@@ -26,7 +26,7 @@ from typing import TYPE_CHECKING, Any
 
 from verifier import method
 from verifier.lsp import DEFAULT_SECONDS, fixes
-from verifier.lsp.model import SCAN_SEVERITY, SEVERITY, Checked, Finding, Pos, Span, absolute, span_of
+from verifier.lsp.model import SCAN_SEVERITY, SEVERITY, Checked, Finding, Fix, Pos, Span, absolute, span_of
 from verifier.scan.document import ClaimBlock, DefineTag, ScannedDocument
 
 if TYPE_CHECKING:
@@ -49,6 +49,16 @@ class Request:
     max_terms: int | None = None
     no_cache: bool = False
     config: str | None = None
+
+
+@dataclass
+class Untagged:
+    """The "add a tag" offers of a manuscript, sent after its verdicts."""
+
+    main: str
+    version: int
+    spans: list[Span] = field(default_factory=list)
+    fixes: list[Fix] = field(default_factory=list)
 
 
 _CHECKERS: dict[Any, CachedChecker] = {}
@@ -109,8 +119,10 @@ def check(request: Request, stop: Callable[[], bool] = lambda: False) -> Checked
         done.reused += checker.stats.hits
     spans = [(b, _block_span(b)) for b in blocks]
     done.blocks = [s for _, s in spans]
+    at = 0  # claims come in the blocks' order: look from the block of the previous claim on
     for result in claims:
-        done.findings.append(_claim_finding(result, spans))
+        finding, at = _claim_finding(result, spans, at)
+        done.findings.append(finding)
     for d in diagnostics:
         hint = f" (hint: {d.hint})" if d.hint else ""
         done.findings.append(
@@ -122,8 +134,6 @@ def check(request: Request, stop: Callable[[], bool] = lambda: False) -> Checked
                 method.for_code(d.code),
             )
         )
-    if not stop():
-        _untagged(doc, overlay, done)
     done.seconds = time.perf_counter() - start
     return done
 
@@ -140,10 +150,13 @@ def _block_span(block: ClaimBlock) -> Span:
     return Span(path, tag, Pos(line - 1, col - 1))
 
 
-def _claim_finding(result: ClaimResult, spans: list[tuple[ClaimBlock, Span]]) -> Finding:
+def _claim_finding(result: ClaimResult, spans: list[tuple[ClaimBlock, Span]], at: int) -> tuple[Finding, int]:
+    """The finding of one claim, and the index of its block in ``spans`` (searched from ``at``)."""
     o = result.outcome
     span = span_of(result.location, result.end)
-    owner = next(((b, s) for b, s in spans if s.contains(span.path, span.start)), None)
+    order = [*range(at, len(spans)), *range(0, at)]
+    index = next((i for i in order if spans[i][1].contains(span.path, span.start)), None)
+    owner = spans[index] if index is not None else None
     label = f" [{result.name}]" if result.name else (f" ({result.label})" if result.label else "")
     hint = f" (hint: {o.hint})" if o.hint else ""
     how = method.for_method(o.method) if o.verdict == "proved" else None
@@ -158,22 +171,26 @@ def _claim_finding(result: ClaimResult, spans: list[tuple[ClaimBlock, Span]]) ->
         for fix in (fixes.correction(block, result), fixes.define_skeleton(block, result, is_markdown(span.path))):
             if fix is not None:
                 finding.fixes.append(fix)
-    return finding
+    return finding, at if index is None else index
 
 
-def _untagged(doc: ScannedDocument, overlay: dict[Path, str], done: Checked) -> None:
-    """Offer a tag for each untagged display that the untagged discovery can read."""
+def untagged(request: Request) -> Untagged:
+    """A tag for each untagged display that the untagged discovery can read (after the verdicts)."""
+    from verifier.scan import scan_path
     from verifier.screen import untagged_blocks
 
+    overlay = {Path(p): t for p, t in request.overlay.items()}
+    out = Untagged(request.main, request.version)
     try:
-        found = untagged_blocks(doc, overlay)
+        found = untagged_blocks(scan_path(Path(request.main), overlay), overlay)
     except Exception:  # a courtesy: a failure here never hides the verdicts
-        return
+        return out
     for block in found:
         offer = fixes.add_tag(block)
         if offer is not None:
-            done.untagged_spans.append(offer[0])
-            done.untagged.append(offer[1])
+            out.spans.append(offer[0])
+            out.fixes.append(offer[1])
+    return out
 
 
 # -- the worker process ------------------------------------------------------------------
@@ -207,6 +224,8 @@ def worker_main(conn: Connection, generation: Any) -> None:
             answer = f"{type(exc).__name__}: {exc}"
         try:
             conn.send(answer)
+            if isinstance(answer, Checked) and not answer.superseded and not conn.poll():
+                conn.send(untagged(request))
         except (OSError, ValueError):
             return
 

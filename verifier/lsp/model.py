@@ -7,6 +7,7 @@ units.  Everything is picklable: it is built in the worker process and sent back
 
 from __future__ import annotations
 
+import functools
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import TYPE_CHECKING
@@ -95,6 +96,7 @@ class Checked:
         return [f for f in self.findings if f.span.path == path]
 
 
+@functools.lru_cache(maxsize=4096)
 def absolute(display: str) -> str:
     """The absolute path of a file as the scanner names it (relative names are to the current folder)."""
     return str(Path(display).resolve())

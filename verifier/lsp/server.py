@@ -200,6 +200,11 @@ class QrefereeServer(LanguageServer):
             answer = conn.recv()
         except (EOFError, OSError):
             answer = None
+        if isinstance(answer, engine.Untagged):
+            last = self.results.get(answer.main)
+            if last is not None and last.version == answer.version:
+                last.untagged_spans, last.untagged = answer.spans, answer.fixes
+            return
         running, self.running = self.running, None
         if not isinstance(answer, Checked):
             main = running[0] if running else None
