@@ -1075,6 +1075,102 @@ def section_recheck() -> bool:
     return True
 
 
+# ---------------------------------------------------------------------------------
+# Section 7: the language server
+# ---------------------------------------------------------------------------------
+
+
+def _lsp_latency(path: Path, edits: list[tuple[str, str]], repeats: int) -> tuple[float, list[float], list[str]]:
+    """(seconds to the first diagnostics after opening, seconds from each didChange to its diagnostics, logs)."""
+    import asyncio
+
+    from lsprotocol import types
+    from pygls.lsp.client import LanguageClient
+
+    async def run() -> tuple[float, list[float], list[str]]:
+        client = LanguageClient("qreferee-bench", "1")
+        published: asyncio.Queue[float] = asyncio.Queue()
+        logs: list[str] = []
+
+        @client.feature(types.TEXT_DOCUMENT_PUBLISH_DIAGNOSTICS)
+        def on_diagnostics(ls: Any, params: types.PublishDiagnosticsParams) -> None:
+            published.put_nowait(perf())
+
+        @client.feature(types.WINDOW_LOG_MESSAGE)
+        def on_log(ls: Any, params: types.LogMessageParams) -> None:
+            logs.append(params.message)
+
+        await client.start_io(sys.executable, "-m", "verifier", "lsp", "--no-cache", "--debounce", "0")
+        await client.initialize_async(types.InitializeParams(capabilities=types.ClientCapabilities()))
+        client.initialized(types.InitializedParams())
+        await asyncio.sleep(3.0)  # let the worker process load the engine, as it does while an author reads
+        uri, text = path.as_uri(), path.read_text(encoding="utf-8")
+        t0 = perf()
+        client.text_document_did_open(types.DidOpenTextDocumentParams(types.TextDocumentItem(uri, "latex", 1, text)))
+        opened = await asyncio.wait_for(published.get(), 600) - t0
+        latencies = []
+        version = 1
+        for i in range(repeats):
+            old, new = edits[i % len(edits)]
+            text = text.replace(old, new, 1)
+            version += 1
+            t0 = perf()
+            client.text_document_did_change(
+                types.DidChangeTextDocumentParams(
+                    types.VersionedTextDocumentIdentifier(version=version, uri=uri),
+                    [types.TextDocumentContentChangeWholeDocument(text)],
+                )
+            )
+            latencies.append(await asyncio.wait_for(published.get(), 600) - t0)
+            await asyncio.sleep(0.2)
+        await client.shutdown_async(None)
+        client.exit(None)
+        await client.stop()
+        return opened, latencies, logs
+
+    return asyncio.run(run())
+
+
+def section_lsp(claims: int) -> bool:
+    print(f"\n== 7. language server: didChange -> published diagnostics, one-claim edit, {claims}-block paper ==")
+    print("   (ratio = median latency / one cold 'check' of the same paper in this process; target <= 0.1x)")
+    try:
+        import pygls  # noqa: F401
+    except ImportError:
+        print("   pygls is not installed (pip install 'qreferee[lsp]'); section skipped")
+        return True
+    import statistics
+    import tempfile
+
+    from verifier.api import check_path
+
+    text, _, _ = synthetic_manuscript(claims, seed=56)
+    # Each edit writes a new wrong coefficient into one claim (so the server has something new to publish).
+    anchor = "E_6 E_8 = E_{14}"
+    if anchor not in text:
+        print("   WRONG: the generated paper has no claim to edit")
+        return False
+    edits = [(anchor if k == 1 else f"{k}{anchor}", f"{k + 1}{anchor}") for k in range(1, 7)]
+    with tempfile.TemporaryDirectory() as folder:
+        path = Path(folder) / "paper.tex"
+        path.write_text(text, encoding="utf-8")
+        check_path(path)  # load the engine and the parser outside the timing
+        report, cold = run_once(lambda: check_path(path))
+        opened, latencies, logs = _lsp_latency(path, edits, 6)
+    median = statistics.median(latencies)
+    rechecked = [m for m in logs if "1 block checked" in m]
+    print(f"   cold check: {fmt_s(cold)} for {len(report.claims)} claims; first diagnostics: {fmt_s(opened)}")
+    print(
+        f"   didChange -> diagnostics: median {fmt_s(median)} (min {fmt_s(min(latencies))}, "
+        f"max {fmt_s(max(latencies))}, {len(latencies)} edits; debounce 0)"
+    )
+    print(f"   ratio to the cold check: {fmt_ratio(median / cold)}   (the default --debounce adds 0.3 s)")
+    if len(rechecked) < len(latencies):
+        print(f"   WRONG: expected each edit to re-check one block; the server said: {logs[-3:]}")
+        return False
+    return True
+
+
 def main(argv: list[str] | None = None) -> int:
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     ap.add_argument("--quick", action="store_true", help="sizes 10^3 and 10^4 only, smaller manuscript (~30 s)")
@@ -1093,7 +1189,7 @@ def main(argv: list[str] | None = None) -> int:
     ap.add_argument(
         "--skip",
         default="",
-        help="comma-separated sections to skip: engine, scan, pipeline, level, recheck, processes",
+        help="comma-separated sections to skip: engine, scan, pipeline, level, recheck, processes, lsp",
     )
     args = ap.parse_args(argv)
     quick = args.quick
@@ -1111,6 +1207,7 @@ def main(argv: list[str] | None = None) -> int:
         ("level", lambda: section_level(quick)),
         ("recheck", section_recheck),
         ("processes", lambda: section_processes(quick)),
+        ("lsp", lambda: section_lsp(300)),
     ]
     for name, run in sections:
         if name in skip:

@@ -52,7 +52,7 @@ examples:
 
 # Modules that add their own subcommands: each has register(subparsers), which adds a
 # subparser with set_defaults(func=...), func(args) -> exit status.
-PLUGIN_MODULES = ("verifier.watch", "verifier.screen")
+PLUGIN_MODULES = ("verifier.watch", "verifier.screen", "verifier.lsp")
 
 FORMATS = ("text", "json", "html", "sarif")
 

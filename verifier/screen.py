@@ -35,7 +35,7 @@ import tarfile
 import tempfile
 import time
 import zipfile
-from collections.abc import Callable, Iterator
+from collections.abc import Callable, Iterator, Mapping
 from dataclasses import dataclass, field, replace
 from pathlib import Path
 from typing import IO, TYPE_CHECKING, Any, cast
@@ -524,8 +524,12 @@ def _verbatim_ranges(bare: str) -> list[tuple[int, int]]:
     return out
 
 
-def untagged_blocks(doc: ScannedDocument) -> list[ClaimBlock]:
-    """A block for each untagged display of ``doc``'s LaTeX files that reads as a claim about forms."""
+def untagged_blocks(doc: ScannedDocument, overlay: Mapping[Path, str] | None = None) -> list[ClaimBlock]:
+    """A block for each untagged display of ``doc``'s LaTeX files that reads as a claim about forms.
+
+    ``overlay`` gives texts that replace files on disk (by path), as for :func:`verifier.scan.scan_path`.
+    """
+    replaced = {p.resolve(): t for p, t in (overlay or {}).items()}
     from verifier.parse.grammar import ParseFailure, parse_row
     from verifier.scan import macros as macro_mod
     from verifier.scan.definitions import defined_names
@@ -556,7 +560,7 @@ def untagged_blocks(doc: ScannedDocument) -> list[ClaimBlock]:
             continue
         try:
             path = Path(display).resolve()
-            data = path.read_bytes()
+            data = replaced[path].encode("utf-8") if path in replaced else path.read_bytes()
         except OSError:
             continue
         if len(data) > MAX_FILE_BYTES:

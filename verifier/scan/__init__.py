@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+from collections.abc import Mapping
 from pathlib import Path
 
 from verifier.scan.document import ScannedDocument
@@ -17,11 +18,17 @@ def is_markdown(name: str) -> bool:
     return name.lower().endswith(MARKDOWN_SUFFIXES)
 
 
-def scan_path(path: Path) -> ScannedDocument:
-    """Scan a manuscript file (LaTeX, or Markdown by suffix)."""
+def scan_path(path: Path, overlay: Mapping[Path, str] | None = None) -> ScannedDocument:
+    """Scan a manuscript file (LaTeX, or Markdown by suffix).
+
+    ``overlay`` maps paths to texts that replace those files on disk (an editor's unsaved buffers).
+    """
     if is_markdown(path.name):
+        text = next((t for p, t in (overlay or {}).items() if p.resolve() == path.resolve()), None)
+        if text is not None:
+            return scan_markdown_source(SourceFile(str(path), text, path))
         return scan_markdown_path(path, str(path))
-    return scan_latex_path(path)
+    return scan_latex_path(path, overlay)
 
 
 def scan_text(text: str, display: str = "<text>", markdown: bool | None = None) -> ScannedDocument:

@@ -9,6 +9,7 @@ relative to the main file and never outside its folder.
 from __future__ import annotations
 
 import re
+from collections.abc import Mapping
 from pathlib import Path
 
 from verifier.diagnostics import Diagnostic
@@ -45,8 +46,10 @@ _DISPLAY_OPEN = re.compile(r"\\\[|\$\$|\\begin\s*\{(?P<env>(?:" + "|".join(ENVIR
 class _Reader:
     """Walks the main file and its includes, filling a :class:`ScannedDocument`."""
 
-    def __init__(self, root: Path) -> None:
+    def __init__(self, root: Path, overlay: Mapping[Path, str] | None = None) -> None:
         self.root = root.resolve()
+        # Texts that replace files on disk (an editor's unsaved buffers), by resolved path.
+        self.overlay = {p.resolve(): t for p, t in (overlay or {}).items()}
         self.doc = ScannedDocument()
         self.macros: dict[str, macro_mod.Macro] = {}
         self.active: list[Path] = []
@@ -60,7 +63,7 @@ class _Reader:
             self._problem("unreadable", at, f"more than {MAX_FILES} files; {display} not read", "")
             return
         try:
-            data = resolved.read_bytes()
+            data = self.overlay[resolved].encode("utf-8") if resolved in self.overlay else resolved.read_bytes()
         except OSError as exc:
             self._problem("unreadable", at, f"cannot read {display}: {exc.strerror or exc}", "check the path")
             return
@@ -167,7 +170,7 @@ class _Reader:
                 "keep all parts of the manuscript under the main file's folder",
             )
             return
-        if not exists:
+        if not exists and target not in self.overlay:
             self._problem("include-missing", at, f"{name} not found", "check the file name")
             return
         if target in self.active:
@@ -353,9 +356,12 @@ def _display_name(path: Path, root: Path) -> str:
         return str(path)
 
 
-def scan_latex_path(path: Path) -> ScannedDocument:
-    """Scan a LaTeX file and everything it includes."""
-    reader = _Reader(path.resolve().parent)
+def scan_latex_path(path: Path, overlay: Mapping[Path, str] | None = None) -> ScannedDocument:
+    """Scan a LaTeX file and everything it includes.
+
+    ``overlay`` gives texts that replace files on disk (by path), such as an editor's unsaved buffers.
+    """
+    reader = _Reader(path.resolve().parent, overlay)
     reader.read_path(path, None)
     return reader.doc
 
