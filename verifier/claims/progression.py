@@ -31,7 +31,7 @@ from flint import fmpz_poly
 from verifier.claims.products import Mono
 from verifier.forms.characters import QuadraticCharacter
 from verifier.forms.eta import EtaQuotient
-from verifier.prove.groups import index_gamma0, prime_factors, sturm_bound
+from verifier.prove.groups import group_name, index_gamma0, prime_factors, sturm_bound
 from verifier.prove.outcome import Outcome, Witness, frac_str
 
 DIRECT = 200  # progression terms compared directly before any proof is attempted
@@ -423,7 +423,7 @@ def _unproven(claim: Claim, prog: Progression, reason: str) -> Outcome:
 
 def _proved(claim: Claim, p: Plan, count: int, t_proof: int) -> Outcome:
     m = claim.m
-    space = {"weight": p.weight, "level": p.target_level, "character": p.character.name}
+    space = {"weight": str(p.weight), "group": group_name(p.target_level), "character": p.character.name}
     record = p.record(m, count, claim.modulus)
     record["t"] = t_proof
     record["poles"] = {str(d): frac_str(v) for d, v in sorted(p.cusp_bounds.items())}
