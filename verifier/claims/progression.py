@@ -323,6 +323,7 @@ class Claim:
     t: int
     rhs: tuple[Mono, ...] | None = None
     modulus: int | None = None
+    start: int = 0  # the author's n is the n of a(mn + t) plus this (a claim for n >= start)
 
     @property
     def kind(self) -> str:
@@ -353,7 +354,7 @@ def _decide(claim: Claim) -> Outcome:
         return Outcome("unproven", kind, f"the claimed side is not a power series in q: {exc}", code="unsupported")
     if first is not None:
         n, a, b = first
-        return refuted(kind, claim.what, n, a, b, modulus)
+        return refuted(kind, claim.what, n + claim.start, a, b, modulus)
     t_proof = t
     if t >= m:
         if claim.rhs is not None:
@@ -394,7 +395,7 @@ def _decide(claim: Claim) -> Outcome:
     found = direct_search(prog, claim.rhs, modulus, search_limit(prog))
     if found is not None:
         n, a, b = found
-        return refuted(kind, claim.what, n, a, b, modulus)
+        return refuted(kind, claim.what, n + claim.start, a, b, modulus)
     if t_proof != t:
         return _unproven(
             claim,
@@ -410,12 +411,12 @@ def _unproven(claim: Claim, prog: Progression, reason: str) -> Outcome:
     found = direct_search(prog, claim.rhs, claim.modulus, upto)
     if found is not None:
         n, a, b = found
-        return refuted(claim.kind, claim.what, n, a, b, claim.modulus)
+        return refuted(claim.kind, claim.what, n + claim.start, a, b, claim.modulus)
     mod = f" modulo {claim.modulus}" if claim.modulus is not None else ""
     return Outcome(
         "unproven",
         claim.kind,
-        f"holds{mod} for 0 <= n < {upto} (computed directly), but no proof applies: {reason}",
+        f"holds{mod} for {claim.start} <= n < {upto + claim.start} (computed directly), but no proof applies: {reason}",
         method="computation",
         terms_compared=upto,
     )

@@ -123,10 +123,11 @@ def read(
                 term = _term(a, var, products, forms) if var else None
                 if term is not None and _usable(term[0]):
                     gen, m, t, what = term
-                    t += m * (start_n or 0)
-                    if start_n is not None and start_n < 0:
+                    start = start_n or 0
+                    if start < 0:
                         return None
-                    return Reading((Claim(what, dict(gen.exps), m, t, None, modulus),))
+                    # n >= start: a(m(n' + start) + t) with n' >= 0.
+                    return Reading((Claim(what, dict(gen.exps), m, t + m * start, None, modulus, start),))
         return None
     if rel != "=" or modulus is not None:
         return None
