@@ -107,7 +107,11 @@ def _multipliers(exps: dict[int, int], m: int, t: int) -> list[EtaQuotient]:
     for small in itertools.product(_SMALL, repeat=len(deltas)):
         w_small = sum(d * u for d, u in zip(deltas, small, strict=True))
         # e = (s + m w) / 24 must be an integer = -t mod m; solve for u_1 modulo 24.
-        base = [u1 for u1 in range(24) if (s + m * (w_small + u1)) % 24 == 0 and ((s + m * (w_small + u1)) // 24 + t) % m == 0]
+        base = [
+            u1
+            for u1 in range(24)
+            if (s + m * (w_small + u1)) % 24 == 0 and ((s + m * (w_small + u1)) // 24 + t) % m == 0
+        ]
         for u1 in base:
             for j in _TWELFTHS:
                 u = {1: u1 + 24 * j, **dict(zip(deltas, small, strict=True))}
@@ -336,9 +340,7 @@ def decide(claim: Claim) -> Outcome:
     try:
         return _decide(claim)
     except Internal as exc:
-        return Outcome(
-            "error", claim.kind, f"internal inconsistency: {exc}; please report this claim", code="internal"
-        )
+        return Outcome("error", claim.kind, f"internal inconsistency: {exc}; please report this claim", code="internal")
 
 
 def _what(claim: Claim, n: int) -> str:
