@@ -26,10 +26,11 @@ from dataclasses import dataclass, field
 from fractions import Fraction
 from typing import Any
 
-from flint import fmpz_poly
+from flint import fmpz_poly, nmod_poly
 
 from verifier.claims.products import Mono
 from verifier.forms.characters import QuadraticCharacter
+from verifier.forms.delta import euler_product
 from verifier.forms.eta import EtaQuotient
 from verifier.prove.groups import group_name, index_gamma0, prime_factors, sturm_bound
 from verifier.prove.outcome import Outcome, Witness, frac_str
@@ -219,6 +220,44 @@ def product_coefficients(exps: dict[int, int], count: int) -> list[int]:
     return _padded(poly, count)
 
 
+def product_residues(exps: dict[int, int], count: int, modulus: int) -> list[int]:
+    """The first ``count`` coefficients of ``prod f_delta^{r_delta}`` modulo ``modulus``.
+
+    The same product as :func:`product_coefficients`, computed in (Z/M)[q]: Euler's
+    pentagonal series, its inverse by Newton's iteration g <- g(2 - f g) (the constant term
+    is 1, a unit modulo any M), powers and the substitution q -> q^delta.
+    """
+    if count <= 0:
+        return []
+    result = nmod_poly([1], modulus)
+    for delta, r in sorted(exps.items()):
+        m = -(-count // delta)
+        base = nmod_poly([int(c) for c in euler_product(m).coeffs()], modulus)
+        if r < 0:
+            base = _inverse_mod(base, m, modulus)
+        factor = base.pow_trunc(abs(r), m) if abs(r) > 1 else base
+        if delta > 1:
+            coeffs = [int(c) for c in factor.coeffs()]
+            spread = [0] * count
+            for i, c in enumerate(coeffs):
+                if i * delta < count:
+                    spread[i * delta] = c
+            factor = nmod_poly(spread, modulus)
+        result = result.mul_low(factor, count)
+    out = [int(c) for c in result.coeffs()[:count]]
+    return out + [0] * (count - len(out))
+
+
+def _inverse_mod(f: nmod_poly, m: int, modulus: int) -> nmod_poly:
+    g = nmod_poly([1], modulus)
+    two = nmod_poly([2], modulus)
+    k = 1
+    while k < m:
+        k = min(2 * k, m)
+        g = g.mul_low(two - f.mul_low(g, k), k)
+    return g
+
+
 def _padded(poly: fmpz_poly, count: int) -> list[int]:
     coeffs = [int(c) for c in poly.coeffs()[:count]]
     return coeffs + [0] * (count - len(coeffs))
@@ -230,18 +269,32 @@ class Progression:
     def __init__(self, exps: dict[int, int], m: int, t: int) -> None:
         self.exps, self.m, self.t = exps, m, t
         self._coeffs: list[int] = []
+        self._residues: tuple[list[int], int] = ([], 0)
 
-    def values(self, count: int) -> list[int]:
-        """``a(mn + t)`` for ``0 <= n < count``."""
+    def values(self, count: int, modulus: int | None = None) -> list[int]:
+        """``a(mn + t)`` for ``0 <= n < count`` (residues in [0, M) when a modulus is given)."""
         need = self.m * (count - 1) + self.t + 1 if count > 0 else 0
+        if modulus is not None:
+            if self._residues[1] != modulus or len(self._residues[0]) < need:
+                have = len(self._residues[0]) if self._residues[1] == modulus else 0
+                self._residues = (product_residues(self.exps, max(need, 2 * have), modulus), modulus)
+            return self._residues[0][self.t : need : self.m]
         if len(self._coeffs) < need:
             self._coeffs = product_coefficients(self.exps, max(need, 2 * len(self._coeffs)))
         return self._coeffs[self.t : need : self.m]
 
+    def exact(self, n: int) -> int:
+        """The exact value a(mn + t)."""
+        return self.values(n + 1)[n]
 
-def sum_coefficients(terms: tuple[Mono, ...], count: int) -> list[Fraction]:
-    """The first ``count`` coefficients of a sum of products with integral q-shifts."""
-    total = [Fraction(0)] * count
+
+def sum_coefficients(terms: tuple[Mono, ...], count: int) -> list[Fraction] | list[int]:
+    """The first ``count`` coefficients of a sum of products with integral q-shifts.
+
+    Integers when every coefficient of the sum is an integer, else exact fractions.
+    """
+    den = math.lcm(*(m.coeff.denominator for m in terms)) if terms else 1
+    total = fmpz_poly([])
     for mono in terms:
         if mono.shift.denominator != 1:
             raise ValueError(f"{mono.text()} has a fractional power of q")
@@ -250,37 +303,61 @@ def sum_coefficients(terms: tuple[Mono, ...], count: int) -> list[Fraction]:
             continue
         if shift < 0:
             raise ValueError(f"{mono.text()} has a negative power of q")
-        for i, c in enumerate(product_coefficients(dict(mono.exps), count - shift)):
-            if c:
-                total[i + shift] += mono.coeff * c
-    return total
+        body = EtaQuotient.of(dict(mono.exps)).product_poly(count - shift)
+        scaled = body * int(mono.coeff * den)
+        total += scaled.left_shift(shift) if shift else scaled
+    values = _padded(total, count)
+    if den == 1:
+        return values
+    return [Fraction(v, den) for v in values]
 
 
-def u_operator(h: EtaQuotient, m: int, count: int) -> list[int]:
-    """The coefficients of q^0 .. q^(count-1) of U_m h, from h's own expansion."""
-    series = h.series(m * (count - 1) + 1)
-    return [int(series[m * n]) for n in range(count)]
+def u_operator(h: EtaQuotient, m: int, count: int, modulus: int | None = None) -> list[int]:
+    """The coefficients of q^0 .. q^(count-1) of U_m h, from h's own expansion (mod M if given)."""
+    e = h.s // 24
+    length = max(m * (count - 1) + 1 - e, 0)
+    if modulus is None:
+        body = product_coefficients(dict(h.exponents), length)
+    else:
+        body = product_residues(dict(h.exponents), length, modulus)
+    full = [0] * e + body
+    return [full[m * n] if m * n < len(full) else 0 for n in range(count)]
 
 
-def cross_check(prog: Progression, p: Plan, count: int) -> None:
-    """U_m h computed from h must equal q^k P_E(q) sum a(mn+t) q^n (Step 0 of the method)."""
-    direct = prog.values(count)
-    pe = product_coefficients(dict(p.multiplier.exponents), count)
-    expected = fmpz_poly(direct).mul_low(fmpz_poly(pe), count)
-    expected_list = [0] * p.k + _padded(expected, max(count - p.k, 0))
-    from_h = u_operator(p.h, prog.m, count)
-    if expected_list[:count] != from_h:
+def cross_check(prog: Progression, p: Plan, count: int, modulus: int | None = None) -> list[int]:
+    """U_m h computed from h must equal q^k P_E(q) sum a(mn+t) q^n (exactly, or modulo M).
+
+    Returns the coefficients of U_m h.
+    """
+    direct = prog.values(count, modulus)
+    if modulus is None:
+        pe = product_coefficients(dict(p.multiplier.exponents), count)
+        expected = _padded(fmpz_poly(direct).mul_low(fmpz_poly(pe), count), count)
+    else:
+        pe = product_residues(dict(p.multiplier.exponents), count, modulus)
+        prod = nmod_poly(direct, modulus).mul_low(nmod_poly(pe, modulus), count)
+        expected = [int(c) for c in prod.coeffs()] + [0] * count
+    expected_list = ([0] * p.k + expected)[:count]
+    from_h = u_operator(p.h, prog.m, count, modulus)
+    if expected_list != from_h:
         raise Internal("U_m h and the direct coefficients of the progression disagree")
+    return from_h
 
 
 # -- decisions -----------------------------------------------------------------------
 
 
-def first_failure(values: list[int], targets: list[Fraction] | None, modulus: int | None) -> int | None:
+def first_failure(values: list[int], targets: list[Fraction] | list[int] | None, modulus: int | None) -> int | None:
     """The first index where ``values`` differs from ``targets`` (0 when None), modulo ``modulus``."""
     for n, a in enumerate(values):
-        b = targets[n] if targets is not None else Fraction(0)
-        if Witness(n, Fraction(a), b, modulus).differs():
+        b = targets[n] if targets is not None else 0
+        if modulus is None:
+            if a != b:
+                return n
+        elif isinstance(b, int):
+            if (a - b) % modulus:
+                return n
+        elif Witness(n, Fraction(a), b, modulus).differs():
             return n
     return None
 
@@ -303,11 +380,17 @@ def direct_search(
     done = 0
     while done < upto:
         count = min(upto, max(step, 2 * done))
+        if rhs is None and modulus is not None:
+            n = next((i for i, x in enumerate(prog.values(count, modulus)) if x), None)
+            if n is not None:
+                return n, prog.exact(n), Fraction(0)
+            done = count
+            continue
         values = prog.values(count)
         targets = sum_coefficients(rhs, count) if rhs is not None else None
         n = first_failure(values, targets, modulus)
         if n is not None:
-            return n, values[n], targets[n] if targets is not None else Fraction(0)
+            return n, values[n], Fraction(targets[n]) if targets is not None else Fraction(0)
         done = count
     return None
 
@@ -369,22 +452,19 @@ def _decide(claim: Claim) -> Outcome:
     if p.bound > MAX_BOUND:
         return _unproven(claim, prog, f"the target space's bound {p.bound} exceeds the budget ({MAX_BOUND})")
     count = p.bound + 1
-    cross_check(proof_prog, p, count)
-    from_h = u_operator(p.h, m, count)
+    from_h = cross_check(proof_prog, p, count, modulus if claim.rhs is None else None)
     if claim.rhs is None:
         assert modulus is not None
         bad = first_failure(from_h, None, modulus)
         if bad is None:
-            values = proof_prog.values(count)
-            if first_failure(values, None, modulus) is not None:
+            values = proof_prog.values(count, modulus)
+            if any(values):
                 raise Internal("Sturm's bound is met but a direct coefficient is not 0 modulo M")
             return _proved(claim, p, count, t_proof)
     else:
-        rhs_form = [Fraction(0)] * count
-        for gamma, term in p.terms:
-            series = term.series(count)
-            for i in range(count):
-                rhs_form[i] += gamma * Fraction(series[i])
+        rhs_form = sum_coefficients(
+            tuple(Mono.make(gamma, Fraction(term.s, 24), dict(term.exponents)) for gamma, term in p.terms), count
+        )
         bad = first_failure(from_h, rhs_form, None)
         direct = direct_search(proof_prog, claim.rhs, None, count)
         if bad is None:
