@@ -770,11 +770,12 @@ def _progression_claim(
     products is read as a dissection only when the forms route cannot take it (a side it
     cannot read, or two sides of different weights).
     """
-    dissection_ok = False
-    if rel == "=" and modulus is None:
+
+    def dissection_ok() -> bool:
         sides = [elaborator.side(n, text.text) for n in (left_node, right_node)]
         weights = [None if isinstance(s, Problem) else s.expr.typ.weight for s in sides]
-        dissection_ok = any(isinstance(s, Problem) for s in sides) or weights[0] != weights[1]
+        return any(isinstance(s, Problem) for s in sides) or weights[0] != weights[1]
+
     reading = read_progression(
         left_node, right_node, rel, modulus, start_n, elaborator.products, elaborator.definitions, dissection_ok
     )

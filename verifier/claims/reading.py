@@ -14,7 +14,7 @@ Anything else returns None, and the claim goes on to the other decision procedur
 from __future__ import annotations
 
 import math
-from collections.abc import Mapping
+from collections.abc import Callable, Mapping
 from dataclasses import dataclass
 from fractions import Fraction
 from typing import Any
@@ -112,7 +112,7 @@ def read(
     start_n: int | None,
     products: Mapping[str, ProductSum],
     forms: Mapping[str, Any],
-    dissection_ok: bool,
+    dissection_ok: Callable[[], bool],
 ) -> Reading | None:
     """The progression claims of ``left rel right``, or None when it is not one of the shapes."""
     reader = Reader(products, forms)
@@ -143,9 +143,10 @@ def read(
         except NotProduct:
             return None
         return Reading((Claim(what, dict(gen.exps), m, t, rhs, None),))
-    if not dissection_ok:
+    found_dissection = _dissection(reader, left, right)
+    if found_dissection is None or not dissection_ok():
         return None
-    return _dissection(reader, left, right)
+    return found_dissection
 
 
 def _variable(node: ast.Node) -> str | None:
