@@ -24,7 +24,7 @@ def tau_list(count: int) -> list[int]:
         for _ in range(24):
             for i in range(count - 1, j - 1, -1):
                 c[i] -= c[i - j]
-    return [0] + c[: count - 1]
+    return [0, *c[: count - 1]]
 
 
 TAU = tau_list(N + 1)
