@@ -1168,6 +1168,76 @@ def section_lsp(claims: int) -> bool:
     if len(rechecked) < len(latencies):
         print(f"   WRONG: expected each edit to re-check one block; the server said: {logs[-3:]}")
         return False
+
+
+def _flint_product(exps: dict[int, int], count: int) -> Any:
+    """The bare FLINT computation of prod f_delta^{r_delta} to ``count`` terms (the baseline)."""
+    out = fmpz_poly([1])
+    for delta, r in sorted(exps.items()):
+        m = -(-count // delta)
+        base = fmpz_poly(_pentagonal(m))
+        if r < 0:
+            base = flint_inverse(base, m)
+        if abs(r) > 1:
+            base = base.pow_trunc(abs(r), m)
+        if delta > 1:
+            base = base.inflate(delta).truncate(count)
+        out = out.mul_low(base, count)
+    return out
+
+
+def section_progression(quick: bool) -> bool:
+    """Progression claims (U_m): proof and refutation time against the bare FLINT computation."""
+    from verifier.claims.products import Mono
+    from verifier.claims.progression import Claim, decide
+
+    print("\n== 8. progression claims a(mn+t), proved by U_m, against bare FLINT coefficients ==")
+    big = 5 * 2903  # b-type product f_{14515}^9 / f_1: a(5n+4) = 0 mod 5, target bound >= 10^4
+    cases: list[tuple[str, Claim, str, dict[int, int], int]] = [
+        ("p(11n+6) = 0 mod 11 (proof)", Claim("p(11n+6)", {1: -1}, 11, 6, None, 11), "proved", {1: -1}, 0),
+        (
+            f"a(5n+4) = 0 mod 5, F = f_{big}^9/f_1 (proof)",
+            Claim("a(5n+4)", {1: -1, big: 9}, 5, 4, None, 5),
+            "proved",
+            {1: -1, big: 9},
+            0,
+        ),
+        (
+            "p(5n+4) identity + q^10000 (refutation)",
+            Claim(
+                "p(5n+4)",
+                {1: -1},
+                5,
+                4,
+                (Mono.make(Fraction(5), Fraction(0), {5: 5, 1: -6}), Mono.make(Fraction(1), Fraction(10_000), {})),
+            ),
+            "refuted",
+            {1: -1},
+            5 * 10_000 + 5,
+        ),
+    ]
+    header = f"{'claim':<44}{'verdict':>9}{'bound':>8}{'qreferee s':>12}{'FLINT s':>10}{'ratio':>9}"
+    print(header)
+    print("-" * len(header))
+    for label, claim, expected, exps, length in cases:
+        outcome, t_first = run_once(lambda c=claim: decide(c))
+        if outcome.verdict != expected:
+            raise Mismatch(f"{label}: {outcome.verdict}, expected {expected}")
+        count = length or claim.m * ((outcome.bound or 0) + 1) + claim.t + 1
+        _, t_base_first = run_once(lambda e=exps, n=count: _flint_product(e, n))
+        t_ours, t_base = best_pair(
+            lambda c=claim: decide(c),
+            t_first,
+            lambda e=exps, n=count: _flint_product(e, n),
+            t_base_first,
+            0.3 if quick else 1.0,
+            3 if quick else 5,
+        )
+        print(
+            f"{label:<44}{outcome.verdict:>9}{outcome.bound or 0:>8}{fmt_s(t_ours):>12}{fmt_s(t_base):>10}"
+            f"{fmt_ratio(t_ours / t_base):>9}",
+            flush=True,
+        )
     return True
 
 
@@ -1189,7 +1259,7 @@ def main(argv: list[str] | None = None) -> int:
     ap.add_argument(
         "--skip",
         default="",
-        help="comma-separated sections to skip: engine, scan, pipeline, level, recheck, processes, lsp",
+        help="comma-separated sections to skip: engine, scan, pipeline, level, recheck, processes, lsp, progression",
     )
     args = ap.parse_args(argv)
     quick = args.quick
@@ -1208,6 +1278,7 @@ def main(argv: list[str] | None = None) -> int:
         ("recheck", section_recheck),
         ("processes", lambda: section_processes(quick)),
         ("lsp", lambda: section_lsp(300)),
+        ("progression", lambda: section_progression(quick)),
     ]
     for name, run in sections:
         if name in skip:

@@ -49,6 +49,8 @@ EVERY_KIND = r"""
 \[ E_{12} = a E_4^3 + b E_6^2 \]
 %@claim
 \[ \frac{\eta(2\tau)^{24}}{\eta(\tau)^{16}} = \frac{\eta(2\tau)^{24}}{\eta(\tau)^{16}} \]
+%@claim
+\[ p(5n+4) \equiv 0 \pmod 5 \]
 """
 
 

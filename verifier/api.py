@@ -21,6 +21,10 @@ from verifier.arith.terms import Var as tVar
 from verifier.arith.terms import free_variables
 from verifier.arith.values import NotEvaluable, Values
 from verifier.budget import DEFAULT_MAX_SECONDS, TimeExceeded, decide_timed, internal_error, time_limit
+from verifier.claims import products as progression_products
+from verifier.claims.progression import decide as decide_progression
+from verifier.claims.progression import decide_dissection
+from verifier.claims.reading import read as read_progression
 from verifier.config import DEFAULT_FAIL_ON
 from verifier.diagnostics import Diagnostic
 from verifier.elaborate import ir
@@ -108,6 +112,7 @@ class ClaimResult:
             "suggestion": o.suggestion,
             "reading": self.reading,
             "certificate": self.certificate(),
+            "progression": o.progression,
         }
 
     def certificate(self) -> dict[str, Any] | None:
@@ -371,7 +376,14 @@ def _define(item: DefineTag, elaborator: Elaborator, report: Report) -> None:
         )
         return
     name = parsed.name.replace(" ", "")
+    try:
+        reader = progression_products.Reader(elaborator.products, elaborator.definitions)
+        elaborator.products[normal_name(name)] = reader.read(parsed.body)
+    except progression_products.NotProduct:
+        elaborator.products.pop(normal_name(name), None)
     problem = elaborator.define(name, parsed.body, text.text)
+    if problem is not None and normal_name(name) in elaborator.products:
+        problem = None  # a product of f_k (docs/method.md#progressions), read by its own reader
     if problem is not None:
         report.diagnostics.append(
             Diagnostic(
@@ -512,7 +524,7 @@ def _block(
     previous_side: MappedText | None = None
     chains: list[list[ClaimResult]] = []  # the claims of each chain A = B = C (rows continued by "&= D" too)
     for row in block.rows:
-        text = row.text
+        text = _overline_p(row.text)
         row_modulus, row_start = None, _range_option(block.options)
         stripped = text.text.lstrip()
         continuation = stripped.startswith(("=", "\\ne", "\\not="))
@@ -657,6 +669,13 @@ def _claim(
     if modulus is not None and rel == "=":
         rel = "≡"
     forms, matrices = elaborator.definitions, elaborator.matrices
+    progression = _progression_claim(left_node, right_node, rel, text, elaborator, modulus, start_n)
+    if progression is not None:
+        kind = "congruence" if modulus is not None else ("equality" if progression[1] else "arithmetic")
+        result = ClaimResult(loc, end, name, row.label, source, Outcome("error", kind, "not decided"))
+        result.reading = " ".join(text.text[left_node.span[0] : right_node.span[1]].split())
+        decide = progression[0]
+        return _Pending(result, _NO_SIDE, _NO_SIDE, "=", task=lambda prover: decide())
     if rel == "≡" or any(uses_arithmetic(n, forms, matrices) for n in (left_node, right_node)):
         return _arithmetic_claim(
             text, left_node, right_node, rel, loc, end, source, row, name, elaborator, modulus, start_n
@@ -726,6 +745,47 @@ def _claim(
         return suggestion(prover, left_node, right_node, make_build)
 
     return _Pending(result, left, right, rel, Fraction(t) * nome, block.options.get("character"), suggest=suggest)
+
+
+def _overline_p(text: MappedText) -> MappedText:
+    """``\\overline{p}`` (overpartitions) as one control word, padded to keep every offset."""
+    out = progression_products.OVERLINE_P.sub(
+        lambda m: progression_products.PBAR + " " * (len(m.group(0)) - len(progression_products.PBAR)), text.text
+    )
+    return text if out == text.text else MappedText(out, text.origins, text.source)
+
+
+def _progression_claim(
+    left_node: ast.Node,
+    right_node: ast.Node,
+    rel: str,
+    text: MappedText,
+    elaborator: Elaborator,
+    modulus: int | None,
+    start_n: int | None,
+) -> tuple[Callable[[], Outcome], bool] | None:
+    """A claim about a progression a(mn+t) or a dissection (docs/method.md#progressions), or None.
+
+    Returns the decision and whether the claim is a dissection.  A plain identity between
+    products is read as a dissection only when the forms route cannot take it (a side it
+    cannot read, or two sides of different weights).
+    """
+
+    def dissection_ok() -> bool:
+        sides = [elaborator.side(n, text.text) for n in (left_node, right_node)]
+        weights = [None if isinstance(s, Problem) else s.expr.typ.weight for s in sides]
+        return any(isinstance(s, Problem) for s in sides) or weights[0] != weights[1]
+
+    reading = read_progression(
+        left_node, right_node, rel, modulus, start_n, elaborator.products, elaborator.definitions, dissection_ok
+    )
+    if reading is None:
+        return None
+    if reading.dissection is not None:
+        p, claims = reading.dissection, reading.claims
+        return (lambda: decide_dissection(p, claims)), True
+    claim = reading.claims[0]
+    return (lambda: decide_progression(claim)), False
 
 
 _RANGE_OPTION = re.compile(r"^\s*([a-z])\s*(?:\\geq?|>=|\\geqslant)\s*(-?\d+)\s*$")

@@ -60,6 +60,8 @@ class Elaborator:
     def __init__(self, definitions: dict[str, ir.Expr] | None = None) -> None:
         self.definitions: dict[str, ir.Expr] = dict(definitions or {})
         self.matrices: dict[str, Any] = {}  # Gram matrices from define tags, by name
+        # Definitions read as sums of eta-type products (verifier.claims.products), by name.
+        self.products: dict[str, Any] = {}
         # The nome of the claim being elaborated: 1 for q = e^{2 pi i tau}, 1/2 for
         # Jacobi's e^{pi i tau} (tag option nome=).
         self.nome = Fraction(1)

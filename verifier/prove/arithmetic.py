@@ -246,7 +246,7 @@ def _congruence(
     prover: Prover, claim: ArithmeticClaim, sides: tuple[ir.Side, ir.Side], values: Values, kind: str
 ) -> Outcome:
     try:
-        from verifier.prove.congruence import Piece, decide_congruence, needed_precision
+        from verifier.prove.congruence import Piece, decide_congruence, needed_precision, scaled_precision
     except ImportError:
         return Outcome(
             "unproven",
@@ -273,11 +273,17 @@ def _congruence(
         return Outcome("unproven", kind, "congruences between quotients are not proved", method="computation")
     weights = [(w, j) for (w, j, _) in {**keys_probe_l, **keys_probe_r}]
     prec = max(needed_precision(weights, claim.modulus, level), 2)
-    nl, _ = graded_fraction(left.expr, prec, prover.table, chars)
-    nr, _ = graded_fraction(right.expr, prec, prover.table, chars)
-    diff = graded_add(nl, nr, -1)
-    pieces = [Piece(w, j, k, s) for (w, j, k), s in diff.items()]
-    decision = decide_congruence(pieces, claim.modulus, level)
+    for _attempt in range(2):
+        nl, _ = graded_fraction(left.expr, prec, prover.table, chars)
+        nr, _ = graded_fraction(right.expr, prec, prover.table, chars)
+        diff = graded_add(nl, nr, -1)
+        pieces = [Piece(w, j, k, s) for (w, j, k), s in diff.items()]
+        decision = decide_congruence(pieces, claim.modulus, level)
+        # A proof scaled by a denominator (docs/method.md#congruence-denominators) may need more terms.
+        wanted = scaled_precision(decision)
+        if decision.proved or wanted is None or wanted <= prec or wanted > prover.max_terms:
+            break
+        prec = wanted
     if decision.proved:
         check = _first_direct_difference(claim, values, max(claim.start, 1), claim.start + CHECK)
         if check is not None:

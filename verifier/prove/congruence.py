@@ -22,12 +22,14 @@ For each prime power ``p^e || M`` separately (a congruence mod M holds iff it ho
    ``H = 1 (mod p^e)`` of level one (docs/method.md#congruence-weights): ``E_{p-1}^{p^{e-1}}`` for p >= 5,
    powers of ``E_4`` and ``E_6`` for p = 2, 3.  Each piece is multiplied up to the least common
    weight ``K`` reachable that way.
-4. Every ``f_i`` must be p-integral: checked through ``B``, which suffices because the forms
-   with rational coefficients have bounded denominators, and if ``p^c f`` (c >= 1 least) were
-   integral with ``a_n(f)`` integral for ``n <= B`` then ``p^c f = 0 (mod p)`` through ``B``, hence
-   everywhere (Sturm), contradicting the choice of ``c``.
-5. ``G = sum_i f_i E_{p+1}^{j_i} H_i`` lies in ``M_K(Gamma_0(N), chi)``, is p-integral, and
-   ``G = F (mod p^e)`` coefficientwise.  ``G = 0 (mod p^e)`` everywhere iff it is so for
+4. Denominators (docs/method.md#congruence-denominators): with ``p^a`` the largest power of p in a
+   denominator of any ``f_i`` (read through each piece's own Sturm bound, which suffices: if
+   ``p^c f`` (c least) is integral, it is not 0 mod p, so some ``n <= B`` shows ``p^c`` in a
+   denominator), the claim is scaled: ``p^a F = 0 (mod p^(a+e))`` iff ``F = 0 (mod p^e)``.
+   Multipliers are taken = 1 mod ``p^(a+e)``, and E_2 is replaced by a substitute S with
+   ``E_2 = S (mod p^s)`` only in pieces whose own denominator exponent is at most ``s - e``.
+5. ``G = sum_i p^a f_i S^{j_i} H_i`` lies in ``M_K(Gamma_0(N), chi)``, is p-integral, and
+   ``G = p^a F (mod p^(a+e))`` coefficientwise.  ``G = 0 (mod p^e)`` everywhere iff it is so for
    ``n <= B = floor(K m_0(N) / 12)`` (docs/method.md#congruences-sturm, prime powers in the same space).
    A nonzero residue within ``B`` is therefore a true coefficient of ``F`` that is not 0 mod ``p^e``.
 
@@ -214,6 +216,33 @@ def _substitution(p: int, e: int) -> str | None:
     return None
 
 
+@dataclass(frozen=True)
+class _Substitute:
+    """A level-one form S with ``E_2 = S (mod p^s)``: ``E_k`` (k) or the constant 1 (k = 0).
+
+    docs/method.md#congruence-e2: ``E_{p+1}`` mod p (p >= 5, Kummer); 1 mod 3 and mod 8
+    (``E_2 = 1 - 24 sum sigma(n) q^n``); ``E_8`` mod 9 and ``E_6`` mod 16, because
+    ``-24 = 480 = 3 (mod 9)`` with ``sigma_7(n) = sigma_1(n) (mod 3)``, and ``-24 = -504 = 8 (mod 16)``
+    with ``sigma_5(n) = sigma_1(n) (mod 2)`` (Fermat's little theorem, divisor by divisor).
+    """
+
+    k: int
+    s: int
+
+    @property
+    def name(self) -> str:
+        return "1" if self.k == 0 else f"E_{self.k}"
+
+
+def _substitutes(p: int) -> list[_Substitute]:
+    """The substitutes for E_2 at p, by increasing precision s."""
+    if p >= 5:
+        return [_Substitute(p + 1, 1)]
+    if p == 3:
+        return [_Substitute(0, 1), _Substitute(8, 2)]
+    return [_Substitute(0, 3), _Substitute(6, 4)]
+
+
 def _effective_weight(weight: int, j: int, p: int, sub: str | None) -> int | None:
     """Weight of ``f E_2^j`` after the substitution (``weight`` is the weight of f)."""
     if j == 0:
@@ -297,6 +326,13 @@ def needed_precision(pieces_weights: list[tuple[Fraction, int]], modulus: int, l
             if k_common is not None:
                 prec = max(prec, sturm_bound(k_common, level) + 1)
     return prec
+
+
+def scaled_precision(decision: CongruenceDecision) -> int | None:
+    """The precision a scaled proof (docs/method.md#congruence-denominators) asked for, if any."""
+    needs = [d.get("needed_precision") for d in decision.details]
+    wanted = [int(n) for n in needs if isinstance(n, int)]
+    return max(wanted) if wanted else None
 
 
 # ---------------------------------------------------------------------------
@@ -530,17 +566,35 @@ def _decide_prime_power(
         detail["reason"] = why
         return _PrimePowerResult(detail, True, f"mod {q}: {why}", bound=own_bound)
 
-    # Step 2: E_2.
-    sub: str | None = None
-    if any(it.j > 0 for it in active):
-        sub = _substitution(p, e)
-        if sub is None:
-            labels = ", ".join(it.label() for it in active if it.j > 0)
+    # Step 2: denominators and E_2 (docs/method.md#congruence-denominators).  a_i is the
+    # largest power of p in a denominator of f_i; it is reached within f_i's own Sturm bound
+    # (if p^c f_i is integral and not 0 mod p, Sturm's theorem gives an n <= B_i where it is
+    # not 0 mod p).  The claim is scaled by p^a (a = max a_i): p^a F = 0 (mod p^(a+e)) iff
+    # F = 0 (mod p^e) for p-integral F.  A piece f E_2^j may have E_2 replaced by S with
+    # E_2 = S (mod p^s) only if p^a f (E_2^j - S^j) = 0 (mod p^(a+e)), i.e. a_i <= s - e.
+    denominators: dict[int, int] = {}
+    for it in active:
+        b = sturm_bound(it.wf, level)
+        vals = [_valuation(it.series[n], p) for n in range(b + 1) if it.series[n] != 0]
+        denominators[it.index] = max(0, -min(vals)) if vals else 0
+    a = max(denominators.values())
+    with_e2 = [it for it in active if it.j > 0]
+    choice: _Substitute | None = None
+    if with_e2:
+        worst = max(denominators[it.index] for it in with_e2)
+        choice = next((c for c in _substitutes(p) if worst <= c.s - e), None)
+        if choice is None:
+            labels = ", ".join(it.label() for it in with_e2)
+            why = f"has {p}^{worst} in a denominator, " if worst else "contains E_2 and "
             return fail(
-                f"{labels} contains E_2 and is not 0 mod {q} by itself; modulo {q} no modular form is "
-                "known to be congruent to E_2 (docs/method.md#congruence-e2: only mod p >= 5, mod 8 and mod 3)"
+                f"{labels} {why}is not 0 mod {q} by itself; no modular form is known to be congruent to E_2 "
+                f"to the {p}-adic precision this needs (docs/method.md#congruence-e2: E_{{p+1}} mod p, 1 mod 3 and "
+                "mod 8, E_8 mod 9, E_6 mod 16)"
             )
-        detail["e2_replaced_by"] = f"E_{p + 1}" if sub == "E_{p+1}" else "1"
+        detail["e2_replaced_by"] = choice.name
+    if a:
+        detail["scaled_by"] = p**a
+    q_scaled = p ** (a + e)
 
     # Step 3: one character, joinable weights.
     kernels = sorted({it.kernel for it in active})
@@ -550,12 +604,8 @@ def _decide_prime_power(
             f"the pieces not 0 mod {q} carry different characters ({names}); no single space contains them, "
             "and a mismatch between components does not refute a congruence (docs/method.md#congruence-e2)"
         )
-    gens = _generators(p, e)
-    effective: list[int] = []
-    for it in active:
-        k = _effective_weight(it.wf, it.j, p, sub)
-        assert k is not None
-        effective.append(k)
+    gens = _generators(p, a + e)
+    effective: list[int] = [it.wf + (it.j * choice.k if choice is not None else 0) for it in active]
     k_common = _common_weight(effective, gens)
     multipliers_text = " and ".join(f"{g.name()} (weight {g.weight})" for g in gens)
     if k_common is None:
@@ -563,9 +613,8 @@ def _decide_prime_power(
         gcd = math.gcd(*(g.weight for g in gens))
         return fail(
             f"the pieces not 0 mod {q} have weights {ws}, which differ by amounts not divisible by {gcd}; "
-            f"the multipliers congruent to 1 mod {q} are {multipliers_text} (docs/method.md#congruence-weights), "
-            "so no common "
-            "weight is reachable"
+            f"the multipliers congruent to 1 mod {q_scaled} are {multipliers_text} "
+            "(docs/method.md#congruence-weights), so no common weight is reachable"
         )
     big_b = sturm_bound(k_common, level)
     stop = big_b + 1
@@ -578,20 +627,19 @@ def _decide_prime_power(
                 bound=big_b,
             )
 
-    # Step 4: p-integrality of every active piece through B.
+    # Step 4: the scaled pieces p^a f_i are p-integral through B (by the choice of a).
     residues: list[list[int]] = []
     for it in active:
-        res = _residues(it.series, stop, q)
+        res = _residues(it.series.scale(p**a), stop, q_scaled)
         bad = next((n for n, r in enumerate(res) if r is None), None)
         if bad is not None:
-            return fail(
-                f"{it.label()} has {p} in the denominator of its coefficient of q^{bad} "
-                f"({_frac_str(it.series[bad])}); the method needs {p}-integral pieces "
-                "(docs/method.md#congruences-sturm)",
-                weight=k_common,
-                bound=big_b,
+            return _inconsistent(
+                detail,
+                q,
+                f"{it.label()} has a larger power of {p} in the denominator of q^{bad} than within its own Sturm bound",
             )
         residues.append([int(r) for r in res if r is not None])
+    q_true, q = q, q_scaled  # from here on q is the scaled modulus p^(a+e)
 
     # Step 5: G = sum f_i E_{p+1}^{j_i} H_i mod q, through q^B.
     ctx: Any = fmpz_mod_poly_ctx(q)
@@ -601,14 +649,16 @@ def _decide_prime_power(
         if any(int(c) != (1 if n == 0 else 0) for n, c in enumerate(_padded(s, stop))):
             return _inconsistent(detail, q, f"the multiplier {g.name()} is not 1 mod {q}")
     e2_sub = None
-    if sub == "E_{p+1}":
-        # E_{p+1} is p-integral and = E_2 mod p (Kummer, docs/method.md#congruence-e2); checked through B anyway.
+    if choice is not None and choice.k:
+        # E_k is p-integral and = E_2 mod p^s (docs/method.md#congruence-e2); checked through B anyway.
+        ps = p**choice.s
         try:
-            e2_sub = ctx(_eisenstein_mod(p + 1, stop, q))
+            e2_sub = ctx(_eisenstein_mod(choice.k, stop, q))
+            check = _eisenstein_mod(choice.k, stop, ps)
         except ArithmeticError:
-            return _inconsistent(detail, q, f"E_{p + 1} is not {p}-integral")
-        if _padded(e2_sub, stop) != _padded(ctx(_eisenstein_mod(2, stop, q)), stop):
-            return _inconsistent(detail, q, f"E_{p + 1} is not congruent to E_2 mod {p}")
+            return _inconsistent(detail, q, f"E_{choice.k} is not {p}-integral")
+        if check != _eisenstein_mod(2, stop, ps):
+            return _inconsistent(detail, q, f"E_{choice.k} is not congruent to E_2 mod {ps}")
     total = ctx([0])
     used: list[dict[str, Any]] = []
     for it, k, coeffs in zip(active, effective, residues, strict=True):
@@ -636,10 +686,11 @@ def _decide_prime_power(
     g_res = _padded(total, stop)
     detail.update(multipliers=used, weight=k_common, bound=big_b, coefficients_compared=stop, level=level)
 
-    # Guard: G = F (mod q) coefficientwise; compare where F is known.
+    # Guard: G = p^a F (mod p^(a+e)) coefficientwise; compare where F is known.
+    scale = q // q_true
     for n in range(min(stop, f_prec)):
         fr = f_res[n]
-        if fr is not None and fr % q != g_res[n]:
+        if fr is not None and (scale * (fr % q_true)) % q != g_res[n]:
             return _inconsistent(
                 detail,
                 q,
@@ -647,24 +698,27 @@ def _decide_prime_power(
             )
 
     sub_text = ""
-    if sub == "E_{p+1}":
-        sub_text = f"E_2 -> E_{p + 1} (= E_2 mod {p}, docs/method.md#congruence-e2); "
-    elif sub == "1":
+    if choice is not None and choice.k:
+        sub_text = f"E_2 -> E_{choice.k} (= E_2 mod {p**choice.s}, docs/method.md#congruence-e2); "
+    elif choice is not None:
         sub_text = "E_2 -> 1 (E_2 = 1 mod 24, docs/method.md#congruence-e2); "
+    if scale > 1:
+        sub_text = f"scaled by {scale} and proved mod {q} (docs/method.md#congruence-denominators); " + sub_text
     mult = sorted({u["multiplier"] for u in used if u["multiplier"] != "1"})
     mult_text = f"multipliers {', '.join(mult)} (= 1 mod {q}, docs/method.md#congruence-weights); " if mult else ""
     vanish_text = f"{len(vanishing)} piece(s) 0 mod {q} by themselves; " if vanishing else ""
     bad_n = next((n for n, r in enumerate(g_res) if r != 0), None)
+    q_scaled, q = q, q_true  # messages speak of the claim's modulus
     if bad_n is not None:
         detail["first_nonzero"] = bad_n
         return fail(
             f"{vanish_text}{sub_text}{mult_text}the weight-{k_common} form on {group} has coefficient of q^{bad_n} "
-            f"= {g_res[bad_n]} mod {q}, not 0 (so left - right is not 0 mod {q} there)",
+            f"= {g_res[bad_n]} mod {q_scaled}, not 0 (so left - right is not 0 mod {q} there)",
             weight=k_common,
             bound=big_b,
         )
     why = (
-        f"{vanish_text}{sub_text}{mult_text}weight {k_common} on {group}: a_0..a_{big_b} = 0 mod {q} "
+        f"{vanish_text}{sub_text}{mult_text}weight {k_common} on {group}: a_0..a_{big_b} = 0 mod {q_scaled} "
         f"(Sturm bound B = {big_b}, docs/method.md#congruences-sturm)"
     )
     detail.update(proved=True, reason=why)

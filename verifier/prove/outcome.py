@@ -140,6 +140,9 @@ class Outcome:
     relation: str = "="  # "=" (also for congruences) or "!="
     # For proved claims: the certificate as data (see :mod:`verifier.prove.certificate`).
     certificate: dict[str, Any] | None = None
+    # For progression claims proved by U_m: multiplier, form, target space, coefficients
+    # compared (see :mod:`verifier.claims.progression`).
+    progression: dict[str, Any] | None = None
 
     def __post_init__(self) -> None:
         if self.kind == "inequality":

@@ -1,0 +1,637 @@
+"""Arithmetic progressions of coefficients of eta-type products, decided by U_m.
+
+Claims (docs/method.md#progressions), for ``F = sum a(n) q^n = prod f_delta^{r_delta}``:
+
+* identities ``sum_{n >= 0} a(mn + t) q^n = G`` with G a sum of products
+  ``gamma q^e prod f_delta^{s_delta}`` (one component of a dissection is such a claim);
+* congruences ``a(mn + t) = 0 (mod M)`` for all n >= 0.
+
+The proof: choose a multiplier ``E = prod eta(delta tau)^{u_delta}`` so that
+``h = prod eta(delta tau)^{r_delta} * E(m tau)`` is a holomorphic eta quotient of integral
+weight k on Gamma_0(N) with character chi (Gordon-Hughes-Newman, Ligozat) and
+``U_m h = q^{(t+e)/m} P_E(q) sum a(mn+t) q^n`` (e the order of h at infinity).  Then U_m h
+lies in M_k(Gamma_0(N'), chi) with N' = N times the primes of m not dividing N, and
+Sturm's theorem (modulo M for congruences; the valence bound when a term of the claimed
+side has poles at cusps) reduces the claim to finitely many coefficients.  Every proof is
+cross-checked against the direct coefficients of the progression; a disagreement is an
+internal error, never a proof.  Refutations are found by direct computation and carry the
+first failing n with both values.
+"""
+
+from __future__ import annotations
+
+import itertools
+import math
+from dataclasses import dataclass, field
+from fractions import Fraction
+from typing import Any
+
+from flint import fmpz_poly, nmod_poly
+
+from verifier.claims.products import Mono
+from verifier.forms.characters import QuadraticCharacter
+from verifier.forms.delta import euler_product
+from verifier.forms.eta import EtaQuotient
+from verifier.prove.groups import group_name, index_gamma0, prime_factors, sturm_bound
+from verifier.prove.outcome import Outcome, Witness, frac_str
+
+DIRECT = 200  # progression terms compared directly before any proof is attempted
+DIRECT_LIMIT = 200_000  # coefficients of F computed when looking for a counterexample
+MAX_BOUND = 60_000  # largest target bound attempted (the budget of one claim)
+_SMALL = range(-4, 5)  # exponents tried for eta(delta tau), delta > 1, in the multiplier
+_TWELFTHS = range(-1, 4)  # eta(tau)^(24 j) factors tried on top of the least exponent
+
+
+class Internal(Exception):
+    """A proof and the direct coefficients disagree (a bug; never reported as proved)."""
+
+
+@dataclass(frozen=True)
+class Plan:
+    """A multiplier E and the spaces the proof uses."""
+
+    multiplier: EtaQuotient  # E(tau)
+    h: EtaQuotient  # prod eta(delta tau)^r * E(m tau)
+    weight: int
+    level: int  # least GHN level of h
+    character: QuadraticCharacter
+    target_level: int  # level of U_m h (and of the claimed side)
+    bound: int  # largest exponent compared
+    e: int  # order of h at infinity
+    k: int  # (t + e) / m: U_m h = q^k P_E(q) sum a(mn+t) q^n
+    terms: tuple[tuple[Fraction, EtaQuotient], ...] = ()  # gamma_i E(tau) prod eta^{s_i}
+    cusp_bounds: dict[int, Fraction] = field(default_factory=dict)  # lower bounds of orders, by d
+
+    def record(self, m: int, compared: int, modulus: int | None) -> dict[str, Any]:
+        """The JSON ``progression`` object of a proved claim."""
+        return {
+            "m": m,
+            "multiplier": self.multiplier.label(),
+            "form": {
+                "eta": self.h.label(),
+                "weight": self.weight,
+                "level": self.level,
+                "character": self.character.name,
+            },
+            "target": {
+                "weight": self.weight,
+                "level": self.target_level,
+                "character": self.character.name,
+                "sturm_bound": self.bound,
+            },
+            "coefficients_compared": compared,
+            "modulus": modulus,
+        }
+
+
+def _divisors(n: int) -> list[int]:
+    return [d for d in range(1, n + 1) if n % d == 0]
+
+
+def raised_level(level: int, m: int) -> int:
+    """The level of U_m f for f on Gamma_0(level): times each prime of m not dividing it."""
+    return level * math.prod(p for p in prime_factors(m) if level % p)
+
+
+def compatible(exps: dict[int, int], m: int, t: int) -> bool:
+    """Whether some eta quotient E makes the class t mod m reachable: m | 24 t + s_F."""
+    s = sum(d * r for d, r in exps.items())
+    return (24 * t + s) % m == 0
+
+
+def _multipliers(exps: dict[int, int], m: int, t: int) -> list[EtaQuotient]:
+    """Candidate multipliers E with the right q-order of h (e integral, e = -t mod m)."""
+    s = sum(d * r for d, r in exps.items())
+    big_l = math.lcm(*exps) if exps else 1
+    deltas = [d for d in _divisors(big_l) if d > 1][:3]
+    out = []
+    for small in itertools.product(_SMALL, repeat=len(deltas)):
+        w_small = sum(d * u for d, u in zip(deltas, small, strict=True))
+        # e = (s + m w) / 24 must be an integer = -t mod m; solve for u_1 modulo 24.
+        base = [
+            u1
+            for u1 in range(24)
+            if (s + m * (w_small + u1)) % 24 == 0 and ((s + m * (w_small + u1)) // 24 + t) % m == 0
+        ]
+        for u1 in base:
+            for j in _TWELFTHS:
+                u = {1: u1 + 24 * j, **dict(zip(deltas, small, strict=True))}
+                out.append(EtaQuotient.of(u))
+    return out
+
+
+def plan(exps: dict[int, int], m: int, t: int, rhs: tuple[Mono, ...] | None) -> Plan | str:
+    """The multiplier with the least bound for which the proof applies, or why none does.
+
+    ``rhs`` is the claimed sum of products (None for a congruence to 0).
+    """
+    if not compatible(exps, m, t):
+        s = sum(d * r for d, r in exps.items())
+        return (
+            f"the class {t} mod {m} is not reachable by U_{m} on an eta quotient "
+            f"(m does not divide 24t + s_F = {24 * t + s}); sieving it needs characters"
+        )
+    f_eta = EtaQuotient.of(exps)
+    best: Plan | None = None
+    reasons: list[str] = []
+    for mult in _multipliers(exps, m, t):
+        p = _try(f_eta, mult, m, t, rhs, reasons)
+        if p is not None and (best is None or p.bound < best.bound):
+            best = p
+    if best is None:
+        why = reasons[0] if reasons else "no multiplier makes h a holomorphic form of integral weight"
+        return why
+    return best
+
+
+def _try(
+    f_eta: EtaQuotient, mult: EtaQuotient, m: int, t: int, rhs: tuple[Mono, ...] | None, reasons: list[str]
+) -> Plan | None:
+    h = f_eta * mult.scaled(m)
+    if h.is_half_integral or h.weight < 1 or h.s % 24:
+        return None
+    level = h.least_level()
+    if level is None or not h.is_holomorphic(level):
+        return None
+    e = h.s // 24
+    if (t + e) % m or e < 0:
+        return None
+    k_weight = int(h.weight)
+    character = h.character(level)
+    target = raised_level(level, m)
+    terms: list[tuple[Fraction, EtaQuotient]] = []
+    cusp_bounds: dict[int, Fraction] = {}
+    if rhs:
+        c = Fraction(f_eta.s, 24)
+        for mono in rhs:
+            lam = Fraction(t, m) + c / m - (Fraction(mono.s, 24) - mono.shift)
+            if lam != 0:
+                reasons.append(
+                    f"the term {mono.text()} has q-shift lambda = {frac_str(lam)} != 0 (its q-power does not "
+                    "match the progression); such a term must vanish on its own"
+                )
+                return None
+            term = mult * EtaQuotient.of(dict(mono.exps))
+            if term.weight != k_weight:
+                reasons.append(f"the term {mono.text()} has weight {term.weight} after multiplying, not {k_weight}")
+                return None
+            term_level = term.least_level()
+            if term_level is None:
+                reasons.append(f"the term {mono.text()} is not an eta quotient on any Gamma_0(N)")
+                return None
+            target = math.lcm(target, term_level)
+            terms.append((mono.coeff, term))
+        for _, term in terms:
+            if term.level_failure(target) is not None:
+                return None
+            if term.character(target).kernel != character.kernel:
+                reasons.append(
+                    f"a term of the claimed side has character {term.character(target).name}, not {character.name}"
+                )
+                return None
+        for d in _divisors(target):
+            if d == target:
+                continue
+            low = min([Fraction(0)] + [term.order_at_cusp(d, target) for _, term in terms])
+            if low < 0:
+                cusp_bounds[d] = low
+    pole_sum = sum(
+        (low * _euler_phi(math.gcd(d, target // d)) for d, low in cusp_bounds.items()),
+        Fraction(0),
+    )
+    bound = math.floor(Fraction(k_weight * index_gamma0(target), 12) - pole_sum)
+    if not cusp_bounds:
+        assert bound == sturm_bound(k_weight, target)
+    return Plan(mult, h, k_weight, level, character, target, bound, e, (t + e) // m, tuple(terms), cusp_bounds)
+
+
+def _euler_phi(n: int) -> int:
+    return sum(1 for a in range(1, n + 1) if math.gcd(a, n) == 1)
+
+
+# -- coefficients -------------------------------------------------------------------
+
+
+def product_coefficients(exps: dict[int, int], count: int) -> list[int]:
+    """The first ``count`` coefficients of ``prod f_delta^{r_delta}`` (exact integers)."""
+    if count <= 0:
+        return []
+    poly = EtaQuotient.of(exps).product_poly(count)
+    return _padded(poly, count)
+
+
+def product_residues(exps: dict[int, int], count: int, modulus: int) -> list[int]:
+    """The first ``count`` coefficients of ``prod f_delta^{r_delta}`` modulo ``modulus``.
+
+    The same product as :func:`product_coefficients`, computed in (Z/M)[q]: Euler's
+    pentagonal series, its inverse by Newton's iteration g <- g(2 - f g) (the constant term
+    is 1, a unit modulo any M), powers and the substitution q -> q^delta.
+    """
+    if count <= 0:
+        return []
+    result = nmod_poly([1], modulus)
+    for delta, r in sorted(exps.items()):
+        m = -(-count // delta)
+        base = nmod_poly([int(c) for c in euler_product(m).coeffs()], modulus)
+        if r < 0:
+            base = _inverse_mod(base, m, modulus)
+        factor = base.pow_trunc(abs(r), m) if abs(r) > 1 else base
+        if delta > 1:
+            coeffs = [int(c) for c in factor.coeffs()]
+            spread = [0] * count
+            for i, c in enumerate(coeffs):
+                if i * delta < count:
+                    spread[i * delta] = c
+            factor = nmod_poly(spread, modulus)
+        result = result.mul_low(factor, count)
+    out = [int(c) for c in result.coeffs()[:count]]
+    return out + [0] * (count - len(out))
+
+
+def _inverse_mod(f: nmod_poly, m: int, modulus: int) -> nmod_poly:
+    g = nmod_poly([1], modulus)
+    two = nmod_poly([2], modulus)
+    k = 1
+    while k < m:
+        k = min(2 * k, m)
+        g = g.mul_low(two - f.mul_low(g, k), k)
+    return g
+
+
+def _padded(poly: fmpz_poly, count: int) -> list[int]:
+    coeffs = [int(c) for c in poly.coeffs()[:count]]
+    return coeffs + [0] * (count - len(coeffs))
+
+
+class Progression:
+    """``a(mn + t)`` for ``F = prod f_delta^{r_delta}``, with cached coefficients of F."""
+
+    def __init__(self, exps: dict[int, int], m: int, t: int) -> None:
+        self.exps, self.m, self.t = exps, m, t
+        self._coeffs: list[int] = []
+        self._residues: tuple[list[int], int] = ([], 0)
+
+    def values(self, count: int, modulus: int | None = None) -> list[int]:
+        """``a(mn + t)`` for ``0 <= n < count`` (residues in [0, M) when a modulus is given)."""
+        need = self.m * (count - 1) + self.t + 1 if count > 0 else 0
+        if modulus is not None:
+            if self._residues[1] != modulus or len(self._residues[0]) < need:
+                have = len(self._residues[0]) if self._residues[1] == modulus else 0
+                self._residues = (product_residues(self.exps, max(need, 2 * have), modulus), modulus)
+            return self._residues[0][self.t : need : self.m]
+        if len(self._coeffs) < need:
+            self._coeffs = product_coefficients(self.exps, max(need, 2 * len(self._coeffs)))
+        return self._coeffs[self.t : need : self.m]
+
+    def exact(self, n: int) -> int:
+        """The exact value a(mn + t)."""
+        return self.values(n + 1)[n]
+
+
+def sum_coefficients(terms: tuple[Mono, ...], count: int) -> list[Fraction] | list[int]:
+    """The first ``count`` coefficients of a sum of products with integral q-shifts.
+
+    Integers when every coefficient of the sum is an integer, else exact fractions.
+    """
+    den = math.lcm(*(m.coeff.denominator for m in terms)) if terms else 1
+    total = fmpz_poly([])
+    for mono in terms:
+        if mono.shift.denominator != 1:
+            raise ValueError(f"{mono.text()} has a fractional power of q")
+        shift = int(mono.shift)
+        if shift >= count:
+            continue
+        if shift < 0:
+            raise ValueError(f"{mono.text()} has a negative power of q")
+        body = EtaQuotient.of(dict(mono.exps)).product_poly(count - shift)
+        scaled = body * int(mono.coeff * den)
+        total += scaled.left_shift(shift) if shift else scaled
+    values = _padded(total, count)
+    if den == 1:
+        return values
+    return [Fraction(v, den) for v in values]
+
+
+def u_operator(h: EtaQuotient, m: int, count: int, modulus: int | None = None) -> list[int]:
+    """The coefficients of q^0 .. q^(count-1) of U_m h, from h's own expansion (mod M if given)."""
+    e = h.s // 24
+    length = max(m * (count - 1) + 1 - e, 0)
+    if modulus is None:
+        body = product_coefficients(dict(h.exponents), length)
+    else:
+        body = product_residues(dict(h.exponents), length, modulus)
+    full = [0] * e + body
+    return [full[m * n] if m * n < len(full) else 0 for n in range(count)]
+
+
+def cross_check(prog: Progression, p: Plan, count: int, modulus: int | None = None) -> list[int]:
+    """U_m h computed from h must equal q^k P_E(q) sum a(mn+t) q^n (exactly, or modulo M).
+
+    Returns the coefficients of U_m h.
+    """
+    direct = prog.values(count, modulus)
+    if modulus is None:
+        pe = product_coefficients(dict(p.multiplier.exponents), count)
+        expected = _padded(fmpz_poly(direct).mul_low(fmpz_poly(pe), count), count)
+    else:
+        pe = product_residues(dict(p.multiplier.exponents), count, modulus)
+        prod = nmod_poly(direct, modulus).mul_low(nmod_poly(pe, modulus), count)
+        expected = [int(c) for c in prod.coeffs()] + [0] * count
+    expected_list = ([0] * p.k + expected)[:count]
+    from_h = u_operator(p.h, prog.m, count, modulus)
+    if expected_list != from_h:
+        raise Internal("U_m h and the direct coefficients of the progression disagree")
+    return from_h
+
+
+# -- decisions -----------------------------------------------------------------------
+
+
+def first_failure(values: list[int], targets: list[Fraction] | list[int] | None, modulus: int | None) -> int | None:
+    """The first index where ``values`` differs from ``targets`` (0 when None), modulo ``modulus``."""
+    for n, a in enumerate(values):
+        b = targets[n] if targets is not None else 0
+        if modulus is None:
+            if a != b:
+                return n
+        elif isinstance(b, int):
+            if (a - b) % modulus:
+                return n
+        elif Witness(n, Fraction(a), b, modulus).differs():
+            return n
+    return None
+
+
+def refuted(kind: str, what: str, n: int, a: int, b: Fraction, modulus: int | None) -> Outcome:
+    """A refutation with the first failing n and both values (residues for congruences)."""
+    w = Witness(n, Fraction(a), b, modulus)
+    if modulus is not None:
+        msg = f"fails at n = {n}: {what} = {a}, which is {a % modulus} modulo {modulus}, not {frac_str(b % modulus)}"
+    else:
+        msg = f"fails at n = {n}: {what} = {a}, but the claimed side has {frac_str(b)}"
+    return Outcome("refuted", kind, msg, method="computation", first_difference=w.to_dict(), terms_compared=n + 1)
+
+
+SCREEN_PRIME = 2**61 - 1  # identities are screened modulo this prime before exact values are computed
+
+
+def sum_residues(terms: tuple[Mono, ...], count: int, modulus: int) -> list[int] | None:
+    """:func:`sum_coefficients` modulo a prime; None if a coefficient's denominator is divisible by it."""
+    total = [0] * count
+    for mono in terms:
+        if mono.shift.denominator != 1 or mono.shift < 0:
+            raise ValueError(f"{mono.text()} is not a power series term")
+        if mono.coeff.denominator % modulus == 0:
+            return None
+        gamma = mono.coeff.numerator * pow(mono.coeff.denominator, -1, modulus) % modulus
+        shift = int(mono.shift)
+        if shift >= count:
+            continue
+        for i, c in enumerate(product_residues(dict(mono.exps), count - shift, modulus)):
+            total[i + shift] = (total[i + shift] + gamma * c) % modulus
+    return total
+
+
+def direct_search(
+    prog: Progression, rhs: tuple[Mono, ...] | None, modulus: int | None, upto: int, exact: bool = False
+) -> tuple[int, int, Fraction] | None:
+    """The first n < upto where the claim fails, by direct computation, or None.
+
+    A congruence is scanned modulo M.  An identity is screened modulo a large prime first
+    (unless ``exact``): a difference there is a real difference, and the exact values are then
+    computed only up to it, so the n returned is the first exact failure.  (A difference that
+    vanished modulo the prime could be missed by the screen: that only ever leaves a claim
+    unproven, since proofs never rest on this search.)
+    """
+    step = DIRECT
+    done = 0
+    while done < upto:
+        count = min(upto, max(step, 2 * done))
+        if rhs is None and modulus is not None:
+            n = next((i for i, x in enumerate(prog.values(count, modulus)) if x), None)
+            if n is not None:
+                return n, prog.exact(n), Fraction(0)
+            done = count
+            continue
+        if rhs is not None and modulus is None and not exact and count > DIRECT:
+            screened = sum_residues(rhs, count, SCREEN_PRIME)
+            if screened is not None:
+                residues = prog.values(count, SCREEN_PRIME)
+                hit = next((i for i in range(count) if residues[i] != screened[i]), None)
+                if hit is None:
+                    done = count
+                    continue
+                count = hit + 1
+        values = prog.values(count)
+        targets = sum_coefficients(rhs, count) if rhs is not None else None
+        n = first_failure(values, targets, modulus)
+        if n is not None:
+            return n, values[n], Fraction(targets[n]) if targets is not None else Fraction(0)
+        done = count
+    return None
+
+
+def search_limit(prog: Progression) -> int:
+    """How many progression terms the direct search covers (DIRECT_LIMIT coefficients of F)."""
+    return max(DIRECT, (DIRECT_LIMIT - prog.t) // prog.m + 1)
+
+
+@dataclass(frozen=True)
+class Claim:
+    """``sum a(mn+t) q^n = rhs`` (rhs a sum of products) or ``a(mn+t) = 0 (mod modulus)``."""
+
+    what: str  # how a(mn+t) is written, for messages
+    exps: dict[int, int]
+    m: int
+    t: int
+    rhs: tuple[Mono, ...] | None = None
+    modulus: int | None = None
+    start: int = 0  # the author's n is the n of a(mn + t) plus this (a claim for n >= start)
+
+    @property
+    def kind(self) -> str:
+        """``congruence`` or ``arithmetic`` (an identity of generating functions)."""
+        return "congruence" if self.modulus is not None else "arithmetic"
+
+
+def decide(claim: Claim) -> Outcome:
+    """Prove, refute or leave unproven one progression claim (see the module docstring)."""
+    try:
+        return _decide(claim)
+    except Internal as exc:
+        return Outcome("error", claim.kind, f"internal inconsistency: {exc}; please report this claim", code="internal")
+
+
+def _what(claim: Claim, n: int) -> str:
+    return f"{claim.what} at n = {n} (argument {claim.m * n + claim.t})"
+
+
+def _decide(claim: Claim) -> Outcome:
+    kind, m, t, modulus = claim.kind, claim.m, claim.t, claim.modulus
+    prog = Progression(claim.exps, m, t)
+    try:
+        first = direct_search(prog, claim.rhs, modulus, DIRECT)
+    except ValueError as exc:
+        return Outcome("unproven", kind, f"the claimed side is not a power series in q: {exc}", code="unsupported")
+    if first is not None:
+        n, a, b = first
+        return refuted(kind, claim.what, n + claim.start, a, b, modulus)
+    t_proof = t
+    if t >= m:
+        if claim.rhs is not None:
+            return _unproven(claim, prog, f"t = {t} >= m = {m}: the shifted series is not U_{m} of a form")
+        t_proof = t % m  # prove the stronger statement for t mod m
+    proof_prog = prog if t_proof == t else Progression(claim.exps, m, t_proof)
+    p = plan(claim.exps, m, t_proof, claim.rhs)
+    if isinstance(p, str):
+        return _unproven(claim, prog, p)
+    if p.bound > MAX_BOUND:
+        return _unproven(claim, prog, f"the target space's bound {p.bound} exceeds the budget ({MAX_BOUND})")
+    count = p.bound + 1
+    from_h = cross_check(proof_prog, p, count, modulus if claim.rhs is None else None)
+    if claim.rhs is None:
+        assert modulus is not None
+        bad = first_failure(from_h, None, modulus)
+        if bad is None:
+            values = proof_prog.values(count, modulus)
+            if any(values):
+                raise Internal("Sturm's bound is met but a direct coefficient is not 0 modulo M")
+            return _proved(claim, p, count, t_proof)
+    else:
+        rhs_form = sum_coefficients(
+            tuple(Mono.make(gamma, Fraction(term.s, 24), dict(term.exponents)) for gamma, term in p.terms), count
+        )
+        bad = first_failure(from_h, rhs_form, None)
+        direct = direct_search(proof_prog, claim.rhs, None, count, exact=True)
+        if bad is None:
+            if direct is not None:
+                raise Internal("the forms agree through the bound but the direct coefficients do not")
+            return _proved(claim, p, count, t_proof)
+        if direct is None:
+            raise Internal("the forms differ within the bound but the direct coefficients agree")
+    # Not proved: a difference exists; find it in the claimed range.
+    found = direct_search(prog, claim.rhs, modulus, search_limit(prog))
+    if found is not None:
+        n, a, b = found
+        return refuted(kind, claim.what, n + claim.start, a, b, modulus)
+    if t_proof != t:
+        return _unproven(
+            claim,
+            prog,
+            f"a({m}n+{t_proof}) is not 0 modulo {modulus} for some n below the claimed range, "
+            "so the proof for the whole class does not apply",
+        )
+    raise Internal("the proof failed but no direct counterexample was found")
+
+
+def _unproven(claim: Claim, prog: Progression, reason: str) -> Outcome:
+    upto = search_limit(prog)
+    found = direct_search(prog, claim.rhs, claim.modulus, upto)
+    if found is not None:
+        n, a, b = found
+        return refuted(claim.kind, claim.what, n + claim.start, a, b, claim.modulus)
+    mod = f" modulo {claim.modulus}" if claim.modulus is not None else ""
+    return Outcome(
+        "unproven",
+        claim.kind,
+        f"holds{mod} for {claim.start} <= n < {upto + claim.start} (computed directly), but no proof applies: {reason}",
+        method="computation",
+        terms_compared=upto,
+    )
+
+
+def _proved(claim: Claim, p: Plan, count: int, t_proof: int) -> Outcome:
+    m = claim.m
+    space = {"weight": str(p.weight), "group": group_name(p.target_level), "character": p.character.name}
+    record = p.record(m, count, claim.modulus)
+    record["t"] = t_proof
+    record["poles"] = {str(d): frac_str(v) for d, v in sorted(p.cusp_bounds.items())}
+    bound_kind = "valence bound" if p.cusp_bounds else "Sturm bound"
+    target = f"M_{p.weight}(Gamma0({p.target_level}), {p.character.name})"
+    if claim.modulus is not None:
+        stronger = f" (proved for the whole class {t_proof} mod {m})" if t_proof != claim.t else ""
+        msg = (
+            f"for all n >= 0, {claim.what} = 0 modulo {claim.modulus}{stronger}: with E = {p.multiplier.label()}, "
+            f"h = {p.h.label()} is in M_{p.weight}(Gamma0({p.level}), {p.character.name}); U_{m} h is in {target}, "
+            f"and its coefficients of q^0..q^{p.bound} ({bound_kind}) are 0 modulo {claim.modulus}"
+        )
+    else:
+        msg = (
+            f"for all n >= 0: with E = {p.multiplier.label()}, h = {p.h.label()} is in "
+            f"M_{p.weight}(Gamma0({p.level}), {p.character.name}); U_{m} h and E times the claimed side are in "
+            f"{target} and agree for q^0..q^{p.bound} ({bound_kind})"
+        )
+    certificate = {
+        "format": 1,
+        "method": "u-operator",
+        "kind": claim.kind,
+        "space_used": space,
+        "bound": p.bound,
+        "progression": record,
+    }
+    return Outcome(
+        "proved",
+        claim.kind,
+        msg,
+        space=space,
+        method="u-operator",
+        bound=p.bound,
+        terms_compared=count,
+        certificate=certificate,
+        progression=record,
+    )
+
+
+def decide_dissection(p: int, claims: tuple[Claim, ...]) -> Outcome:
+    """A p-dissection: every class t mod p is a claim of its own; all must be proved.
+
+    A refutation names the first exponent N = p n + t of F where the two sides differ.
+    """
+    outcomes = [decide(c) for c in claims]
+    refutations = []
+    for c, o in zip(claims, outcomes, strict=True):
+        w = o.witness
+        if o.verdict == "refuted" and w is not None and isinstance(w.n, int):
+            refutations.append((p * w.n + c.t, w))
+    if refutations:
+        at, w = min(refutations, key=lambda x: x[0])
+        witness = Witness(at, w.left, w.right)
+        return Outcome(
+            "refuted",
+            "equality",
+            f"the coefficients of q^{at} differ: left {frac_str(w.left)}, right {frac_str(w.right)} "
+            f"(class {at % p} of the {p}-dissection)",
+            method="computation",
+            first_difference=witness.to_dict(),
+            terms_compared=at + 1,
+        )
+    for o in outcomes:
+        if o.verdict == "error":
+            return o
+    if all(o.verdict == "proved" for o in outcomes):
+        records = [o.progression for o in outcomes]
+        record = {"dissection": p, "components": records}
+        bound = max(o.bound or 0 for o in outcomes)
+        return Outcome(
+            "proved",
+            "equality",
+            f"the {p}-dissection holds: each class t mod {p} is proved by U_{p} ("
+            + "; ".join(f"t = {c.t}: bound {o.bound}" for c, o in zip(claims, outcomes, strict=True))
+            + ")",
+            method="u-operator",
+            bound=bound,
+            terms_compared=sum(o.terms_compared for o in outcomes),
+            certificate={
+                "format": 1,
+                "method": "u-operator",
+                "kind": "equality",
+                "space_used": None,
+                "bound": bound,
+                "progression": record,
+            },
+            progression=record,
+        )
+    reasons = "; ".join(
+        f"t = {c.t}: {o.message}" for c, o in zip(claims, outcomes, strict=True) if o.verdict != "proved"
+    )
+    return Outcome("unproven", "equality", f"not every class of the {p}-dissection is proved ({reasons})")

@@ -1,0 +1,194 @@
+"""Recognising progression claims in the claim AST (docs/method.md#progressions).
+
+Three shapes, each turned into :class:`verifier.claims.progression.Claim` objects:
+
+* ``\\sum_{n \\ge 0} a(mn+t) q^n = G`` (either side), a(n) a partition-type function;
+* ``a(mn+t) \\equiv 0 \\pmod M`` (with an optional range ``n \\ge s``);
+* a dissection ``F = sum_i gamma_i q^{e_i} prod f_{delta}^{s}`` in which every delta of the
+  right side is divisible by a prime p that does not divide every delta of F: one claim
+  per residue class modulo p (classes without terms claim 0).
+
+Anything else returns None, and the claim goes on to the other decision procedures.
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Callable, Mapping
+from dataclasses import dataclass
+from fractions import Fraction
+from typing import Any
+
+from verifier.claims.products import Mono, NotProduct, ProductSum, Reader, partition_function
+from verifier.claims.progression import Claim
+from verifier.parse import ast
+from verifier.prove.groups import prime_factors
+
+
+@dataclass(frozen=True)
+class Reading:
+    """The progression claims one written claim stands for.
+
+    ``dissection`` is the modulus p of a dissection (then ``claims`` has one claim per
+    class t mod p, and F's own coefficients are the author's exponents), else None.
+    """
+
+    claims: tuple[Claim, ...]
+    dissection: int | None = None
+    left: Mono | None = None  # F, for a dissection
+    right: ProductSum = ()  # the claimed sum, for a dissection
+
+
+def _linear(node: ast.Node, var: str) -> tuple[int, int] | None:
+    """``m var + t`` as (m, t) with integers, or None."""
+    if isinstance(node, ast.Name) and node.text == var and node.arg is None:
+        return 1, 0
+    if isinstance(node, ast.Number):
+        return 0, node.value
+    if isinstance(node, ast.BinOp) and node.op in "+-":
+        a, b = _linear(node.left, var), _linear(node.right, var)
+        if a is None or b is None:
+            return None
+        sign = 1 if node.op == "+" else -1
+        return a[0] + sign * b[0], a[1] + sign * b[1]
+    if isinstance(node, ast.BinOp) and node.op == "*":
+        a, b = _linear(node.left, var), _linear(node.right, var)
+        if a is None or b is None or (a[0] and b[0]):
+            return None
+        return a[0] * b[1] + b[0] * a[1], a[1] * b[1]
+    return None
+
+
+def _term(
+    node: ast.Node, var: str, products: Mapping[str, ProductSum], forms: Mapping[str, Any]
+) -> tuple[Mono, int, int, str] | None:
+    """``a(m var + t)``: (generating function, m, t, spelling) when a is a partition function."""
+    if not isinstance(node, ast.Call):
+        return None
+    gen = partition_function(node.name, products, forms)
+    lin = _linear(node.argument, var)
+    if gen is None or lin is None or lin[0] < 2 or lin[1] < 0:
+        return None
+    name = "\\overline{p}" if node.name == "\\pbar" else node.name
+    return gen, lin[0], lin[1], f"{name}({lin[0]}{var}+{lin[1]})"
+
+
+def _is_q_power(node: ast.Node, var: str) -> bool:
+    return (
+        isinstance(node, ast.Power)
+        and isinstance(node.base, ast.Name)
+        and node.base.text == "q"
+        and isinstance(node.exponent, ast.Name)
+        and node.exponent.text == var
+    )
+
+
+def _generating_sum(
+    node: ast.Node, products: Mapping[str, ProductSum], forms: Mapping[str, Any]
+) -> tuple[Mono, int, int, str] | None:
+    if not (isinstance(node, ast.BigSum) and node.kind == "at_least"):
+        return None
+    if not (isinstance(node.lower, ast.Number) and node.lower.value == 0):
+        return None
+    body = node.body
+    if not (isinstance(body, ast.BinOp) and body.op == "*"):
+        return None
+    for call, qn in ((body.left, body.right), (body.right, body.left)):
+        if _is_q_power(qn, node.var):
+            return _term(call, node.var, products, forms)
+    return None
+
+
+def _usable(gen: Mono) -> bool:
+    # a(n) = gen's coefficients; the method is set up for F = prod f^r (coefficient 1, no q-power).
+    return gen.coeff == 1 and gen.shift == 0
+
+
+def read(
+    left: ast.Node,
+    right: ast.Node,
+    rel: str,
+    modulus: int | None,
+    start_n: int | None,
+    products: Mapping[str, ProductSum],
+    forms: Mapping[str, Any],
+    dissection_ok: Callable[[], bool],
+) -> Reading | None:
+    """The progression claims of ``left rel right``, or None when it is not one of the shapes."""
+    reader = Reader(products, forms)
+    if rel == "≡" and modulus is not None and modulus > 1:
+        for a, b in ((left, right), (right, left)):
+            if isinstance(b, ast.Number) and b.value == 0:
+                var = _variable(a)
+                term = _term(a, var, products, forms) if var else None
+                if term is not None and _usable(term[0]):
+                    gen, m, t, what = term
+                    start = start_n or 0
+                    if start < 0:
+                        return None
+                    # n >= start: a(m(n' + start) + t) with n' >= 0.
+                    return Reading((Claim(what, dict(gen.exps), m, t + m * start, None, modulus, start),))
+        return None
+    if rel != "=" or modulus is not None:
+        return None
+    for a, b in ((left, right), (right, left)):
+        found = _generating_sum(a, products, forms)
+        if found is None:
+            continue
+        gen, m, t, what = found
+        if not _usable(gen):
+            return None
+        try:
+            rhs = reader.read(b)
+        except NotProduct:
+            return None
+        return Reading((Claim(what, dict(gen.exps), m, t, rhs, None),))
+    found_dissection = _dissection(reader, left, right)
+    if found_dissection is None or not dissection_ok():
+        return None
+    return found_dissection
+
+
+def _variable(node: ast.Node) -> str | None:
+    if isinstance(node, ast.Call):
+        names = {n.text for n in ast.walk(node.argument) if isinstance(n, ast.Name)}
+        if len(names) == 1:
+            return next(iter(names))
+    return None
+
+
+def _dissection(reader: Reader, left: ast.Node, right: ast.Node) -> Reading | None:
+    try:
+        f_side, g_side = reader.read(left), reader.read(right)
+    except NotProduct:
+        return None
+    if len(f_side) != 1 or len(g_side) < 2 or not _usable(f_side[0]):
+        return None
+    f = f_side[0]
+    if any(m.shift.denominator != 1 or m.shift < 0 for m in g_side):
+        return None
+    g = 0
+    for mono in g_side:
+        for d, _ in mono.exps:
+            g = math.gcd(g, d)
+    if g < 2:
+        return None
+    primes = [p for p in prime_factors(g) if any(d % p for d, _ in f.exps)]
+    if not primes:
+        return None
+    p = primes[0]
+    claims = []
+    for t in range(p):
+        comp = tuple(
+            Mono.make(mono.coeff, (mono.shift - t) / p, {d // p: r for d, r in mono.exps})
+            for mono in g_side
+            if int(mono.shift) % p == t
+        )
+        claims.append(Claim(f"coefficient of q^({p}n+{t})", dict(f.exps), p, t, comp, None))
+    assert all(c.shift.denominator == 1 for claim in claims for c in claim.rhs or ())
+    return Reading(tuple(claims), p, f, g_side)
+
+
+def shift_text(x: Fraction) -> str:
+    """A q-shift as text."""
+    return str(x.numerator) if x.denominator == 1 else f"{x.numerator}/{x.denominator}"
