@@ -71,6 +71,20 @@ CODES: dict[str, tuple[str, str]] = {
     "character-mismatch": ("prove", "The character stated in the tag differs from the character of the claim's forms."),
     "bad-group": ("elaborate", "The group= option cannot be read."),
     "unsupported": ("elaborate", "The claim uses a construction this version does not prove."),
+    "unsupported-notation": (
+        "elaborate",
+        "The claim is written in a notation qreferee does not read yet; the message names the construct "
+        "and the hint the nearest form that is read. Example: \\prod_{n\\ge1}(1-q^n)^{n} (an infinite product "
+        "with a non-periodic exponent). Fix: give each factor a constant exponent, (1-q^{Mn+a})^{r}, or write "
+        "the product as a q-Pochhammer symbol (q^a;q^M)_\\infty.",
+    ),
+    "series-only": (
+        "prove",
+        "The sides are q-series with no modular proof here (a product that is no eta quotient, a weighted sum "
+        "over Z, unequal powers of q); they agree as far as compared, which is evidence, not a proof. "
+        "Example: (q;q^5)_\\infty^{-1}(q^4;q^5)_\\infty^{-1} = \\sum_{n\\ge0} q^{n^2}/(q;q)_n. Fix: none needed if "
+        "evidence suffices; for a proof, restate the claim between eta quotients or as a printed expansion + O(q^N).",
+    ),
     "not-modular": (
         "prove",
         "A form in the claim is modular for no Gamma_0(N); the message says which condition fails.",

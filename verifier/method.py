@@ -33,6 +33,8 @@ FOR_CODE: dict[str, str] = {
     "budget": "unproven",
     "time-budget": "unproven",
     "no-witness": "witness",
+    "unsupported-notation": "products",
+    "series-only": "series-only",
 }
 
 # Claim kinds (``Outcome.kind``) -> the section that says how they are decided.
@@ -61,6 +63,7 @@ FOR_METHOD: dict[str, str] = {
     "sturm-congruence": "congruences-sturm",
     "linear-algebra": "claim-solve",
     "computation": "claim-arithmetic",
+    "series": "series-only",
 }
 
 _ANCHOR = re.compile(r'^<a id="([a-z0-9-]+)"></a>\s*$')

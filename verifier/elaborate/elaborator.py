@@ -230,7 +230,13 @@ class Elaborator:
             return _deriv(self.expr(node.operand, text), src, node)
         if isinstance(node, ast.Bracket):
             return self._bracket(node, text, src)
+        if isinstance(node, ast.BigProd | ast.Pochhammer):
+            return self._idiom_product(node, text, src)
         if isinstance(node, ast.BigSum):
+            if node.kind in ("integers", "pair") or (node.kind in ("at_least", "from") and node.upper is None):
+                special = self._idiom_sum(node, text, src)
+                if special is not None:
+                    return special
             return self._generating_sum(node, text)
         if isinstance(node, ast.Call):
             op = _operator(ast.Name(node.name_span, node.name))
@@ -384,8 +390,56 @@ class Elaborator:
             return g
         except ArithmeticError_ as exc:
             raise ElaborationError(Problem("unsupported", str(exc), exc.hint, exc.span)) from exc
-        except (Untranslatable, NotEvaluable) as exc:
+        except Untranslatable:
+            # No modular translation (sigma_k with k even, p(n), products of functions): the sum is
+            # still an exact q-series, compared coefficient by coefficient (docs/method.md#series-only).
+            from verifier.elaborate.idiom import series_atom
+
+            try:
+                for n in range(0, 4):
+                    values.value(arith, {node.var: n})
+            except (NotEvaluable, ZeroDivisionError, TypeError) as exc:
+                raise _err("unsupported", f"no modular generating function: {exc}", "", node) from exc
+            start = int(lower.value) if isinstance(lower, ir.Const) else 1
+            return series_atom(("coeffs", arith, node.var, start), text[node.span[0] : node.span[1]])
+        except NotEvaluable as exc:
             raise _err("unsupported", f"no modular generating function: {exc}", "", node) from exc
+
+    # -- the q-series idiom (verifier/elaborate/idiom.py; docs/method.md#products) --------
+    def _idiom_product(self, node: ast.BigProd | ast.Pochhammer, text: str, src: str) -> ir.Expr:
+        from verifier.elaborate import idiom
+
+        reader = idiom.ProductReader(text)
+        try:
+            ef = reader.product(node) if isinstance(node, ast.BigProd) else reader.pochhammer(node)
+        except idiom.IdiomError as exc:
+            raise _err(idiom.CODE, f"not read: {exc.construct}", exc.hint, exc.node) from exc
+
+        out = idiom.product_expr(ef, src, node, lambda c, params: self.eta_expr(c, params, src, node))
+        for extra in reader.outside:
+            out = _mul(out, self.expr(extra, text), src, node)
+        return out
+
+    def eta_expr(self, c: Fraction, params: dict[Fraction, int], src: str, node: ast.Node) -> ir.Expr:
+        """``c`` times the eta quotient prod eta(d tau)^{r_d}."""
+        return _eta_expr(c, tuple(params.items()), src, node)
+
+    def mul(self, a: ir.Expr, b: ir.Expr, src: str, node: ast.Node) -> ir.Expr:
+        """The typed product a * b."""
+        return _mul(a, b, src, node)
+
+    def generating_sum(self, node: ast.BigSum, text: str) -> ir.Expr:
+        """``sum_{n >= L} a(n) q^n`` (see :meth:`_generating_sum`)."""
+        return self._generating_sum(node, text)
+
+    def _idiom_sum(self, node: ast.BigSum, text: str, src: str) -> ir.Expr | None:
+        """Sums over Z, one-sided sums with a quadratic exponent, Lambert and double sums; None: not idiom."""
+        from verifier.elaborate import idiom
+
+        try:
+            return idiom.SumReader(self, text).read(node, src)
+        except idiom.IdiomError as exc:
+            raise _err(idiom.CODE, f"not read: {exc.construct}", exc.hint, exc.node) from exc
 
     def _bracket(self, node: ast.Bracket, text: str, src: str) -> ir.Expr:
         """[f, g]_n = sum_{r+s=n} (-1)^r C(n+k-1, s) C(n+l-1, r) D^r f D^s g (docs/method.md#rankin-cohen)."""
@@ -618,7 +672,8 @@ def _neg(e: ir.Expr) -> ir.Expr:
 def _add(a: ir.Expr, b: ir.Expr, sign: int, node: ast.Node) -> ir.Expr:
     ta, tb = a.typ, b.typ
     mixed = ta.mixed or tb.mixed
-    if ta.printed or tb.printed:
+    if ta.printed or tb.printed or _unequal_shifts(a, b):
+        # Terms with different powers of q in front are compared as q-series (docs/method.md#series-only).
         weight = None
     elif mixed:
         # A generating function already mixes weights; the proof splits them anyway.
@@ -649,12 +704,56 @@ def _add(a: ir.Expr, b: ir.Expr, sign: int, node: ast.Node) -> ir.Expr:
     return ir.Sum(typ, f"{a.text} {op} {b.text}", a, b, sign)
 
 
+def _unequal_shifts(a: ir.Expr, b: ir.Expr) -> bool:
+    from verifier.elaborate.shift import has_shift, shift_of
+
+    if not (has_shift(a) or has_shift(b)):
+        return False
+    sa, sb = shift_of(a), shift_of(b)
+    return sa is not None and sb is not None and sa != sb
+
+
 def _short(text: str) -> str:
     text = " ".join(text.split())
     return text if len(text) <= 40 else text[:37] + "..."
 
 
+def _unshift(e: ir.Expr) -> tuple[ir.Expr, Fraction] | None:
+    """``q^c * base`` as (base, c) for a Shift node or a power of q; None otherwise."""
+    if isinstance(e, ir.Shift):
+        assert e.base is not None
+        return e.base, e.exponent
+    if isinstance(e, ir.QPower):
+        return ir.Const(ir.Typ(Fraction(0)), "1", Fraction(1)), e.exponent
+    return None
+
+
+def _shift_product(a: ir.Expr, b: ir.Expr, sign: int, src: str, node: ast.Node) -> ir.Expr | None:
+    """a * b (sign 1) or a / b (sign -1) when a shifted form is involved: the powers of q add."""
+    ua, ub = _unshift(a), _unshift(b)
+    if not isinstance(a, ir.Shift) and not isinstance(b, ir.Shift):
+        # q^c times an unprinted form that came from a product is a shifted form, too.
+        if not (ua is not None and ub is None and sign > 0 and _from_idiom(b)) and not (
+            ub is not None and ua is None and _from_idiom(a)
+        ):
+            return None
+    ba, ca = ua if ua is not None else (a, Fraction(0))
+    bb, cb = ub if ub is not None else (b, Fraction(0))
+    from verifier.elaborate.idiom import shifted
+
+    inner = _mul(ba, bb, src, node) if sign > 0 else _div(ba, bb, src, node)
+    return shifted(inner, ca + sign * cb, src)
+
+
+def _from_idiom(e: ir.Expr) -> bool:
+    """An unprinted, non-constant expression (a form or a product): q^c times it is a shifted form."""
+    return not e.typ.printed and not isinstance(e, ir.Const | ir.QPower)
+
+
 def _mul(a: ir.Expr, b: ir.Expr, src: str, node: ast.Node) -> ir.Expr:
+    shifted = _shift_product(a, b, 1, src, node)
+    if shifted is not None:
+        return shifted
     ea, eb = _split_eta(a), _split_eta(b)
     if ea is not None and eb is not None:
         return _eta_expr(ea[0] * eb[0], ea[1] + eb[1], src, node)
@@ -682,6 +781,9 @@ def _is_zero(e: ir.Expr) -> bool:
 
 
 def _div(a: ir.Expr, b: ir.Expr, src: str, node: ast.Node) -> ir.Expr:
+    shifted = _shift_product(a, b, -1, src, node)
+    if shifted is not None:
+        return shifted
     ea, eb = _split_eta(a), _split_eta(b)
     if ea is not None and eb is not None and eb[0] != 0:
         return _eta_expr(ea[0] / eb[0], ea[1] + tuple((d, -r) for d, r in eb[1]), src, node)
@@ -691,10 +793,10 @@ def _div(a: ir.Expr, b: ir.Expr, src: str, node: ast.Node) -> ir.Expr:
     if tb.printed:
         raise _err("unsupported", "dividing by a printed expansion is not supported", "", node)
     printed = ta.printed
-    if printed or _is_zero(a):
+    if printed or _is_zero(a) or ta.weight is None or tb.weight is None:
+        # A series-only factor (docs/method.md#series-only) has no weight either.
         weight = None
     else:
-        assert ta.weight is not None and tb.weight is not None
         weight = ta.weight - tb.weight
     den = tb.weight if tb.weight is not None and not isinstance(b, ir.Const) else Fraction(0)
     typ = ir.Typ(
@@ -717,6 +819,11 @@ def _pow(base: ir.Expr, exponent: Fraction | int, src: str, node: ast.Node) -> i
     tb = base.typ
     if isinstance(base, ir.QPower):
         return ir.QPower(tb, src, base.exponent * exponent)
+    if isinstance(base, ir.Shift):
+        from verifier.elaborate.idiom import shifted
+
+        assert base.base is not None
+        return shifted(_pow(base.base, exponent, src, node), base.exponent * exponent, src)
     if Fraction(exponent).denominator != 1:
         raise _err("unsupported", "only q may have a fractional exponent", "write integral powers of forms", node)
     e = int(exponent)

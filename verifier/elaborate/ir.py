@@ -119,6 +119,17 @@ class Hecke(Expr):
 
 
 @dataclass(frozen=True)
+class Shift(Expr):
+    """``q^exponent * base`` where base is not a printed expansion: an infinite product is
+    an eta quotient times a power of q (docs/method.md#products).  A claim whose sides carry
+    the same shift is decided after dividing it out; otherwise the sides are compared as
+    q-series only (docs/method.md#series-only)."""
+
+    base: Expr | None = None
+    exponent: Fraction = Fraction(0)
+
+
+@dataclass(frozen=True)
 class Side:
     """One side of a claim: an expression and, for printed expansions, where it stops.
 

@@ -22,6 +22,9 @@ from verifier.forms.registry import offset
 def _denominators(expr: ir.Expr) -> list[int]:
     if isinstance(expr, ir.QPower):
         return [expr.exponent.denominator]
+    if isinstance(expr, ir.Shift):
+        assert expr.base is not None
+        return [expr.exponent.denominator, *_denominators(expr.base)]
     if isinstance(expr, ir.Atom):
         dens = [Fraction(expr.scale).denominator]
         if expr.key == "eta":
@@ -63,6 +66,9 @@ def rescale_expr(expr: ir.Expr, t: int) -> ir.Expr:
         return expr
     if isinstance(expr, ir.QPower):
         return dataclasses.replace(expr, exponent=expr.exponent * t)
+    if isinstance(expr, ir.Shift):
+        assert expr.base is not None
+        return dataclasses.replace(expr, base=rescale_expr(expr.base, t), exponent=expr.exponent * t)
     if isinstance(expr, ir.Atom):
         if expr.key == "eta":
             return dataclasses.replace(expr, params=tuple((d * t, r) for d, r in expr.params))

@@ -60,6 +60,9 @@ class Unknown:
     hint: str
 
 
+SERIES_ONLY = "series"  # q-series compared by coefficients only (verifier.forms.series_only)
+
+
 class NotModular(Exception):
     """An atom is modular for no Gamma_0(N) (the message says which condition fails)."""
 
@@ -154,6 +157,8 @@ def offset(key: str, params: tuple[Any, ...]) -> Fraction:
 
 def level(key: str, scale: int, params: tuple[Any, ...]) -> int:
     """The least N for which the atom is modular on Gamma_0(N) (raises :class:`NotModular`)."""
+    if key == SERIES_ONLY:
+        raise NotModular("a q-series with no known modular interpretation (docs/method.md#series-only)")
     if key == "eta":
         eq = eta_quotient(params)
         n = eq.least_level()
@@ -174,6 +179,8 @@ def character(key: str, scale: int, params: tuple[Any, ...], at_level: int) -> A
     """The character (a :class:`QuadraticCharacter`) at level ``at_level``."""
     from verifier.forms.characters import QuadraticCharacter
 
+    if key == SERIES_ONLY:
+        raise NotModular("a q-series with no known modular interpretation (docs/method.md#series-only)")
     if key == "eta":
         return eta_quotient(params).character(at_level)
     if key == "Echar":
@@ -199,6 +206,10 @@ def cusp_orders(key: str, params: tuple[Any, ...], at_level: int) -> dict[int, F
 
 def build_series(key: str, params: tuple[Any, ...], prec: int) -> QSeries:
     """Exact q-expansion of the atom at scale 1, to precision ``prec``."""
+    if key == SERIES_ONLY:
+        from verifier.forms.series_only import build
+
+        return build(params, prec)
     if key == "Delta":
         from verifier.forms.delta import delta_series
 
@@ -228,5 +239,7 @@ def atom_label(key: str, scale: int = 1, params: tuple[Any, ...] = ()) -> str:
     """How an atom is written in messages."""
     if key == "eta":
         return " ".join(f"eta({d}tau)^{r}" if d != 1 else f"eta(tau)^{r}" for d, r in params)
+    if key == SERIES_ONLY:
+        return "series(" + str(params[0]) + ")"
     base = {"Delta": "Delta", "theta": "Theta_Q"}.get(key, f"E_{key[1:]}")
     return base if scale == 1 else f"{base}({scale}tau)"

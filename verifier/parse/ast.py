@@ -101,13 +101,43 @@ class Call(Node):
 @dataclass(frozen=True)
 class BigSum(Node):
     """``\\sum`` over ``var``: ``kind`` is ``"from"`` (var = lower .. upper), ``"divides"``
-    (var | target) or ``"at_least"`` (var >= lower); ``upper`` None means no upper limit."""
+    (var | target) or ``"at_least"`` (var >= lower); ``upper`` None means no upper limit.
+
+    The q-series idiom adds (docs/method.md#sums-over-z): ``"integers"`` (var in Z),
+    ``"pair"`` (var, var2 >= lower), ``"between"`` (lower < var < upper, written with <),
+    ``"between_closed"`` (lower <= var <= upper), ``"below"`` (var < upper),
+    ``"divides_parity"`` (var | lower with var odd or even: ``parity``), ``"split"``
+    (var + var2 = upper with var, var2 >= lower) and ``"linear"`` (c1 var + c2 var2 = upper,
+    ``coefficients``)."""
 
     kind: str
     var: str
     lower: Node | None
     upper: Node | None
     body: Node
+    var2: str = ""
+    parity: str = ""
+    coefficients: tuple[int, int] = (1, 1)
+
+
+@dataclass(frozen=True)
+class BigProd(Node):
+    """``\\prod`` over ``var`` with the same index kinds as :class:`BigSum`."""
+
+    kind: str
+    var: str
+    lower: Node | None
+    upper: Node | None
+    body: Node
+
+
+@dataclass(frozen=True)
+class Pochhammer(Node):
+    """The q-Pochhammer symbol ``(a_1, ..., a_k; base)_length``; ``length`` None is infinity."""
+
+    bases: tuple[Node, ...]
+    nome: Node
+    length: Node | None
 
 
 @dataclass(frozen=True)
@@ -178,8 +208,10 @@ def children(node: Node) -> tuple[Node, ...]:
         return (node.operand,)
     if isinstance(node, Call):
         return (node.argument,)
-    if isinstance(node, BigSum):
+    if isinstance(node, BigSum | BigProd):
         return tuple(n for n in (node.lower, node.upper, node.body) if n is not None)
+    if isinstance(node, Pochhammer):
+        return (*node.bases, node.nome, *((node.length,) if node.length is not None else ()))
     if isinstance(node, Neg):
         return (node.operand,)
     if isinstance(node, Power):

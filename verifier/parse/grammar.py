@@ -359,13 +359,20 @@ def _make_transformer() -> Any:
             return ast.Call(_span(meta), str(items[0]), _tok_span(items[0]), items[1])
 
         def big_sum(self, meta: Any, items: list[Any]) -> ast.BigSum:
-            kind, var, lower, upper = items[0]
-            return ast.BigSum(_span(meta), kind, var, lower, upper, items[1])
+            index, upper = items[0]
+            kind, var, lower = index[:3]
+            extra = index[3:]
+            if len(extra) >= 1 and extra[0] is not None:
+                upper = extra[0]
+            var2 = extra[1] if len(extra) > 1 else ""
+            parity = extra[2] if len(extra) > 2 else ""
+            coefficients = extra[3] if len(extra) > 3 else (1, 1)
+            if kind == "from" and upper is None:
+                kind = "at_least"  # \sum_{n=1}^{\infty}
+            return ast.BigSum(_span(meta), kind, var, lower, upper, items[1], var2, parity, coefficients)
 
-        def sum_op(self, meta: Any, items: list[Any]) -> tuple[str, str, ast.Node | None, ast.Node | None]:
-            kind, var, lower = items[0]
-            upper = items[1] if len(items) > 1 else None
-            return kind, var, lower, upper
+        def sum_op(self, meta: Any, items: list[Any]) -> tuple[tuple[Any, ...], ast.Node | None]:
+            return tuple(items[0]), (items[1] if len(items) > 1 else None)
 
         def index_from(self, meta: Any, items: list[Any]) -> tuple[str, str, ast.Node]:
             return "from", str(items[0]), items[-1]
@@ -375,6 +382,86 @@ def _make_transformer() -> Any:
 
         def index_at_least(self, meta: Any, items: list[Any]) -> tuple[str, str, ast.Node]:
             return "at_least", str(items[0]), items[-1]
+
+        # -- the q-series idiom (docs/method.md#products, #sums-over-z) -----------------
+        def big_prod(self, meta: Any, items: list[Any]) -> ast.BigProd:
+            index, upper = items[0]
+            if index[0] not in ("from", "at_least"):
+                raise _BadNumber(
+                    "a product runs over n >= a or n = a .. b", meta.start_pos, hint="write \\prod_{n \\ge 1}"
+                )
+            _, var, lower = index[:3]
+            kind = "at_least" if upper is None else index[0]
+            return ast.BigProd(_span(meta), kind, var, lower, upper, items[1])
+
+        def prod_op(self, meta: Any, items: list[Any]) -> tuple[Any, ast.Node | None]:
+            return items[0], (items[1] if len(items) > 1 else None)
+
+        def pochhammer(self, meta: Any, items: list[Any]) -> ast.Pochhammer:
+            *bases, nome, length = items
+            return ast.Pochhammer(_span(meta), tuple(bases), nome, length)
+
+        def poch_infinite(self, meta: Any, items: list[Any]) -> None:
+            return None
+
+        def poch_digit(self, meta: Any, items: list[Any]) -> ast.Node:
+            return ast.Number(_tok_span(items[0]), int(str(items[0])))
+
+        def poch_name(self, meta: Any, items: list[Any]) -> ast.Node:
+            return ast.Name(_tok_span(items[0]), str(items[0]))
+
+        def poch_expr(self, meta: Any, items: list[Any]) -> ast.Node:
+            node: ast.Node = items[0]
+            return node
+
+        def index_pass(self, meta: Any, items: list[Any]) -> tuple[Any, ...]:
+            return tuple(items[0])
+
+        def index_integers(self, meta: Any, items: list[Any]) -> tuple[Any, ...]:
+            return ("integers", str(items[0]), None)
+
+        def index_pair_at_least(self, meta: Any, items: list[Any]) -> tuple[Any, ...]:
+            return ("pair", str(items[0]), items[-1], None, str(items[1]))
+
+        def index_between(self, meta: Any, items: list[Any]) -> tuple[Any, ...]:
+            low = ast.Number(_tok_span(items[0]), int(str(items[0])))
+            return ("between", str(items[2]), low, items[-1])
+
+        def index_between_closed(self, meta: Any, items: list[Any]) -> tuple[Any, ...]:
+            low = ast.Number(_tok_span(items[0]), int(str(items[0])))
+            return ("between_closed", str(items[2]), low, items[-1])
+
+        def index_below(self, meta: Any, items: list[Any]) -> tuple[Any, ...]:
+            return ("below", str(items[0]), None, items[-1])
+
+        def index_divides_parity(self, meta: Any, items: list[Any]) -> tuple[Any, ...]:
+            var, _, target, var2, parity = items
+            if str(var2) != str(var):
+                raise _BadNumber(
+                    f"the condition names {var2}, not the summation variable {var}",
+                    meta.start_pos,
+                    hint=f"write \\sum_{{{var} \\mid n, {var} \\text{{ odd}}}}",
+                )
+            word = "odd" if "odd" in str(parity) else "even"
+            return ("divides_parity", str(var), target, None, "", word)
+
+        def index_split(self, meta: Any, items: list[Any]) -> tuple[Any, ...]:
+            a, b, total, c, d, _, low = items[1:]
+            if {str(a), str(b)} != {str(c), str(d)}:
+                raise _BadNumber(
+                    "the range must name the two summation variables",
+                    meta.start_pos,
+                    hint="write \\sum_{\\substack{a+b=n \\\\ a,b \\ge 1}}",
+                )
+            return ("split", str(a), low, ast.Name(_tok_span(total), str(total)), str(b))
+
+        def index_linear(self, meta: Any, items: list[Any]) -> tuple[Any, ...]:
+            (c1, v1), (c2, v2), total = items
+            name = ast.Name(_tok_span(total), str(total))
+            return ("linear", v1, None, name, v2, "", (c1, c2))
+
+        def lin_var(self, meta: Any, items: list[Any]) -> tuple[int, str]:
+            return (int(str(items[0])) if len(items) == 2 else 1), str(items[-1])
 
         def sum_upper(self, meta: Any, items: list[Any]) -> ast.Node | None:
             item = items[0]

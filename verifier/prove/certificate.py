@@ -74,6 +74,9 @@ def sexpr(expr: ir.Expr) -> str:
         return f"(q {frac_str(expr.exponent)})"
     if isinstance(expr, ir.Atom):
         return _atom(expr)
+    if isinstance(expr, ir.Shift):
+        assert expr.base is not None
+        return f"(* (q {frac_str(expr.exponent)}) {sexpr(expr.base)})"
     if isinstance(expr, ir.Sum):
         assert expr.left is not None and expr.right is not None
         return f"({'+' if expr.sign > 0 else '-'} {sexpr(expr.left)} {sexpr(expr.right)})"

@@ -86,6 +86,11 @@ def laurent(expr: ir.Expr, prec: int, table: AtomTable) -> QSeries:
         return QSeries.monomial(e, max(prec, e + 1))
     if isinstance(expr, ir.Atom):
         return table.atom(expr, prec)
+    if isinstance(expr, ir.Shift):
+        assert expr.base is not None and expr.exponent.denominator == 1
+        e = int(expr.exponent)
+        inner = laurent(expr.base, prec - e, table)
+        return QSeries(inner.poly, inner.offset + e, inner.prec + e)
     if isinstance(expr, ir.Sum):
         assert expr.left is not None and expr.right is not None
         a = laurent(expr.left, prec, table)

@@ -19,6 +19,7 @@ from fractions import Fraction
 from typing import Any
 
 from verifier.elaborate import ir
+from verifier.elaborate.shift import classify, strip_side
 from verifier.forms import registry
 from verifier.forms.characters import QuadraticCharacter
 from verifier.prove import certificate, groups, orders
@@ -38,6 +39,8 @@ from verifier.series.qseries import QSeries
 __all__ = ["Outcome", "Prover", "Setup", "claim_level", "space_of"]
 
 DEFAULT_MAX_TERMS = 50_000
+# How far sides with no modular proof are compared (docs/method.md#series-only).
+SERIES_TERMS = 500
 # Coefficients of weight-k forms to q^n have about k*log2(n) bits: bound terms x weight,
 # so that a claim's memory stays in the hundreds of megabytes at most.
 MAX_WORK = 20_000_000
@@ -130,11 +133,16 @@ class Prover:
         self.table = table or AtomTable()
         self.max_terms = max_terms
         self.unit = Fraction(1)
+        self.shift = Fraction(0)  # a power of q divided out of both sides (internal units)
         self._last_table: list[list[Any]] = []
 
     # -- planning -------------------------------------------------------------------
     def precision_needed(self, left: ir.Side, right: ir.Side) -> int:
         """Coefficients a claim will need (used to compute each atom once, large enough)."""
+        if not (left.printed or right.printed):
+            if classify(left, right) is None:
+                return 0
+            left, right = strip_side(left), strip_side(right)
         if left.printed or right.printed:
             need = _prefix_range(left, right)[1] + 2
             weight = _heaviest(left, right)
@@ -151,7 +159,7 @@ class Prover:
     # -- deciding -------------------------------------------------------------------
     def _exponent(self, n: int) -> int | str:
         """An internal exponent as the author wrote it (undoing rescaling and the nome)."""
-        e = Fraction(n) / self.unit
+        e = Fraction(n + self.shift) / self.unit
         return int(e) if e.denominator == 1 else f"{e.numerator}/{e.denominator}"
 
     def _exp(self, n: int) -> str:
@@ -165,9 +173,17 @@ class Prover:
         and its q is the nome q^(nome), so the author's exponent is n / (T * nome).
         """
         self.unit = unit
+        self.shift = Fraction(0)
         try:
             if left.printed or right.printed:
                 return self._prefix(left, right, rel)
+            common = classify(left, right)
+            if common is None:
+                return self._series(left, right, rel)
+            if common:
+                # Both sides are q^c times forms: decide the forms (docs/method.md#products).
+                self.shift = common
+                left, right = strip_side(left), strip_side(right)
             return self._forms(left, right, rel)
         except BudgetExceeded as exc:
             kind = "prefix" if (left.printed or right.printed) else ("equality" if rel == "=" else "inequality")
@@ -429,6 +445,54 @@ class Prover:
             if stop >= self.max_terms:
                 return None
             stop = min(stop * 2, self.max_terms)
+
+    def _series(self, left: ir.Side, right: ir.Side, rel: str) -> Outcome:
+        """Sides with no modular proof, compared coefficient by coefficient (docs/method.md#series-only).
+
+        A difference is a certain refutation (of ``=``; a proof of ``\\neq``); agreement is
+        only evidence, so the verdict is then ``unproven`` with the range compared.
+        """
+        kind = "equality" if rel == "=" else "inequality"
+        # SERIES_TERMS of the author's exponents (internal exponents are T * nome times larger).
+        stop = min(math.ceil(SERIES_TERMS * self.unit) + 1, self.max_terms)
+        a = laurent_to(left.expr, stop, self.table, self.max_terms * 2)
+        b = laurent_to(right.expr, stop, self.table, self.max_terms * 2)
+        start = min(0, a.valuation, b.valuation)
+        n = a.first_difference(b, start, stop)
+        terms = stop - start
+        rng = f"q^{self._exp(start)}..q^{self._exp(stop - 1)}"
+        reason = "no modular proof applies (a product that is no eta quotient, a sum with no modular form, or unequal powers of q)"
+        if n is not None:
+            fd = {"n": self._exponent(n), "left": _frac_str(a[n]), "right": _frac_str(b[n])}
+            msg = f"coefficients of q^{self._exp(n)} differ: left {fd['left']}, right {fd['right']}"
+            table = self._table(a, b, n, start)
+            if rel == "=":
+                return Outcome("refuted", kind, msg, None, "series", None, terms, fd, table=table)
+            return Outcome(
+                "proved",
+                kind,
+                "the sides differ: " + msg,
+                None,
+                "series",
+                None,
+                terms,
+                fd,
+                table=table,
+                relation="!=",
+                certificate=certificate.minimal("series", kind, None, None),
+            )
+        return Outcome(
+            "unproven",
+            kind,
+            f"the sides agree on {rng}; {reason}, so this is evidence, not a proof",
+            None,
+            "series",
+            None,
+            terms,
+            code="series-only",
+            hint="state the claim with eta quotients, or as a printed expansion with + O(q^n), to get a proof",
+            relation=rel if rel == "=" else "!=",
+        )
 
     def _prefix(self, left: ir.Side, right: ir.Side, rel: str) -> Outcome:
         start_hint, stop, exact_range = _prefix_range(left, right)
