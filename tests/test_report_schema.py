@@ -51,6 +51,8 @@ EVERY_KIND = r"""
 \[ \frac{\eta(2\tau)^{24}}{\eta(\tau)^{16}} = \frac{\eta(2\tau)^{24}}{\eta(\tau)^{16}} \]
 %@claim
 \[ p(5n+4) \equiv 0 \pmod 5 \]
+%@claim
+\[ (q;q^5)_\infty \neq (q^4;q^5)_\infty \]
 """
 
 
