@@ -74,7 +74,7 @@ def uses_arithmetic(node: ast.Node, forms: dict[str, Any], matrices: dict[str, A
         return False
     if isinstance(node, ast.Call) and function_kind(node.name, forms, matrices) is not None:
         return True
-    if isinstance(node, ast.BigSum) and node.kind in ("from", "divides"):
+    if isinstance(node, ast.BigSum) and node.kind not in ("at_least", "integers", "pair"):
         return True
     return any(uses_arithmetic(child, forms, matrices) for child in ast.children(node))
 
@@ -129,6 +129,8 @@ def to_arith(
                 raise ArithmeticError_("powers in arithmetic expressions are non-negative integers", node.span)
             return t.Pow(src, base, t.Num(str(node.exponent), node.exponent))
         return t.Pow(src, base, go(node.exponent))
+    if isinstance(node, ast.BigSum) and node.kind not in ("at_least", "from", "divides"):
+        return go(_desugar_range(node, forms, matrices))
     if isinstance(node, ast.BigSum):
         if node.kind == "at_least":
             raise ArithmeticError_(
@@ -141,3 +143,101 @@ def to_arith(
             raise ArithmeticError_("a sum from m = a needs an upper limit", node.span)
         return t.Sum(src, node.kind, node.var, go(node.lower), upper, go(node.body))
     raise ArithmeticError_("this construction has no arithmetic meaning", node.span)
+
+
+# Functions that vanish at 0, at negative and at non-integral arguments (sigma_k(x) = 0 unless x is a
+# positive integer, and the same for Ramanujan's tau): summing them over a longer range adds nothing.
+_VANISHING = frozenset({"sigma", "tau"})
+
+
+def _only_inside_vanishing(node: ast.Node, var: str, forms: dict[str, Any], matrices: dict[str, Any]) -> bool:
+    """Whether every occurrence of ``var`` in ``node`` is inside the argument of sigma_k or tau."""
+    if isinstance(node, ast.Call):
+        kind = function_kind(node.name, forms, matrices)
+        if kind is not None and kind[0] in _VANISHING:
+            return True
+        if node.name == var:
+            return False
+    if isinstance(node, ast.Name):
+        return node.text != var
+    if isinstance(node, ast.Power) and isinstance(node.exponent, ast.Node):
+        if not _only_inside_vanishing(node.exponent, var, forms, matrices):
+            return False
+    return all(_only_inside_vanishing(c, var, forms, matrices) for c in ast.children(node))
+
+
+def _desugar_range(node: ast.BigSum, forms: dict[str, Any], matrices: dict[str, Any]) -> ast.Node:
+    """A sum whose range is written as a condition, as a sum over m = a..b or d | n (docs/method.md#sums-over-z)."""
+    from verifier.elaborate.idiom import substitute
+
+    sp = node.span
+    if node.var not in VARIABLES:
+        # \sum_{a+b=n}: summation letters outside n, m, d, k, l, j, i are renamed to a free one.
+        used = {x.text for x in ast.walk(node) if isinstance(x, ast.Name)} | {node.var2}
+        fresh = next((v for v in "mkjlid" if v not in used), None)
+        if fresh is None:
+            raise ArithmeticError_(f"cannot rename the summation variable {node.var}", node.span)
+        import dataclasses
+
+        node = dataclasses.replace(node, var=fresh, body=substitute(node.body, {node.var: ast.Name(sp, fresh)}))
+
+    def num(v: int) -> ast.Node:
+        return ast.Number(sp, v) if v >= 0 else ast.Neg(sp, ast.Number(sp, -v))
+
+    def plus(a: ast.Node, c: int) -> ast.Node:
+        if c == 0:
+            return a
+        return ast.BinOp(sp, "+" if c > 0 else "-", a, ast.Number(sp, abs(c)))
+
+    body = node.body
+    if node.kind in ("between", "between_closed"):
+        assert node.lower is not None and node.upper is not None
+        inner = 1 if node.kind == "between" else 0
+        lower = constant_lower(node.lower) + inner
+        return ast.BigSum(sp, "from", node.var, num(lower), plus(node.upper, -inner), body)
+    if node.kind == "below":
+        assert node.upper is not None
+        if not _only_inside_vanishing(body, node.var, forms, matrices):
+            raise ArithmeticError_(
+                f"the sum over {node.var} < ... has no lower limit, and its terms need not vanish at {node.var} <= 0",
+                node.span,
+                f"write \\sum_{{0<{node.var}<n}} or \\sum_{{{node.var}=1}}^{{n-1}}",
+            )
+        return ast.BigSum(sp, "from", node.var, num(1), plus(node.upper, -1), body)
+    if node.kind == "divides_parity":
+        # [d odd] = (1 - (-1)^d)/2, [d even] = (1 + (-1)^d)/2, as two divisor sums with signs.
+        sign = ast.Power(sp, ast.Neg(sp, ast.Number(sp, 1)), ast.Name(sp, node.var))
+        op = "-" if node.parity == "odd" else "+"
+        plain = ast.BigSum(sp, "divides", node.var, node.lower, None, body)
+        signed = ast.BigSum(sp, "divides", node.var, node.lower, None, ast.BinOp(sp, "*", sign, body))
+        return ast.BinOp(sp, "/", ast.BinOp(sp, op, plain, signed), ast.Number(sp, 2))
+    if node.kind == "split":
+        assert node.lower is not None and node.upper is not None
+        low = constant_lower(node.lower)
+        other = ast.BinOp(sp, "-", node.upper, ast.Name(sp, node.var))
+        return ast.BigSum(sp, "from", node.var, num(low), plus(node.upper, -low), substitute(body, {node.var2: other}))
+    if node.kind == "linear":
+        assert node.upper is not None
+        c1, c2 = node.coefficients
+        if not _only_inside_vanishing(body, node.var2, forms, matrices):
+            raise ArithmeticError_(
+                f"{node.var2} is used outside sigma_k(...) or tau(...), so the range of the sum is not determined",
+                node.span,
+                "write the convolution with explicit limits, \\sum_{m=1}^{n-1}",
+            )
+        rest = ast.BinOp(sp, "-", node.upper, ast.BinOp(sp, "*", ast.Number(sp, c1), ast.Name(sp, node.var)))
+        other = rest if c2 == 1 else ast.BinOp(sp, "/", rest, ast.Number(sp, c2))
+        return ast.BigSum(sp, "from", node.var, num(1), node.upper, substitute(body, {node.var2: other}))
+    raise ArithmeticError_(
+        "a sum over the integers or a double sum is a q-series, not an arithmetic expression",
+        node.span,
+        "put q^{...} in its body and compare it with a form",
+    )
+
+
+def constant_lower(node: ast.Node) -> int:
+    """The integer lower limit of a range written as a condition."""
+    value = ast.constant_value(node)
+    if value is None or value.denominator != 1:
+        raise ArithmeticError_("the limit of this range must be an integer", node.span)
+    return int(value)

@@ -105,8 +105,10 @@ def _exponent_node(e: Fraction | ast.Node, span: ast.Span) -> ast.Node:
     if isinstance(e, Fraction):
         if e.denominator == 1 and e >= 0:
             return ast.Number(span, int(e))
-        return ast.BinOp(span, "/", ast.Number(span, abs(e.numerator)), ast.Number(span, e.denominator)) if e > 0 else (
-            ast.Neg(span, ast.BinOp(span, "/", ast.Number(span, -e.numerator), ast.Number(span, e.denominator)))
+        return (
+            ast.BinOp(span, "/", ast.Number(span, abs(e.numerator)), ast.Number(span, e.denominator))
+            if e > 0
+            else (ast.Neg(span, ast.BinOp(span, "/", ast.Number(span, -e.numerator), ast.Number(span, e.denominator))))
         )
     return e
 
@@ -297,14 +299,14 @@ class ProductReader:
                 "write each factor as (1-q^{Mn+a}) or (1+q^{Mn+a}), or use (q^a;q^M)_\\infty",
                 node,
             )
-        sign, e = found
-        if set(e) - {0, 1}:
+        sign, exps = found
+        if set(exps) - {0, 1}:
             raise _fail(
                 "a factor whose exponent is not linear in the index",
                 "write the factor as (1-q^{Mn+a}) with integers M >= 1 and a",
                 node,
             )
-        step, first_at_0 = e.get(1, Fraction(0)), e.get(0, Fraction(0))
+        step, first_at_0 = exps.get(1, Fraction(0)), exps.get(0, Fraction(0))
         if step.denominator != 1 or first_at_0.denominator != 1:
             raise _fail("a factor with a fractional exponent", "write q^{Mn+a} with integers M and a", node)
         if step <= 0:
@@ -314,7 +316,9 @@ class ProductReader:
                 node,
             )
         first = int(step) * lower + int(first_at_0)
-        self._progression(out, first, int(step), sign, power, None if stop is None else int(step) * stop + int(first_at_0), node)
+        self._progression(
+            out, first, int(step), sign, power, None if stop is None else int(step) * stop + int(first_at_0), node
+        )
 
     def _progression(
         self, out: ExponentFunction, first: int, step: int, sign: int, power: int, stop: int | None, node: ast.Node
@@ -329,7 +333,9 @@ class ProductReader:
             )
         if first == 0:
             if sign > 0:
-                raise _fail("a product with the factor 1 - q^0 = 0", "start the index where the exponent is positive", node)
+                raise _fail(
+                    "a product with the factor 1 - q^0 = 0", "start the index where the exponent is positive", node
+                )
             out.constant *= Fraction(2) ** power
             first += step
             if stop is not None and stop <= first:
@@ -456,7 +462,7 @@ def triple_product(alpha: Fraction, beta: Fraction, sign: int) -> tuple[Exponent
     # n -> n + k: alpha n^2 + (beta + 2 alpha k) n + (alpha k^2 + beta k), sign^k.
     beta2 = beta + 2 * alpha * k
     gamma = alpha * k * k + beta * k
-    c = sign**abs(k)
+    c = sign ** abs(k)
     t = 1
     for x in (alpha + beta2, alpha - beta2):
         t = t * x.denominator // math.gcd(t, x.denominator)
@@ -540,7 +546,7 @@ class SumReader:
             if len(found) != 1:
                 raise _fail(
                     "a sum over Z without a single factor q^{E(n)}",
-                    "write \\sum_{n\\in\\mathbb Z} (-1)^n q^{n(3n-1)/2} or \\sum_{n\\in\\mathbb Z} w(n) q^{a n^2 + b n}",
+                    "write \\sum_{n\\in\\mathbb Z} (-1)^n q^{n(3n-1)/2}, or w(n) q^{a n^2 + b n} as the summand",
                     node,
                 )
         elif not found or set(found[0][1]) <= {0, 1}:
@@ -628,7 +634,9 @@ class SumReader:
             other = _fresh(node.body, {node.var})[0]
             body = [*factors[:k], *[x for x in num if x is not qn[0]], *factors[k + 1 :]]
             span = node.span
-            qnm = ast.Power(span, ast.Name(span, "q"), ast.BinOp(span, "*", ast.Name(span, node.var), ast.Name(span, other)))
+            qnm = ast.Power(
+                span, ast.Name(span, "q"), ast.BinOp(span, "*", ast.Name(span, node.var), ast.Name(span, other))
+            )
             return ast.BigSum(span, "pair", node.var, node.lower, None, _product_of([*body, qnm], span), other)
         return None
 
@@ -658,12 +666,14 @@ class SumReader:
         n_total = ast.Name(span, total)
         d = ast.Name(span, divisor)
         weights = [f for f in factors if f is not qf]
-        body = substitute(
-            _product_of(weights, span), {node.var: d, node.var2: ast.BinOp(span, "/", n_total, d)}
-        )
+        body = substitute(_product_of(weights, span), {node.var: d, node.var2: ast.BinOp(span, "/", n_total, d)})
         inner = ast.BigSum(span, "divides", divisor, n_total, None, body)
         outer = ast.BigSum(
-            span, "at_least", total, ast.Number(span, 1), None,
+            span,
+            "at_least",
+            total,
+            ast.Number(span, 1),
+            None,
             ast.BinOp(span, "*", inner, ast.Power(span, ast.Name(span, "q"), n_total)),
         )
         result: ir.Expr = self.elaborator.generating_sum(outer, self.text)

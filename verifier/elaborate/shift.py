@@ -11,6 +11,7 @@ from __future__ import annotations
 
 import dataclasses
 from fractions import Fraction
+from typing import Any
 
 from verifier.elaborate import ir
 from verifier.forms.registry import SERIES_ONLY
@@ -78,7 +79,7 @@ def strip(expr: ir.Expr) -> ir.Expr:
     if isinstance(expr, ir.Shift):
         assert expr.base is not None
         return strip(expr.base)
-    changes = {}
+    changes: dict[str, Any] = {}
     for name in ("left", "right", "base"):
         child = getattr(expr, name, None)
         if isinstance(child, ir.Expr):

@@ -241,8 +241,18 @@ def _tok_span(tok: Any) -> ast.Span:
 
 
 def _normal_arg(arg: str) -> str:
+    """``(\\tau)``, ``(z)``, ``(w)``, ``(q)`` -> ``"tau"`` (``"z"``, ``"q"`` kept for messages);
+    ``(2z)``, ``(q^2)`` -> ``"2tau"``; ``(\\tau/2)``, ``(\\frac{\\tau}{2})`` -> ``"tau/2"``."""
     inner = arg.strip()[1:-1].replace(" ", "").replace("\\tau", "tau")
-    return inner
+    if inner in ("z", "w"):
+        return "z"
+    m = re.fullmatch(r"q\^\{?(\d+)\}?", inner)
+    if m:
+        return f"{m.group(1)}tau"
+    m = re.fullmatch(r"\\[dt]?frac\{(\d*)(?:tau|z|w)\}\{(\d+)\}", inner)
+    if m:
+        return f"{m.group(1)}tau/{m.group(2)}"
+    return re.sub(r"(?<![a-z])[zw](?![a-z])", "tau", inner)
 
 
 def _make_transformer() -> Any:
@@ -446,7 +456,8 @@ def _make_transformer() -> Any:
             return ("divides_parity", str(var), target, None, "", word)
 
         def index_split(self, meta: Any, items: list[Any]) -> tuple[Any, ...]:
-            a, b, total, c, d, _, low = items[1:]
+            a, b, total, c, d = (t for t in items if getattr(t, "type", "") == "NAME")
+            low = items[-1]
             if {str(a), str(b)} != {str(c), str(d)}:
                 raise _BadNumber(
                     "the range must name the two summation variables",

@@ -461,7 +461,10 @@ class Prover:
         n = a.first_difference(b, start, stop)
         terms = stop - start
         rng = f"q^{self._exp(start)}..q^{self._exp(stop - 1)}"
-        reason = "no modular proof applies (a product that is no eta quotient, a sum with no modular form, or unequal powers of q)"
+        reason = (
+            "no modular proof applies (a product that is no eta quotient, a sum with no modular form, "
+            "or unequal powers of q)"
+        )
         if n is not None:
             fd = {"n": self._exponent(n), "left": _frac_str(a[n]), "right": _frac_str(b[n])}
             msg = f"coefficients of q^{self._exp(n)} differ: left {fd['left']}, right {fd['right']}"
