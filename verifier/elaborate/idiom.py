@@ -536,6 +536,13 @@ class SumReader:
     def read(self, node: ast.BigSum, src: str) -> ir.Expr | None:
         if node.kind == "pair":
             return self._double(node, src)
+        for inner in ast.walk(node.body):
+            if isinstance(inner, ast.Pochhammer) and inner.length is not None and mentions(inner.length, node.var):
+                raise _fail(
+                    "a sum whose terms contain a finite q-Pochhammer symbol (a;q)_n of symbolic length",
+                    "state the product side of the identity, or the sum as a printed expansion + O(q^N)",
+                    inner,
+                )
         lambert = self._lambert(node)
         if lambert is not None:
             return self._double(lambert, src)

@@ -352,8 +352,12 @@ def _make_transformer() -> Any:
         def frac(self, meta: Any, items: list[Any]) -> ast.BinOp:
             return self._bin("/", meta, items[-2], items[-1])
 
-        def pow(self, meta: Any, items: list[Any]) -> ast.Power:
-            return ast.Power(_span(meta), items[0], items[1])
+        def pow(self, meta: Any, items: list[Any]) -> ast.Node:
+            base = items[0]
+            if isinstance(base, ast.BinOp) and base.span in self.name_poch:
+                # q(q;q)_\infty^{24}: the power belongs to the symbol, as it is typeset.
+                return ast.BinOp(_span(meta), "*", base.left, ast.Power(_span(meta), base.right, items[1]))
+            return ast.Power(_span(meta), base, items[1])
 
         def pow_arg(self, meta: Any, items: list[Any]) -> ast.Node:
             # E_4^2(\tau): the argument belongs to the base, the power to the value.
@@ -410,6 +414,14 @@ def _make_transformer() -> Any:
         def pochhammer(self, meta: Any, items: list[Any]) -> ast.Pochhammer:
             *bases, nome, length = items
             return ast.Pochhammer(_span(meta), tuple(bases), nome, length)
+
+        def name_pochhammer(self, meta: Any, items: list[Any]) -> ast.BinOp:
+            # q(q;q)_\infty: a name before a q-Pochhammer symbol multiplies it.
+            node = ast.BinOp(_span(meta), "*", ast.Name(_tok_span(items[0]), str(items[0])), items[1])
+            self.name_poch.add(node.span)
+            return node
+
+        name_poch: set[ast.Span]
 
         def poch_infinite(self, meta: Any, items: list[Any]) -> None:
             return None
@@ -567,6 +579,7 @@ class _ToAst:
     def __init__(self, text: str) -> None:
         self._impl = _transformer_class()()
         self._impl.text = text
+        self._impl.name_poch = set()
 
     def transform(self, tree: Any) -> Any:
         return self._impl.transform(tree)

@@ -180,10 +180,9 @@ class Prover:
             common = classify(left, right)
             if common is None:
                 return self._series(left, right, rel)
-            if common:
-                # Both sides are q^c times forms: decide the forms (docs/method.md#products).
-                self.shift = common
-                left, right = strip_side(left), strip_side(right)
+            # Both sides are q^c times forms: decide the forms (docs/method.md#products).
+            self.shift = common
+            left, right = strip_side(left), strip_side(right)
             return self._forms(left, right, rel)
         except BudgetExceeded as exc:
             kind = "prefix" if (left.printed or right.printed) else ("equality" if rel == "=" else "inequality")

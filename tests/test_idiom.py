@@ -1,0 +1,353 @@
+"""The q-series idiom: infinite products, q-Pochhammer symbols, sums over Z, Lambert and
+double sums, ranges written as conditions, and the author's variable.
+
+Every expected verdict comes from an independent brute-force expansion written here with
+plain Python integers (no qreferee code): products are multiplied out factor by factor and
+sums over Z are summed term by term, to N coefficients.  A true identity must come out
+``proved`` (when it is an identity of eta quotients) or ``unproven`` (series with no modular
+proof), never ``refuted``; a false one must be ``refuted`` at the first exponent where the
+brute force sees the difference.  The classical identities checked are Euler's pentagonal
+number theorem (Andrews, *The Theory of Partitions*, Cor. 1.7), Jacobi's triple product
+(Andrews, Thm 2.8) in Gauss's special cases phi(q), phi(-q), psi(q) (Berndt, *Ramanujan's
+Notebooks III*, Ch. 16, Entries 22), Euler's odd/distinct parts theorem (Andrews, Cor. 1.2),
+Jacobi's identity for f_1^3 (Berndt, Entry 24(ii)) and the Lambert series of sigma
+(Apostol, *Introduction to Analytic Number Theory*, Ch. 11 exercises, from memory).
+"""
+
+from __future__ import annotations
+
+from collections.abc import Callable
+from pathlib import Path
+
+import pytest
+from sympy import divisor_sigma
+from verifier import check_path, check_text
+
+N = 60
+Series = list[int]
+
+
+# -- brute force (independent of qreferee) ---------------------------------------------
+def product(factors: Callable[[int], int], n: int = N) -> Series:
+    """prod_{k>=1} (1 - q^k)^{e(k)} by multiplying out, exponent function e."""
+    a = [1] + [0] * (n - 1)
+    for k in range(1, n):
+        e = factors(k)
+        for _ in range(abs(e)):
+            if e > 0:
+                a = [a[i] - (a[i - k] if i >= k else 0) for i in range(n)]
+            else:
+                for i in range(k, n):
+                    a[i] += a[i - k]
+    return a
+
+
+def plus_product(exponents: list[int], power: int = 1, n: int = N) -> Series:
+    """prod over the listed exponents of (1 + q^e)^power, multiplied out."""
+    a = [1] + [0] * (n - 1)
+    for e in exponents:
+        for _ in range(power):
+            a = [a[i] + (a[i - e] if i >= e else 0) for i in range(n)]
+    return a
+
+
+def z_sum(weight: Callable[[int], int], exponent: Callable[[int], int], n: int = N, lower: int | None = None) -> Series:
+    a = [0] * n
+    for k in range(-4 * n if lower is None else lower, 4 * n):
+        e = exponent(k)
+        if 0 <= e < n:
+            a[e] += weight(k)
+    return a
+
+
+def f(k: int) -> Series:
+    """f_k = (q^k; q^k)_infinity."""
+    return product(lambda m: 1 if m % k == 0 else 0)
+
+
+def mul(*ss: Series) -> Series:
+    out = [1] + [0] * (N - 1)
+    for s in ss:
+        out = [sum(out[j] * s[i - j] for j in range(i + 1)) for i in range(N)]
+    return out
+
+
+def inv(s: Series) -> Series:
+    out = [0] * N
+    out[0] = 1
+    for i in range(1, N):
+        out[i] = -sum(s[j] * out[i - j] for j in range(1, i + 1))
+    return out
+
+
+def scale(c: int, s: Series) -> Series:
+    return [c * x for x in s]
+
+
+def first_difference(a: Series, b: Series) -> int | None:
+    return next((i for i in range(N) if a[i] != b[i]), None)
+
+
+def verdict_of(text: str) -> tuple[str, object, str | None]:
+    (claim,) = check_text(f"%@claim\n\\[ {text} \\]\n", "c.tex").claims
+    fd = claim.outcome.first_difference
+    return claim.verdict, (fd["n"] if fd else None), claim.outcome.code
+
+
+# (claim, brute-force left, brute-force right, proved when true: an identity of eta quotients)
+CASES: list[tuple[str, Callable[[], Series], Callable[[], Series], bool]] = [
+    # Euler's pentagonal number theorem, three spellings of the sum and of the product.
+    (
+        r"\sum_{n\in\mathbb{Z}} (-1)^n q^{n(3n-1)/2} = \prod_{n=1}^{\infty}(1-q^n)",
+        lambda: z_sum(lambda k: (-1) ** k, lambda k: k * (3 * k - 1) // 2),
+        lambda: f(1),
+        True,
+    ),
+    (
+        r"\sum_{n=-\infty}^{\infty} (-1)^{n} q^{\frac{n(3n+1)}{2}} = (q;q)_\infty",
+        lambda: z_sum(lambda k: (-1) ** k, lambda k: k * (3 * k + 1) // 2),
+        lambda: f(1),
+        True,
+    ),
+    (
+        r"\sum_{n\in\mathbb Z} (-1)^n q^{n(3n-1)} = \prod_{n\ge1}(1-q^{2n})",
+        lambda: z_sum(lambda k: (-1) ** k, lambda k: k * (3 * k - 1)),
+        lambda: f(2),
+        True,
+    ),
+    # Gauss: phi(q), phi(-q), psi(q) (Jacobi triple product).
+    (
+        r"\sum_{n=-\infty}^{\infty} q^{n^2} = \frac{(q^2;q^2)_\infty^5}{(q;q)_\infty^2 (q^4;q^4)_\infty^2}",
+        lambda: z_sum(lambda k: 1, lambda k: k * k),
+        lambda: mul(f(2), f(2), f(2), f(2), f(2), inv(mul(f(1), f(1), f(4), f(4)))),
+        True,
+    ),
+    (
+        r"\sum_{n\in\mathbb{Z}} (-1)^n q^{n^2} = \frac{(q;q)_\infty^2}{(q^2;q^2)_\infty}",
+        lambda: z_sum(lambda k: (-1) ** k, lambda k: k * k),
+        lambda: mul(f(1), f(1), inv(f(2))),
+        True,
+    ),
+    (
+        r"\sum_{n\in\mathbb Z} q^{n(n+1)/2} = 2\frac{(q^2;q^2)_\infty^2}{(q;q)_\infty}",
+        lambda: z_sum(lambda k: 1, lambda k: k * (k + 1) // 2),
+        lambda: scale(2, mul(f(2), f(2), inv(f(1)))),
+        True,
+    ),
+    # Euler: distinct parts = odd parts, in products and Pochhammer symbols.
+    (
+        r"\prod_{n\ge1}(1+q^n) = \prod_{n=1}^{\infty}\frac{1}{1-q^{2n-1}}",
+        lambda: plus_product(list(range(1, N))),
+        lambda: product(lambda k: -1 if k % 2 else 0),
+        True,
+    ),
+    (
+        r"(-q;q)_\infty (q;q^2)_\infty = 1",
+        lambda: mul(plus_product(list(range(1, N))), product(lambda k: 1 if k % 2 else 0)),
+        lambda: [1] + [0] * (N - 1),
+        True,
+    ),
+    (
+        r"(-q;q^2)_\infty = \frac{(q^2;q^2)_\infty^2}{(q;q)_\infty (q^4;q^4)_\infty}",
+        lambda: plus_product(list(range(1, N, 2))),
+        lambda: mul(f(2), f(2), inv(mul(f(1), f(4)))),
+        True,
+    ),
+    (
+        r"(q,q^2,q^3;q^3)_\infty = (q;q)_\infty",
+        lambda: product(lambda k: 1),
+        lambda: f(1),
+        True,
+    ),
+    (
+        r"q\prod_{n\ge1}(1-q^n)^{24} = q\,(q;q)_\infty^{24}",
+        lambda: product(lambda k: 24),
+        lambda: product(lambda k: 24),
+        True,
+    ),
+    # Series with no modular proof: equal, so unproven; and false variants.
+    (
+        r"\prod_{n\ge1}(1-q^{5n-1})(1-q^{5n-4}) = (q;q^5)_\infty (q^4;q^5)_\infty",
+        lambda: product(lambda k: 1 if k % 5 in (1, 4) else 0),
+        lambda: product(lambda k: 1 if k % 5 in (1, 4) else 0),
+        False,
+    ),
+    (
+        r"\sum_{n\ge0} (-1)^n (2n+1) q^{n(n+1)/2} = (q;q)_\infty^3",
+        lambda: z_sum(lambda k: (-1) ** k * (2 * k + 1), lambda k: k * (k + 1) // 2, lower=0),
+        lambda: mul(f(1), f(1), f(1)),
+        False,
+    ),
+    (
+        r"\frac{1}{(q;q^5)_\infty(q^4;q^5)_\infty} = \frac{1}{(q^2;q^5)_\infty(q^3;q^5)_\infty}",
+        lambda: product(lambda k: -1 if k % 5 in (1, 4) else 0),
+        lambda: product(lambda k: -1 if k % 5 in (2, 3) else 0),
+        False,
+    ),
+    (
+        r"\sum_{n\in\mathbb{Z}} (-1)^n q^{n(3n+1)} = \prod_{n=1}^{\infty}(1-q^n)",
+        lambda: z_sum(lambda k: (-1) ** k, lambda k: k * (3 * k + 1)),
+        lambda: f(1),
+        True,
+    ),
+    (
+        r"(-q;q^2)_\infty = \frac{(q^2;q^2)_\infty^2}{(q;q)_\infty (q^4;q^4)_\infty^2}",
+        lambda: plus_product(list(range(1, N, 2))),
+        lambda: mul(f(2), f(2), inv(mul(f(1), f(4), f(4)))),
+        True,
+    ),
+    (
+        r"\sum_{n\ge0} (-1)^n (2n+1) q^{n(n+1)/2} = (q;q)_\infty^2",
+        lambda: z_sum(lambda k: (-1) ** k * (2 * k + 1), lambda k: k * (k + 1) // 2, lower=0),
+        lambda: mul(f(1), f(1)),
+        False,
+    ),
+    (
+        r"E_6 = 1 - 504\sum_{n\ge1}\sigma_6(n)q^n",
+        lambda: [1] + [-504 * int(divisor_sigma(n, 5)) for n in range(1, N)],
+        lambda: [1] + [-504 * int(divisor_sigma(n, 6)) for n in range(1, N)],
+        False,
+    ),
+    (
+        r"\sum_{n\ge1} \frac{n q^n}{1-q^n} = \sum_{n\ge1}\sigma(n) q^n",
+        lambda: [0] + [int(divisor_sigma(n, 1)) for n in range(1, N)],
+        lambda: [0] + [int(divisor_sigma(n, 1)) for n in range(1, N)],
+        True,
+    ),
+    (
+        r"\sum_{n,m\ge1} q^{nm} = \sum_{n\ge1}\sigma_0(n) q^n",
+        lambda: [0] + [int(divisor_sigma(n, 0)) for n in range(1, N)],
+        lambda: [0] + [int(divisor_sigma(n, 0)) for n in range(1, N)],
+        False,
+    ),
+    (
+        r"\sum_{n,m\ge1} q^{nm} = \sum_{n\ge1}\sigma(n) q^n",
+        lambda: [0] + [int(divisor_sigma(n, 0)) for n in range(1, N)],
+        lambda: [0] + [int(divisor_sigma(n, 1)) for n in range(1, N)],
+        False,
+    ),
+]
+
+
+@pytest.mark.parametrize(("text", "left", "right", "modular"), CASES, ids=[c[0][:48] for c in CASES])
+def test_verdict_agrees_with_brute_force(
+    text: str, left: Callable[[], Series], right: Callable[[], Series], modular: bool
+) -> None:
+    verdict, n, code = verdict_of(text)
+    diff = first_difference(left(), right())
+    if diff is None:
+        assert verdict == ("proved" if modular else "unproven"), (verdict, n)
+        if not modular:
+            assert code == "series-only"
+    else:
+        assert verdict == "refuted"
+        assert n == diff
+
+
+def test_e6_with_sigma_6_is_refuted_at_q2() -> None:
+    # -504 sigma_5(2) = -16632 and -504 sigma_6(2) = -32760 (sigma_5(2) = 33, sigma_6(2) = 65; sympy).
+    (claim,) = check_text("%@claim\n\\[ E_6 = 1 - 504\\sum_{n\\ge1}\\sigma_6(n)q^n \\]\n", "c.tex").claims
+    assert claim.verdict == "refuted"
+    fd = claim.outcome.first_difference
+    assert fd is not None
+    assert (fd["n"], fd["left"], fd["right"]) == (2, "-16632", "-32760")
+    assert -504 * int(divisor_sigma(2, 5)) == -16632 and -504 * int(divisor_sigma(2, 6)) == -32760
+
+
+@pytest.mark.parametrize(
+    ("text", "construct"),
+    [
+        (r"\prod_{n\ge1}(1-q^n)^{n} = 1", "non-periodic exponent"),
+        (r"\sum_{n\ge0} \frac{q^{n^2}}{(q;q)_n} = \frac{1}{(q;q^5)_\infty(q^4;q^5)_\infty}", "symbolic length"),
+        (r"\prod_{n\ge1}(1-q^{n^2}) = 1", "not linear"),
+        (r"(q;q^{1/2})_\infty = 1", "base is not q^M"),
+        (r"\sum_{n\in\mathbb Z} q^{n} = 1", "quadratic"),
+    ],
+)
+def test_constructs_not_read_are_named(text: str, construct: str) -> None:
+    (claim,) = check_text(f"%@claim\n\\[ {text} \\]\n", "c.tex").claims
+    assert claim.verdict == "error"
+    assert claim.outcome.code == "unsupported-notation"
+    assert construct in claim.outcome.message
+    assert claim.outcome.hint
+
+
+@pytest.mark.parametrize(
+    ("text", "verdict"),
+    [
+        # Ramanujan's convolution sum_{m<n} sigma(m) sigma(n-m) = (5 sigma_3 + (1-6n) sigma)/12
+        # (Ramanujan 1916, from memory), with its range written four ways.
+        (r"\sum_{0<m<n} \sigma(m)\sigma(n-m) = \frac{5\sigma_3(n) + (1-6n)\sigma(n)}{12}", "proved"),
+        (r"\sum_{m<n} \sigma(m)\sigma(n-m) = \frac{5\sigma_3(n) + (1-6n)\sigma(n)}{12}", "proved"),
+        (r"\sum_{\substack{a+b=n\\ a,b\ge1}} \sigma(a)\sigma(b) = \frac{5\sigma_3(n) + (1-6n)\sigma(n)}{12}", "proved"),
+        (r"\sum_{1\le m\le n-1} \sigma(m)\sigma(n-m) = \frac{5\sigma_3(n) + (1-6n)\sigma(n)}{12}", "proved"),
+        (r"\sum_{0<m<n} \sigma(m)\sigma(n-m) = \frac{5\sigma_3(n) + (1-7n)\sigma(n)}{12}", "refuted"),
+        # The odd divisors: sigma(n) - 2 sigma(n/2) (common practice).
+        (r"\sum_{d\mid n,\ d \text{ odd}} d = \sigma(n) - 2\sigma(n/2)", "proved"),
+        (r"\sum_{d\mid n,\ d \text{ even}} d = 2\sigma(n/2)", "proved"),
+        (r"\sum_{d\mid n,\ d \text{ odd}} d = \sigma(n) - \sigma(n/2)", "refuted"),
+    ],
+)
+def test_ranges_written_as_conditions(text: str, verdict: str) -> None:
+    assert verdict_of(text)[0] == verdict
+
+
+def test_convolution_with_linear_condition_matches_brute_force() -> None:
+    # sum_{m + 2l = n, m, l >= 1} sigma(m) sigma(l), computed directly with sympy.
+    def brute(n: int) -> int:
+        return sum(int(divisor_sigma(m, 1) * divisor_sigma((n - m) // 2, 1)) for m in range(1, n) if (n - m) % 2 == 0)
+
+    claim_true = r"\sum_{m+2l=n} \sigma(m)\sigma(l) = \sum_{m+2l=n} \sigma(l)\sigma(m)"
+    assert verdict_of(claim_true)[0] in ("proved", "unproven")
+    wrong = r"\sum_{m+2l=n} \sigma(m)\sigma(l) = \sum_{0<m<n}\sigma(m)\sigma(n-m)"
+    verdict, n, _ = verdict_of(wrong)
+    full = [sum(int(divisor_sigma(m, 1) * divisor_sigma(k - m, 1)) for m in range(1, k)) for k in range(1, 30)]
+    first = next(k for k in range(1, 30) if brute(k) != full[k - 1])
+    assert verdict == "refuted" and n == first
+
+
+@pytest.mark.parametrize(
+    "text",
+    [
+        r"\eta^{14}(q^4) = \eta(4z)^{14}",
+        r"E_4^2(z) = E_8(w)",
+        r"\eta\left(\frac{\tau}{2}\right)^{2} = \eta(\tau/2)^2",
+        r"E_4(q^2) = E_4(2w)",
+        r"E_4^{3}(w) - E_6^{2}(w) = 1728\Delta(w)",
+        # eta(2 tau)^2 = q^{1/6} f_2^2 (definition of eta; docs/method.md#eta-offset).
+        r"\eta(q^2)^{2} = q^{1/6}(q^2;q^2)_\infty^{2}",
+    ],
+)
+def test_the_authors_variable(text: str) -> None:
+    assert verdict_of(text)[0] == "proved"
+
+
+def test_wrong_power_of_q_in_front_is_refuted() -> None:
+    # eta(2 tau)^2 starts at q^{1/6}, not q^{1/12} (definition of eta).
+    verdict, n, _ = verdict_of(r"\eta(2z)^{2} = q^{1/12}(q^2;q^2)_\infty^{2}")
+    assert verdict == "refuted" and n == "1/12"
+
+
+def test_macro_house_style_for_pochhammer() -> None:
+    text = (
+        "\\newcommand{\\qp}[2]{(#1;#2)_\\infty}\n%@claim\n"
+        "\\[ \\prod_{n\\ge1}(1+q^n) = \\frac{\\qp{q^2}{q^2}}{\\qp{q}{q}} \\]\n"
+    )
+    (claim,) = check_text(text, "m.tex").claims
+    assert claim.verdict == "proved"
+
+
+CORPUS = Path(__file__).parent / "data" / "idiom"
+
+
+def test_corpus_has_no_wrong_verdict() -> None:
+    # Every claim of the small corpus is decided, unproven (series only) or an honest error;
+    # the false variants (after the "false variants" marker) are never proved.
+    for path in sorted(CORPUS.iterdir()):
+        report = check_path(path)
+        text = path.read_text(encoding="utf-8")
+        marker = text.lower().find("false variants")
+        for claim in report.claims:
+            if marker >= 0 and claim.location.line > text[:marker].count("\n") + 1:
+                assert claim.verdict != "proved", (path.name, claim.location.line)
+            assert claim.outcome.code != "internal", (path.name, claim.location.line)
