@@ -1238,6 +1238,47 @@ def section_progression(quick: bool) -> bool:
             f"{fmt_ratio(t_ours / t_base):>9}",
             flush=True,
         )
+
+
+# ---------------------------------------------------------------------------------
+# Section 9: how much of the test manuscripts is read and decided
+# ---------------------------------------------------------------------------------
+
+
+def section_reading() -> bool:
+    """Claims decided (proved or refuted) against those left unproven or in error, per manuscript."""
+    from verifier.api import check_path
+
+    print("\n== 9. reading: claims decided (proved or refuted) in the test manuscripts ==")
+    files = sorted(
+        p
+        for folder in ("manuscripts", "idiom")
+        for p in (_REPO / "tests" / "data" / folder).glob("*")
+        if p.suffix in (".tex", ".md")
+    )
+    header = f"{'manuscript':<28}{'claims':>7}{'proved':>8}{'refuted':>9}{'unproven':>10}{'error':>7}{'decided':>9}"
+    print(header)
+    print("-" * len(header))
+    total: dict[str, int] = {"proved": 0, "refuted": 0, "unproven": 0, "error": 0}
+    for path in files:
+        counts = {v: 0 for v in total}
+        for claim in check_path(path).claims:
+            counts[claim.verdict] += 1
+        n = sum(counts.values())
+        for v in total:
+            total[v] += counts[v]
+        share = (counts["proved"] + counts["refuted"]) / n if n else 0.0
+        print(
+            f"{path.parent.name + '/' + path.name:<28}{n:>7}{counts['proved']:>8}{counts['refuted']:>9}"
+            f"{counts['unproven']:>10}{counts['error']:>7}{share:>9.0%}"
+        )
+    n = sum(total.values())
+    share = (total["proved"] + total["refuted"]) / n if n else 0.0
+    print(
+        f"{'all':<28}{n:>7}{total['proved']:>8}{total['refuted']:>9}{total['unproven']:>10}{total['error']:>7}"
+        f"{share:>9.0%}",
+        flush=True,
+    )
     return True
 
 
@@ -1259,7 +1300,8 @@ def main(argv: list[str] | None = None) -> int:
     ap.add_argument(
         "--skip",
         default="",
-        help="comma-separated sections to skip: engine, scan, pipeline, level, recheck, processes, lsp, progression",
+        help="comma-separated sections to skip: engine, scan, pipeline, level, recheck, processes, lsp, progression, "
+        "reading",
     )
     args = ap.parse_args(argv)
     quick = args.quick
@@ -1279,6 +1321,7 @@ def main(argv: list[str] | None = None) -> int:
         ("processes", lambda: section_processes(quick)),
         ("lsp", lambda: section_lsp(300)),
         ("progression", lambda: section_progression(quick)),
+        ("reading", section_reading),
     ]
     for name, run in sections:
         if name in skip:
