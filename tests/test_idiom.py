@@ -351,3 +351,31 @@ def test_corpus_has_no_wrong_verdict() -> None:
             if marker >= 0 and claim.location.line > text[:marker].count("\n") + 1:
                 assert claim.verdict != "proved", (path.name, claim.location.line)
             assert claim.outcome.code != "internal", (path.name, claim.location.line)
+
+
+@pytest.mark.parametrize(
+    ("text", "verdict"),
+    [
+        # E_4 = 1 + 240 sum sigma_3(n) q^n (Serre, A Course in Arithmetic, VII.4) with q = e^{2 pi i z}.
+        (r"E_4(z) = 1 + 240\sum_{n\ge1}\sigma_3(n) e^{2\pi i n z}", "proved"),
+        # eta = q^{1/24} prod (1 - q^n) (definition), prefactor e^{pi i tau/12} = q^{1/24}.
+        (r"\eta(\tau) = e^{\pi i\tau/12}\prod_{n\ge1}(1-e^{2\pi i n\tau})", "proved"),
+        (r"\eta(\tau)\exp(-\pi i\tau/12) = \prod_{n=1}^{\infty}(1-\exp(2\pi i n\tau))", "proved"),
+        # Delta = q prod (1 - q^n)^24 (Jacobi; Serre VII.4.4), and a wrong prefactor.
+        (r"\Delta(z) = e^{2\pi i z}\prod_{n\ge1}(1-e^{2\pi i n z})^{24}", "proved"),
+        (r"\Delta(z) = e^{\pi i z}\prod_{n\ge1}(1-e^{2\pi i n z})^{24}", "refuted"),
+    ],
+)
+def test_exponentials_are_powers_of_q(text: str, verdict: str) -> None:
+    assert verdict_of(text)[0] == verdict
+
+
+def test_another_letter_for_q_is_read_and_said() -> None:
+    # theta = prod (1 - q^{2n})(1 + q^{2n-1})^2 (Jacobi triple product, Andrews Thm 2.8), written in x.
+    text = "%@claim\n\\[ \\sum_{n\\in\\mathbb Z} x^{n^2} = \\prod_{n\\ge1}(1-x^{2n})(1+x^{2n-1})^2 \\]\n"
+    (claim,) = check_text(text, "x.tex").claims
+    assert claim.verdict == "proved"
+    assert "x read as q" in (claim.reading or "")
+    wrong = text.replace(")^2 \\]", ") \\]")
+    (claim,) = check_text(wrong, "x.tex").claims
+    assert claim.verdict == "refuted"

@@ -29,6 +29,7 @@ from verifier.config import DEFAULT_FAIL_ON
 from verifier.diagnostics import Diagnostic
 from verifier.elaborate import ir
 from verifier.elaborate.elaborator import Elaborator, Problem, is_builtin, normal_name
+from verifier.elaborate.idiom import nome_letter, substitute
 from verifier.elaborate.rescale import rescale_factor, rescale_side
 from verifier.forms import registry
 from verifier.forms.characters import parse_character
@@ -669,6 +670,10 @@ def _claim(
     if modulus is not None and rel == "=":
         rel = "≡"
     forms, matrices = elaborator.definitions, elaborator.matrices
+    # A claim written in another letter for q (\prod (1 - x^n)) is read with that letter as q.
+    letter = nome_letter((left_node, right_node), set(forms) | set(matrices))
+    if letter is not None:
+        left_node, right_node = (substitute(n, {letter: ast.Name(n.span, "q")}) for n in (left_node, right_node))
     progression = _progression_claim(left_node, right_node, rel, text, elaborator, modulus, start_n)
     if progression is not None:
         kind = "congruence" if modulus is not None else ("equality" if progression[1] else "arithmetic")
@@ -737,6 +742,8 @@ def _claim(
     )
     if redefined:
         result.reading += " [" + "; ".join(redefined) + "]"
+    if letter is not None:
+        result.reading += f" (with {letter} read as q)"
     make_build = _side_builder(elaborator, text, nome)
 
     def suggest(prover: Prover) -> str | None:

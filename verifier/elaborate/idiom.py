@@ -689,3 +689,36 @@ class SumReader:
 
 def _is_q_power(node: ast.Node) -> bool:
     return isinstance(node, ast.Power) and isinstance(node.base, ast.Name) and node.base.text == "q"
+
+
+_NOT_A_NOME = frozenset("qnmdkljiepz")
+
+
+def nome_letter(sides: tuple[ast.Node, ...], defined: set[str]) -> str | None:
+    """The letter an author uses for q in a claim that never writes q (``\\prod (1 - x^n)``), or None.
+
+    It must be a single letter that is never a summation index, never has an argument or is
+    applied to one, is not a defined name, and is the base of a power somewhere; it must
+    also be the only such letter.
+    """
+    names: set[str] = set()
+    bases: set[str] = set()
+    bad: set[str] = set(defined)
+    for side in sides:
+        for node in ast.walk(side):
+            if isinstance(node, ast.Name):
+                names.add(node.text)
+                if node.arg is not None:
+                    bad.add(node.text)
+            elif isinstance(node, ast.Call):
+                bad.add(node.name)
+            elif isinstance(node, ast.BigSum | ast.BigProd):
+                bad |= {node.var, getattr(node, "var2", "")}
+            if isinstance(node, ast.Power) and isinstance(node.base, ast.Name):
+                bases.add(node.base.text)
+            if isinstance(node, ast.Power) and isinstance(node.exponent, ast.Node):
+                bad |= {n.text for n in ast.walk(node.exponent) if isinstance(n, ast.Name)}
+    if "q" in names:
+        return None
+    found = {x for x in bases if len(x) == 1 and x.isalpha() and x.islower() and x not in _NOT_A_NOME and x not in bad}
+    return next(iter(found)) if len(found) == 1 else None

@@ -255,6 +255,64 @@ def _normal_arg(arg: str) -> str:
     return re.sub(r"(?<![a-z])[zw](?![a-z])", "tau", inner)
 
 
+_TAU_NAMES = frozenset({"\\tau", "z", "w"})
+
+
+def _nome_exponent(node: ast.Node) -> ast.Node | Fraction | None:
+    """The exponent of q in ``e^{2 pi i X tau}`` (``\\exp(...)``): X, or None if ``node`` is not of that form.
+
+    ``node`` must be a product of rational constants, one ``\\pi``, one ``i``, one of
+    \\tau, z, w, and optionally other letters (a summation variable), possibly divided by a
+    constant and negated: e^{2 pi i n z} is q^n, e^{pi i tau/12} is q^{1/24}.
+    """
+    sign = 1
+    while isinstance(node, ast.Neg):
+        sign, node = -sign, node.operand
+    scale = Fraction(sign)
+    if isinstance(node, ast.BinOp) and node.op == "/":
+        den = ast.constant_value(node.right) if not isinstance(node.right, ast.Name) else None
+        if not den:
+            return None
+        scale /= den
+        node = node.left
+    factors: list[ast.Node] = []
+    stack = [node]
+    while stack:
+        x = stack.pop()
+        if isinstance(x, ast.BinOp) and x.op == "*":
+            stack += [x.right, x.left]
+        else:
+            factors.append(x)
+    names = [f.text for f in factors if isinstance(f, ast.Name)]
+    if names.count("\\pi") != 1 or names.count("i") != 1 or sum(names.count(t) for t in _TAU_NAMES) != 1:
+        return None
+    rest: list[ast.Node] = []
+    for f in factors:
+        if isinstance(f, ast.Name) and (f.text in ("\\pi", "i") or f.text in _TAU_NAMES) and f.arg is None:
+            continue
+        value = ast.constant_value(f)
+        if value is not None:
+            scale *= value
+        elif isinstance(f, ast.Name) and f.arg is None and len(f.text) == 1:
+            rest.append(f)
+        else:
+            return None
+    scale /= 2  # e^{2 pi i tau} = q
+    if not rest:
+        return scale
+    out: ast.Node = rest[0]
+    for f in rest[1:]:
+        out = ast.BinOp(out.span, "*", out, f)
+    if scale != 1:
+        c: ast.Node = ast.Number(out.span, abs(scale.numerator))
+        if scale.denominator != 1:
+            c = ast.BinOp(out.span, "/", c, ast.Number(out.span, scale.denominator))
+        out = ast.BinOp(out.span, "*", c, out)
+        if scale < 0:
+            out = ast.Neg(out.span, out)
+    return out
+
+
 def _make_transformer() -> Any:
     from lark import Transformer_NonRecursive, v_args
 
@@ -354,6 +412,11 @@ def _make_transformer() -> Any:
 
         def pow(self, meta: Any, items: list[Any]) -> ast.Node:
             base = items[0]
+            if isinstance(base, ast.Name) and base.text == "e" and isinstance(items[1], ast.Node):
+                # e^{2\\pi i n z} is q^n (the author's variable; docs/method.md#products).
+                exponent = _nome_exponent(items[1])
+                if exponent is not None:
+                    return ast.Power(_span(meta), ast.Name(base.span, "q"), exponent)
             if isinstance(base, ast.BinOp) and base.span in self.name_poch:
                 # q(q;q)_\infty^{24}: the power belongs to the symbol, as it is typeset.
                 return ast.BinOp(_span(meta), "*", base.left, ast.Power(_span(meta), base.right, items[1]))
@@ -369,7 +432,12 @@ def _make_transformer() -> Any:
         def exp_digit(self, meta: Any, items: list[Any]) -> Fraction:
             return Fraction(int(str(items[0])))
 
-        def call(self, meta: Any, items: list[Any]) -> ast.Call:
+        def call(self, meta: Any, items: list[Any]) -> ast.Node:
+            if str(items[0]) == "\\exp":
+                exponent = _nome_exponent(items[1])
+                if exponent is not None:
+                    # \\exp(2\\pi i n\\tau) is q^n.
+                    return ast.Power(_span(meta), ast.Name(_tok_span(items[0]), "q"), exponent)
             return ast.Call(_span(meta), str(items[0]), _tok_span(items[0]), items[1])
 
         def big_sum(self, meta: Any, items: list[Any]) -> ast.BigSum:
