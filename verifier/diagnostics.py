@@ -74,16 +74,12 @@ CODES: dict[str, tuple[str, str]] = {
     "unsupported-notation": (
         "elaborate",
         "The claim is written in a notation qreferee does not read yet; the message names the construct "
-        "and the hint the nearest form that is read. Example: \\prod_{n\\ge1}(1-q^n)^{n} (an infinite product "
-        "with a non-periodic exponent). Fix: give each factor a constant exponent, (1-q^{Mn+a})^{r}, or write "
-        "the product as a q-Pochhammer symbol (q^a;q^M)_\\infty.",
+        "and the hint the nearest form that is read.",
     ),
     "series-only": (
         "prove",
         "The sides are q-series with no modular proof here (a product that is no eta quotient, a weighted sum "
-        "over Z, unequal powers of q); they agree as far as compared, which is evidence, not a proof. "
-        "Example: (q;q^5)_\\infty^{-1}(q^4;q^5)_\\infty^{-1} = \\sum_{n\\ge0} q^{n^2}/(q;q)_n. Fix: none needed if "
-        "evidence suffices; for a proof, restate the claim between eta quotients or as a printed expansion + O(q^N).",
+        "over Z, unequal powers of q); they agree as far as compared, which is evidence, not a proof.",
     ),
     "not-modular": (
         "prove",
@@ -150,6 +146,14 @@ EXAMPLES: dict[str, tuple[str, str]] = {
     "no-witness": (
         "(a claim found to differ where no coefficient could be shown)",
         "nothing to fix in the manuscript; report it, the claim is left undecided",
+    ),
+    "unsupported-notation": (
+        "\\prod_{n\\ge1}(1-q^n)^{n} = ...   (an infinite product with a non-periodic exponent)",
+        "give each factor a constant exponent, (1-q^{Mn+a})^{r}, or write a q-Pochhammer symbol (q^a;q^M)_\\infty",
+    ),
+    "series-only": (
+        "(q;q^5)_\\infty (q^4;q^5)_\\infty = \\prod_{n\\ge1}(1-q^{5n-1})(1-q^{5n-4})   (no eta quotient)",
+        "nothing, if evidence suffices; for a proof, state the claim between eta quotients or as a printed expansion",
     ),
     "internal": ("(a bug in qreferee)", "report it with the claim; the other claims are still checked"),
 }
