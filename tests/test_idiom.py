@@ -379,3 +379,26 @@ def test_another_letter_for_q_is_read_and_said() -> None:
     wrong = text.replace(")^2 \\]", ") \\]")
     (claim,) = check_text(wrong, "x.tex").claims
     assert claim.verdict == "refuted"
+
+
+def test_shorthand_family_f_k() -> None:
+    # f_k = (q^k;q^k)_infinity; phi(q) = f_2^5/(f_1^2 f_4^2) (Berndt, Ramanujan's Notebooks III, Ch. 16, Entry 22).
+    text = (
+        "%@define f_k = (q^k;q^k)_\\infty\n"
+        "%@claim\n\\[ \\sum_{n\\in\\mathbb Z} q^{n^2} = \\frac{f_2^5}{f_1^2 f_4^2} \\]\n"
+        "%@claim\n\\[ \\sum_{n\\in\\mathbb Z} q^{n^2} = \\frac{f_2^5}{f_1^2 f_4} \\]\n"
+    )
+    verdicts = [c.verdict for c in check_text(text, "f.tex").claims]
+    assert verdicts == ["proved", "refuted"]
+    # brute force: the two right sides first differ where f_4 starts to matter, at q^4.
+    right_true = mul(f(2), f(2), f(2), f(2), f(2), inv(mul(f(1), f(1), f(4), f(4))))
+    right_false = mul(f(2), f(2), f(2), f(2), f(2), inv(mul(f(1), f(1), f(4))))
+    assert first_difference(right_true, right_false) == 4
+    assert right_true == z_sum(lambda k: 1, lambda k: k * k)
+
+
+def test_a_family_may_not_redefine_built_in_forms() -> None:
+    text = "%@define E_k = (q^k;q^k)_\\infty\n%@claim\n\\[ E_4^3 - E_6^2 = 1728\\Delta \\]\n"
+    report = check_text(text, "e.tex")
+    assert [c.verdict for c in report.claims] == ["proved"]
+    assert any(d.code == "bad-define" for d in report.diagnostics)

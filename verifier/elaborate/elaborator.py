@@ -62,6 +62,8 @@ class Elaborator:
         self.matrices: dict[str, Any] = {}  # Gram matrices from define tags, by name
         # Definitions read as sums of eta-type products (verifier.claims.products), by name.
         self.products: dict[str, Any] = {}
+        # Families f_k := body(k) from define tags: letter -> (index letter, body, its text).
+        self.families: dict[str, tuple[str, ast.Node, str]] = {}
         # The nome of the claim being elaborated: 1 for q = e^{2 pi i tau}, 1/2 for
         # Jacobi's e^{pi i tau} (tag option nome=).
         self.nome = Fraction(1)
@@ -140,6 +142,22 @@ class Elaborator:
         give a built-in name the author's meaning (docs/method.md#author-definitions).
         """
         name = normal_name(name)
+        family = re.fullmatch(r"([A-Za-z])_([a-z])", name)
+        from verifier.elaborate.idiom import mentions
+
+        if family is not None and mentions(node, family.group(2)):
+            letter = family.group(1)
+            if any(is_builtin(f"{letter}_{k}") for k in (1, 2, 4, 6)):
+                return Problem(
+                    "bad-define",
+                    f"{letter}_k would redefine built-in forms such as {letter}_4",
+                    "choose another letter for the family (f_k for (q^k;q^k)_\\infty)",
+                    node.span,
+                )
+            # f_k = (q^k;q^k)_\infty: a family indexed by its subscript, read when f_3 is used
+            # (docs/method.md#products).
+            self.families[family.group(1)] = (family.group(2), node, text)
+            return None
         if is_builtin(name) and author is None:
             return Problem(
                 "bad-define",
@@ -481,6 +499,16 @@ class Elaborator:
                 + ("" if is_builtin(name) else f", or add %@define {name} = ..."),
                 node,
             )
+        member = re.fullmatch(r"([A-Za-z])_(\d+)", name)
+        if name not in self.definitions and member is not None and member.group(1) in self.families:
+            from verifier.elaborate.idiom import substitute
+
+            index, body, body_text = self.families[member.group(1)]
+            index_value = ast.Number(body.span, int(member.group(2)))
+            try:
+                self.definitions[name] = self.expr(substitute(body, {index: index_value}), body_text)
+            except ElaborationError as exc:
+                raise _err(exc.problem.code, f"{name}: {exc.problem.message}", exc.problem.hint, node) from exc
         if name in self.definitions:
             if scale != 1:
                 raise _err(
