@@ -402,3 +402,8 @@ def test_a_family_may_not_redefine_built_in_forms() -> None:
     report = check_text(text, "e.tex")
     assert [c.verdict for c in report.claims] == ["proved"]
     assert any(d.code == "bad-define" for d in report.diagnostics)
+
+
+def test_the_statement_of_the_variable_is_no_claim() -> None:
+    (claim,) = check_text("%@claim\n\\[ q = e^{2\\pi i \\tau} \\]\n", "q.tex").claims
+    assert claim.verdict == "error" and claim.outcome.code == "unsupported-notation"

@@ -670,6 +670,18 @@ def _claim(
     if modulus is not None and rel == "=":
         rel = "≡"
     forms, matrices = elaborator.definitions, elaborator.matrices
+    if _states_the_nome(left_node, right_node, text.text):
+        return _error(
+            loc,
+            "unsupported-notation",
+            "q = e^{2\\pi i\\tau} states the variable of the expansions; it is qreferee's own convention, not a claim",
+            "remove the tag from this statement (e^{2\\pi i n\\tau} in claims is read as q^n)",
+            source,
+            name,
+            row.label,
+            kind,
+            end,
+        )
     # A claim written in another letter for q (\prod (1 - x^n)) is read with that letter as q.
     letter = nome_letter((left_node, right_node), set(forms) | set(matrices))
     if letter is not None:
@@ -802,6 +814,23 @@ def _range_option(options: dict[str, str]) -> int | None:
     """The first n of the tag option ``for=n \\ge 1``; a range written in the claim wins over it."""
     o = _RANGE_OPTION.match(options.get("for", ""))
     return int(o.group(2)) if o else None
+
+
+def _states_the_nome(left: ast.Node, right: ast.Node, text: str) -> bool:
+    """``q = e^{2 pi i tau}`` (either way round): the author names the variable."""
+    for a, b in ((left, right), (right, left)):
+        written = text[b.span[0] : b.span[1]].lstrip()
+        if (
+            isinstance(a, ast.Name)
+            and a.text == "q"
+            and a.arg is None
+            and written.startswith(("e^", "\\exp"))
+            and isinstance(b, ast.Power)
+            and isinstance(b.base, ast.Name)
+            and b.base.text == "q"
+        ):
+            return True
+    return False
 
 
 def _arithmetic_claim(

@@ -480,7 +480,12 @@ def _make_transformer() -> Any:
             return items[0], (items[1] if len(items) > 1 else None)
 
         def pochhammer(self, meta: Any, items: list[Any]) -> ast.Pochhammer:
-            *bases, nome, length = items
+            sep = next(i for i, x in enumerate(items) if getattr(x, "type", "") == "SEP")
+            if str(items[sep]).strip() != ";":
+                raise _BadNumber(
+                    "a q-Pochhammer symbol is written (a;q)_n", items[sep].start_pos, hint="write (a;q)_\\infty"
+                )
+            bases, nome, length = items[:sep], items[sep + 1], items[sep + 2]
             return ast.Pochhammer(_span(meta), tuple(bases), nome, length)
 
         def name_pochhammer(self, meta: Any, items: list[Any]) -> ast.BinOp:
