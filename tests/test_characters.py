@@ -13,14 +13,8 @@ import math
 
 import pytest
 from sympy.functions.combinatorial.numbers import kronecker_symbol
-from verifier.forms.characters import (
-    TRIVIAL,
-    QuadraticCharacter,
-    is_fundamental_discriminant,
-    kronecker,
-    parse_character,
-    squarefree_kernel,
-)
+from verifier.numbers import TRIVIAL, QuadraticCharacter, is_fundamental_discriminant, kronecker, squarefree_kernel
+from verifier.options import parse_character
 
 PRIMES = [p for p in range(3, 100) if all(p % q for q in range(2, p))]
 

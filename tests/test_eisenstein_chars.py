@@ -7,8 +7,8 @@ from __future__ import annotations
 from fractions import Fraction
 from itertools import product
 
-from verifier.forms.characters import QuadraticCharacter
 from verifier.forms.eisenstein_chars import eisenstein_character_series, generalised_bernoulli, is_defined
+from verifier.numbers import QuadraticCharacter
 from verifier.series.qseries import QSeries
 
 TRIVIAL = QuadraticCharacter(1)

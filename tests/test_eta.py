@@ -19,9 +19,9 @@ from fractions import Fraction
 import mpmath
 import pytest
 import sympy
-from verifier.forms.characters import QuadraticCharacter, kronecker
 from verifier.forms.delta import delta_series
 from verifier.forms.eta import EtaQuotient
+from verifier.numbers import QuadraticCharacter, kronecker
 from verifier.prove.groups import dim_cusp, index_gamma0
 from verifier.series.qseries import QSeries
 

@@ -289,8 +289,8 @@ def test_huge_levels_and_options_end_quickly() -> None:
 
 
 def test_divisors_from_the_factorisation_match_the_definition() -> None:
-    from verifier.prove import groups
+    from verifier import numbers
 
     for n in range(1, 500):
-        assert groups.divisors(n) == [d for d in range(1, n + 1) if n % d == 0]  # the definition
-        assert groups.prime_factors(n) == [p for p in groups.divisors(n) if p > 1 and groups.divisors(p) == [1, p]]
+        assert numbers.divisors(n) == [d for d in range(1, n + 1) if n % d == 0]  # the definition
+        assert numbers.prime_factors(n) == [p for p in numbers.divisors(n) if p > 1 and numbers.divisors(p) == [1, p]]

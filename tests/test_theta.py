@@ -18,9 +18,9 @@ from fractions import Fraction
 import mpmath
 import pytest
 import sympy
-from verifier.forms.characters import QuadraticCharacter
 from verifier.forms.eisenstein import eisenstein_series
 from verifier.forms.theta import QuadraticForm, parse_matrix, sum_of_squares_form
+from verifier.numbers import QuadraticCharacter
 
 # ---------------------------------------------------------------------------
 # Helpers written independently of the module under test

@@ -32,11 +32,10 @@ from verifier.elaborate.elaborator import Elaborator, Problem, is_builtin, norma
 from verifier.elaborate.idiom import nome_letter, substitute
 from verifier.elaborate.rescale import rescale_factor, rescale_side
 from verifier.forms import registry
-from verifier.forms.characters import parse_character
 from verifier.forms.registry import NotModular
 from verifier.limits import TooLarge, allow_exact_values
 from verifier.location import Location
-from verifier.options import parse_group, parse_nome, parse_weight
+from verifier.options import parse_character, parse_group, parse_nome, parse_weight
 from verifier.parallel import map_in_order
 from verifier.parse import ast
 from verifier.parse.grammar import (

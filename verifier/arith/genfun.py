@@ -469,7 +469,7 @@ def _divisor_factor(f: t.A, n: str, d: str, values: Values) -> list[DivMono]:
             for y in _divisor_factor(f.right, n, d, values)
         ]
     if isinstance(f, t.Fun) and f.name == "chi":
-        from verifier.forms.characters import is_fundamental_discriminant
+        from verifier.numbers import is_fundamental_discriminant
 
         assert f.index is not None
         if not is_fundamental_discriminant(f.index):
@@ -496,7 +496,7 @@ def _divisor_factor(f: t.A, n: str, d: str, values: Values) -> list[DivMono]:
 
 def QuadraticCharacterKernel(disc: int) -> int:
     """The kernel of the character (disc / .)."""
-    from verifier.forms.characters import QuadraticCharacter
+    from verifier.numbers import QuadraticCharacter
 
     return int(QuadraticCharacter.from_integer(disc).kernel)
 
@@ -506,8 +506,8 @@ def _character_sum(a: int, b: int, psi: int, phi: int) -> ir.Expr:
 
     See docs/method.md#eisenstein-characters.
     """
-    from verifier.forms.characters import QuadraticCharacter
     from verifier.forms.eisenstein_chars import constant_term, is_defined
+    from verifier.numbers import QuadraticCharacter
 
     if a < b:  # swap the roles of d and n/d
         a, b, psi, phi = b, a, phi, psi

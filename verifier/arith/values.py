@@ -17,8 +17,8 @@ from flint import fmpz
 
 from verifier.arith import terms as t
 from verifier.arith.factor import divisors, factorisation
-from verifier.forms.characters import kronecker
 from verifier.limits import number_text
+from verifier.numbers import kronecker
 
 MAX_VALUE_BITS = 1_000_000
 MAX_SERIES_N = 50_000  # beyond this n, tau, r_s and coefficients need a formula (no series to n)

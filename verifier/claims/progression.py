@@ -29,10 +29,10 @@ from typing import Any
 from flint import fmpz_poly, nmod_poly
 
 from verifier.claims.products import Mono
-from verifier.forms.characters import QuadraticCharacter
 from verifier.forms.delta import euler_product
 from verifier.forms.eta import EtaQuotient
-from verifier.prove.groups import group_name, index_gamma0, prime_factors, sturm_bound
+from verifier.numbers import QuadraticCharacter, prime_factors
+from verifier.prove.groups import group_name, index_gamma0, sturm_bound
 from verifier.prove.outcome import Outcome, Witness, frac_str
 
 DIRECT = 200  # progression terms compared directly before any proof is attempted

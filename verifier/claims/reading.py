@@ -21,8 +21,8 @@ from typing import Any
 
 from verifier.claims.products import Mono, NotProduct, ProductSum, Reader, partition_function
 from verifier.claims.progression import Claim
+from verifier.numbers import prime_factors
 from verifier.parse import ast
-from verifier.prove.groups import prime_factors
 
 
 @dataclass(frozen=True)

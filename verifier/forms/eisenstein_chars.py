@@ -15,7 +15,7 @@ from fractions import Fraction
 
 from flint import fmpq, fmpq_poly
 
-from verifier.forms.characters import QuadraticCharacter
+from verifier.numbers import QuadraticCharacter
 from verifier.series.qseries import QSeries, fmpq_to_fraction
 
 

@@ -27,9 +27,8 @@ from typing import Any
 
 from flint import fmpz_poly
 
-from verifier.forms.characters import QuadraticCharacter
 from verifier.forms.delta import euler_product
-from verifier.prove.groups import prime_factors
+from verifier.numbers import QuadraticCharacter, prime_factors
 from verifier.series.qseries import QSeries
 
 

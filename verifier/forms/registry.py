@@ -168,7 +168,7 @@ def level(key: str, scale: int, params: tuple[Any, ...]) -> int:
     if key == "theta":
         return int(quadratic_form(params).level) * scale
     if key == "Echar":
-        from verifier.forms.characters import QuadraticCharacter
+        from verifier.numbers import QuadraticCharacter
 
         _, psi, phi = params
         return QuadraticCharacter(psi).conductor * QuadraticCharacter(phi).conductor * scale
@@ -177,7 +177,7 @@ def level(key: str, scale: int, params: tuple[Any, ...]) -> int:
 
 def character(key: str, scale: int, params: tuple[Any, ...], at_level: int) -> Any:
     """The character (a :class:`QuadraticCharacter`) at level ``at_level``."""
-    from verifier.forms.characters import QuadraticCharacter
+    from verifier.numbers import QuadraticCharacter
 
     if key == SERIES_ONLY:
         raise NotModular("a q-series with no known modular interpretation (docs/method.md#series-only)")
@@ -223,8 +223,8 @@ def build_series(key: str, params: tuple[Any, ...], prec: int) -> QSeries:
         series: QSeries = quadratic_form(params).series(prec)
         return series
     if key == "Echar":
-        from verifier.forms.characters import QuadraticCharacter
         from verifier.forms.eisenstein_chars import eisenstein_character_series
+        from verifier.numbers import QuadraticCharacter
 
         k, psi, phi = params
         return eisenstein_character_series(k, QuadraticCharacter(psi), QuadraticCharacter(phi), prec)

@@ -55,7 +55,7 @@ from typing import Any
 
 from flint import fmpz_poly
 
-from verifier.forms.characters import QuadraticCharacter
+from verifier.numbers import QuadraticCharacter
 from verifier.series.qseries import QSeries
 
 Matrix = tuple[tuple[int, ...], ...]

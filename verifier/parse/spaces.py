@@ -70,7 +70,7 @@ def parse_space(text: str) -> SpaceSpec | str:
         return f"cannot read the group {group_text!r}"
     character = None
     if len(args) == 2:
-        from verifier.forms.characters import parse_character
+        from verifier.options import parse_character
 
         character = parse_character(args[1].strip())
         if character is None:

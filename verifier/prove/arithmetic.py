@@ -25,8 +25,8 @@ from verifier.arith import terms as t
 from verifier.arith.genfun import Untranslatable, add, const, generating_function
 from verifier.arith.values import NotEvaluable, Values
 from verifier.elaborate import ir
+from verifier.numbers import prime_factors
 from verifier.prove.evaluate import laurent_to
-from verifier.prove.groups import prime_factors
 from verifier.prove.outcome import Witness, differ_modulo
 from verifier.prove.prover import Outcome, Prover, _frac_str
 

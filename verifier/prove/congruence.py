@@ -52,8 +52,8 @@ from typing import Any
 import flint
 from flint import fmpz_mod_poly_ctx
 
-from verifier.forms.characters import QuadraticCharacter
 from verifier.forms.eisenstein import eisenstein_constant, eisenstein_series
+from verifier.numbers import QuadraticCharacter
 from verifier.prove.groups import group_name, sturm_bound
 from verifier.series.qseries import QSeries
 

@@ -21,8 +21,8 @@ from fractions import Fraction
 from typing import Any
 
 from verifier.elaborate import ir
-from verifier.forms.characters import squarefree_kernel
 from verifier.forms.registry import build_series
+from verifier.numbers import squarefree_kernel
 from verifier.series.qseries import QSeries
 
 Key = tuple[Fraction, int, int]  # (total weight, power of E_2, character kernel)

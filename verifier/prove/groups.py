@@ -11,16 +11,7 @@ import math
 from dataclasses import dataclass
 from fractions import Fraction
 
-from verifier.forms.characters import kronecker
-
-
-def prime_factors(n: int) -> list[int]:
-    """The distinct primes dividing n (FLINT's factorisation: a large level never loops to sqrt(n))."""
-    from flint import fmpz
-
-    if n <= 1:
-        return []
-    return sorted(int(p) for p, _ in fmpz(n).factor())
+from verifier.numbers import divisors, euler_phi, kronecker, prime_factors
 
 
 def index_gamma0(n: int) -> int:
@@ -67,28 +58,9 @@ def elliptic_points(n: int) -> tuple[int, int]:
     return e2, e3
 
 
-def divisors(n: int) -> list[int]:
-    """The divisors of n, from its factorisation (never a loop up to n)."""
-    out = [1]
-    for p in prime_factors(n):
-        e, m = 0, n
-        while m % p == 0:
-            m //= p
-            e += 1
-        out = [d * p**k for d in out for k in range(e + 1)]
-    return sorted(out)
-
-
-def _euler_phi(n: int) -> int:
-    phi = n
-    for p in prime_factors(n):
-        phi -= phi // p
-    return phi
-
-
 def cusp_count(n: int) -> int:
     """epsilon_inf(N) = sum_{d | N} phi(gcd(d, N/d))."""
-    return sum(_euler_phi(math.gcd(d, n // d)) for d in divisors(n))
+    return sum(euler_phi(math.gcd(d, n // d)) for d in divisors(n))
 
 
 @dataclass(frozen=True)

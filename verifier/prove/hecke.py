@@ -56,8 +56,8 @@ from typing import Any, Literal
 
 from flint import fmpq, fmpq_poly
 
-from verifier.forms.characters import QuadraticCharacter
-from verifier.prove.groups import prime_factors, sturm_bound
+from verifier.numbers import QuadraticCharacter, prime_factors
+from verifier.prove.groups import sturm_bound
 from verifier.series.qseries import QSeries, fmpq_to_fraction, to_fmpq
 
 Weight = Fraction | int

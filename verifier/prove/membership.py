@@ -19,7 +19,7 @@ from typing import Any
 from verifier.elaborate import ir
 from verifier.elaborate.rescale import rescale_factor
 from verifier.forms import registry
-from verifier.forms.characters import QuadraticCharacter
+from verifier.numbers import QuadraticCharacter
 from verifier.parse.spaces import SpaceSpec
 from verifier.prove import groups, orders
 from verifier.prove.evaluate import graded_fraction, laurent_to

@@ -16,16 +16,16 @@ from __future__ import annotations
 
 from fractions import Fraction
 
+from verifier import numbers
 from verifier.elaborate import ir
 from verifier.forms import registry
-from verifier.prove import groups
 
 Bounds = dict[int, Fraction]
 
 
 def divisors(n: int) -> list[int]:
     """Positive divisors of n, increasing (from the factorisation, never a loop up to n)."""
-    return groups.divisors(n)
+    return numbers.divisors(n)
 
 
 def _const(level: int, value: Fraction = Fraction(0)) -> Bounds:

@@ -21,7 +21,7 @@ from typing import Any
 from verifier.elaborate import ir
 from verifier.elaborate.shift import classify, strip_side
 from verifier.forms import registry
-from verifier.forms.characters import QuadraticCharacter
+from verifier.numbers import QuadraticCharacter
 from verifier.prove import certificate, groups, orders
 from verifier.prove.evaluate import (
     AtomTable,
