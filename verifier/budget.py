@@ -45,7 +45,10 @@ def time_limit(seconds: float | None) -> Iterator[None]:
         raise TimeExceeded()
 
     previous = signal.signal(signal.SIGALRM, _alarm)
-    signal.setitimer(signal.ITIMER_REAL, float(seconds or 0))
+    # The alarm repeats every 50 ms until the block ends: an exception raised where Python
+    # cannot propagate it (inside a garbage-collector callback, say) is lost, and a single
+    # alarm would then never stop the claim.
+    signal.setitimer(signal.ITIMER_REAL, float(seconds or 0), 0.05)
     try:
         yield
     finally:
