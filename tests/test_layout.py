@@ -179,3 +179,30 @@ def test_an_unreadable_separator_is_an_error_not_a_verdict() -> None:
     # '\text{or}' is no separator: nothing of the row gets a verdict.
     claims = check_text("%@claim\n\\[ E_4^2 = E_8 \\text{ or } E_4 E_6 = E_{10} \\]\n").claims
     assert claims and all(c.verdict == "error" for c in claims)
+
+
+def test_claims_about_spaces_are_statements_of_a_row() -> None:
+    # E_4 is in M_4(Gamma_0(N)) for every N, E_6 in M_6 (Serre, A Course in Arithmetic, ch. VII);
+    # dim M_4(Gamma_0(6)) = 5 (Diamond and Shurman, A First Course in Modular Forms, Fig. 3.4 and
+    # Thm. 3.5.1, from memory); Delta is a normalised eigenform (Ramanujan's tau is multiplicative:
+    # Mordell 1917).  The grammar reads each of them (rule space_claim), also several in one row.
+    from verifier import check_text
+
+    text = (
+        "%@claim\n\\[ E_4 \\in M_4(\\Gamma_0(2)), \\quad E_6 \\in M_6(\\Gamma_0(3)) \\]\n"
+        "%@claim\n\\[ \\dim M_4(\\Gamma_0(6)) = 5 \\qquad \\dim M_4(\\Gamma_0(6)) = 4 \\]\n"
+        "%@claim\n\\[ \\Delta \\text{ is a normalised eigenform} \\]\n"
+        "%@claim\n\\[ E_4 \\in M_4(\\Gamma_7(2)) \\]\n"
+    )
+    report = check_text(text)
+    got = [(c.outcome.kind, c.verdict, c.location.line) for c in report.claims]
+    assert got == [
+        ("membership", "proved", 2),
+        ("membership", "proved", 2),
+        ("dimension", "proved", 4),
+        ("dimension", "refuted", 4),
+        ("eigenform", "proved", 6),
+        ("membership", "error", 8),
+    ]
+    bad = report.claims[-1]
+    assert bad.outcome.code == "syntax" and bad.location.column == 12  # at the space, not the form

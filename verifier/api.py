@@ -43,10 +43,9 @@ from verifier.parse.grammar import (
     ParseFailure,
     parse_definition,
     parse_definitions,
-    parse_expression,
     parse_row,
 )
-from verifier.parse.spaces import dimension_prefix, parse_space, split_membership
+from verifier.parse.spaces import parse_space
 from verifier.prove.arithmetic import ArithmeticClaim, decide_arithmetic
 from verifier.prove.certificate import minimal as certificate_minimal
 from verifier.prove.evaluate import AtomTable, laurent_to
@@ -541,17 +540,6 @@ def _block(
                 ],
                 text.source,
             )
-        if not continuation:
-            about_space = _space_claim(
-                text, row, name if (name is None or count == 0) else f"{name}.{count + 1}", block, elaborator
-            )
-            if about_space is not None:
-                count += 1
-                report.claims.append(about_space.result)
-                if about_space.task is not None:
-                    pending.append(about_space)
-                previous_side = None
-                continue
         if _CASES.search(text.text):
             report.claims.append(
                 _error(
@@ -584,6 +572,14 @@ def _block(
         for k, statement in enumerate(parsed_row.statements):
             if k:
                 chains.append([])  # each statement of a row is its own chain
+            if isinstance(statement.relation, ast.SpaceClaim):
+                count += 1
+                claim_name = name if (name is None or count == 1) else f"{name}.{count}"
+                about_space = _space_claim(text, statement.relation, row, claim_name, elaborator)
+                report.claims.append(about_space.result)
+                if about_space.task is not None:
+                    pending.append(about_space)
+                continue
             parsed = statement.relation
             claims_before = len(report.claims)
             modulus = statement.modulus if statement.modulus is not None else row_modulus
@@ -610,7 +606,11 @@ def _block(
             if parsed.domain:
                 for c in report.claims[claims_before:]:
                     c.reading += f" (read without '{parsed.domain}': it says where tau lives, not a claim)"
-        last = parsed_row.statements[-1].relation.sides[-1]
+        final = parsed_row.statements[-1].relation
+        if isinstance(final, ast.SpaceClaim):
+            previous_side = None
+            continue
+        last = final.sides[-1]
         previous_side = text.slice(last.span[0], last.span[1])
     for chain in chains:
         if len(chain) > 1:
@@ -992,63 +992,41 @@ def t_Fun(name: str, form: ir.Expr) -> tFun:
     return tFun(f"a({form.text})", name, None, tVar("n", "n"), form)
 
 
-_EIGENFORM = re.compile(
-    r"\\(?:text|mathrm|textrm)\s*\{\s*is\s+an?\s+normali[sz]ed\s+(?:Hecke\s+)?eigen\s*-?\s*form\s*\}"
-)
-
-
 def _space_claim(
-    text: MappedText, row: Row, name: str | None, block: ClaimBlock, elaborator: Elaborator
-) -> _Pending | None:
-    """A claim about a space (``\\dim M_k(...) = d`` or ``f \\in S_k(...)``), or None."""
+    text: MappedText, claim: ast.SpaceClaim, row: Row, name: str | None, elaborator: Elaborator
+) -> _Pending:
+    """A claim about a space (``\\dim M_k(...) = d``, ``f \\in S_k(...)``, ``f`` is an eigenform).
+
+    The grammar has read its shape (rule ``space_claim``); the space's inside is read by
+    :func:`verifier.parse.spaces.parse_space`.
+    """
     body = text.text
-    lead = len(body) - len(body.lstrip())
-    dim_end = dimension_prefix(body)
-    member = split_membership(body)
-    eigen = _EIGENFORM.search(body)
-    if dim_end is None and member is None and eigen is None:
-        return None
-    loc = text.location(lead)
-    end = text.location(len(body.rstrip()) - 1)
-    source = " ".join(text.source_slice(lead, len(body.rstrip())).replace("&", " ").split())
-    kind = "dimension" if dim_end is not None else ("membership" if member is not None else "eigenform")
+    lo, hi = claim.span
+    loc, end = text.location(lo), text.location(max(hi - 1, lo))
+    source = " ".join(text.source_slice(lo, hi).replace("&", " ").split())
+    kind = claim.kind
 
     def failed(at: int, code: str, message: str, hint: str = "") -> _Pending:
         result = _error(text.location(at), code, message, hint, source, name, row.label, kind, end)
         return _Pending(result, _NO_SIDE, _NO_SIDE, "=")
 
-    if dim_end is not None:
-        eq = body.find("=", dim_end)
-        dim_spec = parse_space(body[dim_end:eq] if eq >= 0 else "")
-        value = body[eq + 1 :].strip() if eq >= 0 else ""
-        if isinstance(dim_spec, str):
-            return failed(dim_end, "syntax", dim_spec)
-        if not value.isdigit():
-            return failed(eq + 1 if eq >= 0 else len(body), "syntax", "a dimension claim reads \\dim SPACE = integer")
-        result = ClaimResult(loc, end, name, row.label, source, Outcome("error", kind, "not decided"))
-        stated = int(value)
-        return _Pending(result, _NO_SIDE, _NO_SIDE, "=", task=lambda prover: decide_dimension(dim_spec, stated))
-    if eigen is not None and member is None:
-        parsed_form = parse_expression(body[: eigen.start()])
-        if isinstance(parsed_form, ParseFailure):
-            return failed(parsed_form.offset, parsed_form.code, parsed_form.message, parsed_form.hint)
-        form_side = elaborator.side(parsed_form, body)
-        if isinstance(form_side, Problem):
-            return failed(form_side.span[0], form_side.code, form_side.message, form_side.hint)
-        result = ClaimResult(loc, end, name, row.label, source, Outcome("error", kind, "not decided"))
-        return _Pending(result, form_side, form_side, "=", task=lambda prover: decide_eigenform(prover, form_side))
-    assert member is not None
-    spec = parse_space(body[member[1] :])
+    spec = parse_space(claim.space) if claim.space is not None else None
     if isinstance(spec, str):
-        return failed(member[1], "syntax", spec)
-    parsed = parse_expression(body[: member[0]])
-    if isinstance(parsed, ParseFailure):
-        return failed(parsed.offset, parsed.code, parsed.message, parsed.hint)
-    side = elaborator.side(parsed, body)
+        return failed(claim.space_at, "syntax", spec)
+    result = ClaimResult(loc, end, name, row.label, source, Outcome("error", kind, "not decided"))
+    if kind == "dimension":
+        assert spec is not None and claim.value is not None
+        stated, dim_spec = claim.value, spec
+        return _Pending(result, _NO_SIDE, _NO_SIDE, "=", task=lambda prover: decide_dimension(dim_spec, stated))
+    assert claim.form is not None
+    side = elaborator.side(claim.form, body)
     if isinstance(side, Problem):
         return failed(side.span[0], side.code, side.message, side.hint)
-    result = ClaimResult(loc, end, name, row.label, source, Outcome("error", kind, "not decided"))
-    return _Pending(result, side, side, "=", task=lambda prover: decide_membership(prover, side, spec))
+    if kind == "eigenform":
+        return _Pending(result, side, side, "=", task=lambda prover: decide_eigenform(prover, side))
+    assert spec is not None
+    member_spec = spec
+    return _Pending(result, side, side, "=", task=lambda prover: decide_membership(prover, side, member_spec))
 
 
 def _check_options(options: dict[str, str], left: ir.Side, right: ir.Side, t: int) -> tuple[str, str, str] | None:

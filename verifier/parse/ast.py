@@ -162,6 +162,22 @@ class Relation(Node):
 
 
 @dataclass(frozen=True)
+class SpaceClaim(Node):
+    """A claim about a space of forms (docs/method.md#claim-membership, #claim-dimension, #claim-eigenform).
+
+    ``kind`` is ``membership`` (``form \\in space``), ``dimension`` (``\\dim space = value``) or
+    ``eigenform`` (``form \\text{ is a normalised eigenform}``).  ``space`` is the space as
+    written (read by :func:`verifier.parse.spaces.parse_space`), ``space_at`` its offset.
+    """
+
+    kind: str
+    form: Node | None = None
+    space: str | None = None
+    space_at: int = 0
+    value: int | None = None
+
+
+@dataclass(frozen=True)
 class Statement(Node):
     """One relation of a row with its qualifiers (docs/method.md#layout).
 
@@ -169,7 +185,7 @@ class Statement(Node):
     ``iff`` is set on both halves of ``A = B \\iff C = D``: the equivalence itself is the author's.
     """
 
-    relation: Relation
+    relation: Relation | SpaceClaim
     modulus: int | None = None
     start: tuple[str, int] | None = None
     iff: bool = False

@@ -42,7 +42,7 @@ def _parser() -> Any:
         grammar_path().read_text(encoding="utf-8"),
         parser="lalr",
         lexer="contextual",
-        start=["relation", "row", "definition", "definitions", "expression"],
+        start=["relation", "row", "definition", "definitions"],
         propagate_positions=True,
         maybe_placeholders=False,
     )
@@ -80,11 +80,6 @@ def parse_row(text: str) -> ast.Row | ParseFailure:
     result = _parse(text, "row")
     assert isinstance(result, ast.Row | ParseFailure)
     return result
-
-
-def parse_expression(text: str) -> ast.Node | ParseFailure:
-    """Parse a single expression (the form of a membership claim)."""
-    return _parse(text, "expression")
 
 
 def parse_definition(text: str) -> ast.Definition | ParseFailure:
@@ -328,6 +323,18 @@ def _make_transformer() -> Any:
             sides = tuple(items[0::2])
             rels = tuple({"=": "=", "\\equiv": "≡"}.get(str(r), "!=") for r in items[1::2])
             return ast.Relation(_span(meta), sides, rels, domain)
+
+        # -- claims about a space of forms ------------------------------------------
+        def membership(self, meta: Any, items: list[Any]) -> ast.SpaceClaim:
+            form, _, space = items
+            return ast.SpaceClaim(_span(meta), "membership", form, str(space), space.start_pos)
+
+        def dimension(self, meta: Any, items: list[Any]) -> ast.SpaceClaim:
+            _, space, value = items
+            return ast.SpaceClaim(_span(meta), "dimension", None, str(space), space.start_pos, int(str(value)))
+
+        def eigenform(self, meta: Any, items: list[Any]) -> ast.SpaceClaim:
+            return ast.SpaceClaim(_span(meta), "eigenform", items[0])
 
         # -- the layout of a row (docs/method.md#layout) -----------------------------
         def row(self, meta: Any, items: list[Any]) -> ast.Row:
@@ -622,7 +629,7 @@ def _group_row(span: ast.Span, items: list[Any]) -> ast.Row:
     row also apply to the earlier relations that have none of their own: a modulus only to
     congruences (it would weaken an equation), a range to every relation.
     """
-    relations: list[ast.Relation] = [items[0]]
+    relations: list[ast.Relation | ast.SpaceClaim] = [items[0]]
     quals: list[dict[str, Any]] = [{}]
     iff = [False]
     for kind, value in items[1:]:
@@ -637,7 +644,7 @@ def _group_row(span: ast.Span, items: list[Any]) -> ast.Row:
             quals[-1][key] = payload
     trailing = quals[-1]
     for rel, q in zip(relations[:-1], quals[:-1], strict=True):
-        if "modulus" in trailing and "modulus" not in q and "≡" in rel.rels:
+        if "modulus" in trailing and "modulus" not in q and isinstance(rel, ast.Relation) and "≡" in rel.rels:
             q["modulus"] = trailing["modulus"]
         if "start" in trailing and "start" not in q:
             q["start"] = trailing["start"]

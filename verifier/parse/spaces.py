@@ -1,8 +1,8 @@
 """Spaces of modular forms as authors write them: ``M_k(\\Gamma_0(N), \\chi)``, ``S_2(\\Gamma_0(11))``.
 
-Used by membership claims (``f \\in S_2(\\Gamma_0(11))``) and dimension claims
-(``\\dim M_4(\\Gamma_0(6)) = 5``).  Regular expressions over a small, closed notation;
-nothing is evaluated.
+The grammar recognises membership and dimension claims (rule ``space_claim``) and hands
+over the space as one token; this module reads its inside (weight, group, character), a
+small closed notation, by regular expressions.  Nothing is evaluated.
 """
 
 from __future__ import annotations
@@ -21,8 +21,6 @@ _SPACE = re.compile(
     r"\s*_\s*(\{[^{}]*(?:\{[^{}]*\}[^{}]*)*\}|\d)\s*\((.*)\)\s*$",
     re.S,
 )
-_MEMBER = re.compile(r"\\in(?![A-Za-z])")
-_DIM = re.compile(r"^\s*\\dim(?:_\s*(?:\{[^{}]*\}|\\mathbb\s*\{?\s*C\s*\}?|[A-Za-z]))?(?![A-Za-z])")
 
 
 @dataclass(frozen=True)
@@ -86,21 +84,3 @@ def _split_top_level(text: str) -> list[str]:
 
 def _paren_depth(text: str, i: int) -> int:
     return text[:i].count("(") - text[:i].count(")")
-
-
-def split_membership(text: str) -> tuple[int, int] | None:
-    """Offsets (start, end) of a top-level ``\\in`` in a claim's text, if any."""
-    for i, tok, depth in tokens_with_depth(text):
-        if tok == "\\in" and depth == 0 and _paren_depth(text, i) == 0 and not _UPPER_HALF_PLANE.match(text, i + 3):
-            return i, i + 3
-    return None
-
-
-# '\tau \in \mathbb H' says where tau lives (the claim grammar reads it as a qualifier).
-_UPPER_HALF_PLANE = re.compile(r"\s*\\(?:mathbb|mathfrak|mathcal|mathbf)\s*(?:\{\s*H\s*\}|H)|\s*\\H(?![A-Za-z])")
-
-
-def dimension_prefix(text: str) -> int | None:
-    """Length of a leading ``\\dim`` (with an optional subscript), if the claim starts with one."""
-    m = _DIM.match(text)
-    return m.end() if m else None
