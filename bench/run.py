@@ -1241,6 +1241,46 @@ def section_progression(quick: bool) -> bool:
     return True
 
 
+def section_reading() -> bool:
+    """The reading corpus of tests/data/manuscripts/styles: decided claims per house style, and no wrong verdict."""
+    tests = Path(__file__).resolve().parent.parent / "tests"
+    sys.path.insert(0, str(tests))
+    import corpus_reading
+    import corpus_truth
+
+    print(
+        "\n== 9. reading: claims of the house-style corpus decided (proved + refuted), against a brute-force truth =="
+    )
+    truth = corpus_truth.expected()
+    header = (
+        f"{'style':<14}{'claims':>7}{'decided':>9}{'share':>8}{'error':>7}{'unproven':>9}{'no claim':>9}{'wrong':>7}"
+    )
+    print(header)
+    print("-" * len(header))
+    total, decided, wrong = 0, 0, 0
+    sums: dict[str, int] = {}
+    for style in corpus_truth.STYLES:
+        t = corpus_reading.tally(truth, corpus_reading.verdicts(style), style)
+        total += t.total
+        decided += t.decided
+        wrong += len(t.wrong)
+        for k, v in t.counts.items():
+            sums[k] = sums.get(k, 0) + v
+        print(
+            f"{style:<14}{t.total:>7}{t.decided:>9}{t.decided / max(t.total, 1):>8.0%}{t.counts.get('error', 0):>7}"
+            f"{t.counts.get('unproven', 0):>9}{t.counts.get('missing', 0):>9}{len(t.wrong):>7}"
+        )
+        for line in t.wrong:
+            print(f"   WRONG: {line}")
+    print(
+        f"{'all':<14}{total:>7}{decided:>9}{decided / max(total, 1):>8.0%}{sums.get('error', 0):>7}"
+        f"{sums.get('unproven', 0):>9}{sums.get('missing', 0):>9}{wrong:>7}"
+    )
+    if wrong:
+        raise Mismatch(f"{wrong} wrong verdicts on the reading corpus")
+    return True
+
+
 def main(argv: list[str] | None = None) -> int:
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     ap.add_argument("--quick", action="store_true", help="sizes 10^3 and 10^4 only, smaller manuscript (~30 s)")
@@ -1259,7 +1299,10 @@ def main(argv: list[str] | None = None) -> int:
     ap.add_argument(
         "--skip",
         default="",
-        help="comma-separated sections to skip: engine, scan, pipeline, level, recheck, processes, lsp, progression",
+        help=(
+            "comma-separated sections to skip: engine, scan, pipeline, level, recheck, processes, lsp, progression, "
+            "reading"
+        ),
     )
     args = ap.parse_args(argv)
     quick = args.quick
@@ -1279,6 +1322,7 @@ def main(argv: list[str] | None = None) -> int:
         ("processes", lambda: section_processes(quick)),
         ("lsp", lambda: section_lsp(300)),
         ("progression", lambda: section_progression(quick)),
+        ("reading", section_reading),
     ]
     for name, run in sections:
         if name in skip:
