@@ -1246,10 +1246,18 @@ def section_progression(quick: bool) -> bool:
 
 
 def section_reading() -> bool:
+    """The figure of merit of reading: the house-style corpus against its brute-force truth, then
+    every test manuscript (decided = proved or refuted)."""
+    styles = _reading_styles()
+    manuscripts = _reading_manuscripts()
+    return bool(styles is not False and manuscripts is not False)
+
+
+def _reading_manuscripts() -> bool:
     """Claims decided (proved or refuted) against those left unproven or in error, per manuscript."""
     from verifier.api import check_path
 
-    print("\n== 9. reading: claims decided (proved or refuted) in the test manuscripts ==")
+    print("\n== 9b. reading: claims decided (proved or refuted) in each test manuscript ==")
     files = sorted(
         p
         for folder in ("manuscripts", "idiom")
@@ -1282,6 +1290,46 @@ def section_reading() -> bool:
     return True
 
 
+def _reading_styles() -> bool:
+    """The reading corpus of tests/data/manuscripts/styles: decided claims per house style, and no wrong verdict."""
+    tests = Path(__file__).resolve().parent.parent / "tests"
+    sys.path.insert(0, str(tests))
+    import corpus_reading
+    import corpus_truth
+
+    print(
+        "\n== 9. reading: claims of the house-style corpus decided (proved + refuted), against a brute-force truth =="
+    )
+    truth = corpus_truth.expected()
+    header = (
+        f"{'style':<14}{'claims':>7}{'decided':>9}{'share':>8}{'error':>7}{'unproven':>9}{'no claim':>9}{'wrong':>7}"
+    )
+    print(header)
+    print("-" * len(header))
+    total, decided, wrong = 0, 0, 0
+    sums: dict[str, int] = {}
+    for style in corpus_truth.STYLES:
+        t = corpus_reading.tally(truth, corpus_reading.verdicts(style), style)
+        total += t.total
+        decided += t.decided
+        wrong += len(t.wrong)
+        for k, v in t.counts.items():
+            sums[k] = sums.get(k, 0) + v
+        print(
+            f"{style:<14}{t.total:>7}{t.decided:>9}{t.decided / max(t.total, 1):>8.0%}{t.counts.get('error', 0):>7}"
+            f"{t.counts.get('unproven', 0):>9}{t.counts.get('missing', 0):>9}{len(t.wrong):>7}"
+        )
+        for line in t.wrong:
+            print(f"   WRONG: {line}")
+    print(
+        f"{'all':<14}{total:>7}{decided:>9}{decided / max(total, 1):>8.0%}{sums.get('error', 0):>7}"
+        f"{sums.get('unproven', 0):>9}{sums.get('missing', 0):>9}{wrong:>7}"
+    )
+    if wrong:
+        raise Mismatch(f"{wrong} wrong verdicts on the reading corpus")
+    return True
+
+
 def main(argv: list[str] | None = None) -> int:
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     ap.add_argument("--quick", action="store_true", help="sizes 10^3 and 10^4 only, smaller manuscript (~30 s)")
@@ -1300,8 +1348,10 @@ def main(argv: list[str] | None = None) -> int:
     ap.add_argument(
         "--skip",
         default="",
-        help="comma-separated sections to skip: engine, scan, pipeline, level, recheck, processes, lsp, progression, "
-        "reading",
+        help=(
+            "comma-separated sections to skip: engine, scan, pipeline, level, recheck, processes, lsp, progression, "
+            "reading"
+        ),
     )
     args = ap.parse_args(argv)
     quick = args.quick
