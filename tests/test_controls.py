@@ -488,3 +488,14 @@ def test_skip_files_without_tags_still_reports_problems(tmp_path: Path, capsys: 
     assert "0 claims" in capsys.readouterr().out
     assert cli.main(["check", str(tmp_path / "broken.tex"), "--skip-files-without-tags"]) == 2
     assert "include-missing" in capsys.readouterr().out
+
+
+def test_a_second_run_answered_from_the_cache_is_not_an_empty_run(tmp_path: Path) -> None:
+    # E_4^2 = E_8 (Serre, A Course in Arithmetic, ch. VII, §3.2).  The second run reads the verdict
+    # back from the cache; it must not warn that nothing was checked, and it still passes.
+    paper = write(tmp_path, "paper.tex", "%@claim\n\\[ E_4^2 = E_8 \\]\n")
+    first = run("check", str(paper), cwd=tmp_path, env_cache=True)
+    second = run("check", str(paper), cwd=tmp_path, env_cache=True)
+    assert first.returncode == second.returncode == 0, second.stdout + second.stderr
+    assert "no-claims" not in second.stdout + second.stderr
+    assert "1 proved" in second.stdout

@@ -407,3 +407,17 @@ def test_a_family_may_not_redefine_built_in_forms() -> None:
 def test_the_statement_of_the_variable_is_no_claim() -> None:
     (claim,) = check_text("%@claim\n\\[ q = e^{2\\pi i \\tau} \\]\n", "q.tex").claims
     assert claim.verdict == "error" and claim.outcome.code == "unsupported-notation"
+
+
+def test_family_members_with_braced_indices_and_empty_subscripts() -> None:
+    # f_{16} is a member of the family f_k = (q^k;q^k)_infty like f_3; sigma_{}(n) (a macro with an
+    # empty index) is sigma(n).  Euler: f_1 = 1 - q - q^2 + q^5 + ... (Euler's pentagonal theorem),
+    # so f_16 = 1 - q^16 - ...; Besge's convolution sum (Ramanujan 1916, Table IV) with empty indices.
+    from verifier import check_text
+
+    text = (
+        "%@define f_k = (q^k;q^k)_\\infty\n"
+        "%@claim\n\\[ f_{16} = 1 - q^{16} - q^{32} + O(q^{33}) \\]\n"
+        "%@claim\n\\[ \\sum_{m=1}^{n-1}\\sigma_{}(m)\\sigma_{}(n-m) = \\frac{5\\sigma_{3}(n)+(1-6n)\\sigma_{}(n)}{12} \\]\n"
+    )
+    assert [c.verdict for c in check_text(text).claims] == ["proved", "proved"]

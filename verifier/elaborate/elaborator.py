@@ -499,12 +499,13 @@ class Elaborator:
                 + ("" if is_builtin(name) else f", or add %@define {name} = ..."),
                 node,
             )
-        member = re.fullmatch(r"([A-Za-z])_(\d+)", name)
+        # f_3 or f_{16} (normal_name keeps a brace around more than one character: f_16 is f_1 6).
+        member = re.fullmatch(r"([A-Za-z])_(?:\{(\d+)\}|(\d+))", name)
         if name not in self.definitions and member is not None and member.group(1) in self.families:
             from verifier.elaborate.idiom import substitute
 
             index, body, body_text = self.families[member.group(1)]
-            index_value = ast.Number(body.span, int(member.group(2)))
+            index_value = ast.Number(body.span, int(member.group(2) or member.group(3)))
             try:
                 self.definitions[name] = self.expr(substitute(body, {index: index_value}), body_text)
             except ElaborationError as exc:

@@ -45,7 +45,9 @@ _STYLED_NAME = re.compile(
     r"\\(?:mathbf|mathrm|mathit|mathsf|boldsymbol|bm|pmb)\s*(?:\{\s*(\\[A-Za-z]+|[A-Za-z])\s*\}|(\\[A-Za-z]+))"
 )
 _FRAC_DIGITS = re.compile(r"\\([dt]?frac)\s*(\d)\s*(\d)")
-_EMPTY_GROUP = re.compile(r"\{\s*\}")
+# An empty group, and an empty sub- or superscript (\sigma_{} from a macro with an empty
+# argument), carry nothing.
+_EMPTY_GROUP = re.compile(r"[_^]?\s*\{\s*\}")
 # The derivative D = q d/dq = (2 pi i)^{-1} d/dtau, however it is spelled (docs/method.md#derivatives).
 _DERIVATIVE = re.compile(
     r"q\s*\\[dt]?frac\s*\{\s*d\s*\}\s*\{\s*d\s*q\s*\}"
