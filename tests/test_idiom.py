@@ -418,6 +418,7 @@ def test_family_members_with_braced_indices_and_empty_subscripts() -> None:
     text = (
         "%@define f_k = (q^k;q^k)_\\infty\n"
         "%@claim\n\\[ f_{16} = 1 - q^{16} - q^{32} + O(q^{33}) \\]\n"
-        "%@claim\n\\[ \\sum_{m=1}^{n-1}\\sigma_{}(m)\\sigma_{}(n-m) = \\frac{5\\sigma_{3}(n)+(1-6n)\\sigma_{}(n)}{12} \\]\n"
+        "%@claim\n\\[ \\sum_{m=1}^{n-1}\\sigma_{}(m)\\sigma_{}(n-m) = "
+        "\\frac{5\\sigma_{3}(n)+(1-6n)\\sigma_{}(n)}{12} \\]\n"
     )
     assert [c.verdict for c in check_text(text).claims] == ["proved", "proved"]
