@@ -422,3 +422,56 @@ def test_family_members_with_braced_indices_and_empty_subscripts() -> None:
         "\\frac{5\\sigma_{3}(n)+(1-6n)\\sigma_{}(n)}{12} \\]\n"
     )
     assert [c.verdict for c in check_text(text).claims] == ["proved", "proved"]
+
+
+def _lattice_counts(a: int, b: int, c: int, terms: int) -> list[int]:
+    """Number of (x, y) in Z^2 with a x^2 + b xy + c y^2 = n, by enumeration (no qreferee code)."""
+    counts = [0] * terms
+    r = terms + 1
+    for x in range(-r, r + 1):
+        for y in range(-r, r + 1):
+            n = a * x * x + b * x * y + c * y * y
+            if 0 <= n < terms:
+                counts[n] += 1
+    return counts
+
+
+def _printed(counts: list[int]) -> str:
+    return " + ".join(f"{c}q^{{{n}}}" for n, c in enumerate(counts) if c) + " + \\cdots"
+
+
+@pytest.mark.parametrize("a,b,c", [(1, 1, 1), (1, 0, 1), (1, 0, 2), (2, 1, 3), (1, 0, 3)])
+def test_sums_over_z2_are_theta_series_of_binary_forms(a: int, b: int, c: int) -> None:
+    # sum_{x,y in Z} q^{a x^2 + b xy + c y^2} is the theta series of the Gram matrix
+    # [[2a, b], [b, 2c]] (Conway and Sloane, Sphere Packings, Lattices and Groups, ch. 2, §2.3);
+    # the coefficients are counted here by enumeration.
+    from verifier import check_text
+
+    counts = _lattice_counts(a, b, c, 12)
+    body = f"{a}x^2 + {b}xy + {c}y^2".replace("1x", "x").replace("1y", "y").replace(" + 0xy", "")
+    wrong = list(counts)
+    wrong[5] += 2
+    text = (
+        f"%@claim\n\\[ \\sum_{{x,y\\in\\mathbb Z}} q^{{{body}}} = {_printed(counts)} \\]\n"
+        f"%@claim\n\\[ \\sum_{{x,y\\in\\mathbb Z}} q^{{{body}}} = {_printed(wrong)} \\]\n"
+    )
+    report = check_text(text)
+    assert [c.verdict for c in report.claims] == ["proved", "refuted"], [c.outcome.message for c in report.claims]
+    assert report.claims[1].outcome.first_difference == {"n": 5, "left": str(counts[5]), "right": str(wrong[5])}
+
+
+def test_the_hexagonal_lattice_sum_is_the_cubic_theta_function() -> None:
+    # a(q) = sum q^{x^2+xy+y^2} = (eta(tau)^3 + 9 eta(9 tau)^3) / eta(3 tau) (Borwein, Borwein and
+    # Garvan, Trans. AMS 343 (1994), from memory); a sum with a linear term is not read.
+    from verifier import check_text
+
+    text = (
+        "%@claim\n\\[ \\sum_{x,y\\in\\mathbb Z} q^{x^2+xy+y^2} = "
+        "\\frac{\\eta(\\tau)^{3} + 9\\eta(9\\tau)^{3}}{\\eta(3\\tau)} \\]\n"
+        "%@claim\n\\[ \\sum_{x,y\\in\\mathbb Z} q^{x^2+y^2+x} = 1 \\]\n"
+    )
+    report = check_text(text)
+    assert [(c.verdict, c.outcome.code) for c in report.claims] == [
+        ("proved", None),
+        ("error", "unsupported-notation"),
+    ]

@@ -74,7 +74,7 @@ def uses_arithmetic(node: ast.Node, forms: dict[str, Any], matrices: dict[str, A
         return False
     if isinstance(node, ast.Call) and function_kind(node.name, forms, matrices) is not None:
         return True
-    if isinstance(node, ast.BigSum) and node.kind not in ("at_least", "integers", "pair"):
+    if isinstance(node, ast.BigSum) and node.kind not in ("at_least", "integers", "pair", "lattice"):
         return True
     return any(uses_arithmetic(child, forms, matrices) for child in ast.children(node))
 

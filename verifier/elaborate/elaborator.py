@@ -251,7 +251,9 @@ class Elaborator:
         if isinstance(node, ast.BigProd | ast.Pochhammer):
             return self._idiom_product(node, text, src)
         if isinstance(node, ast.BigSum):
-            if node.kind in ("integers", "pair") or (node.kind in ("at_least", "from") and node.upper is None):
+            if node.kind in ("integers", "pair", "lattice") or (
+                node.kind in ("at_least", "from") and node.upper is None
+            ):
                 special = self._idiom_sum(node, text, src)
                 if special is not None:
                     return special

@@ -86,6 +86,56 @@ def poly_of(node: ast.Node, var: str) -> Poly | None:
     return None
 
 
+Poly2 = dict[tuple[int, int], Fraction]
+
+
+def poly2_of(node: ast.Node, x: str, y: str) -> Poly2 | None:
+    """``node`` as a polynomial in ``x`` and ``y`` with rational coefficients, or None."""
+    if isinstance(node, ast.Number):
+        return {(0, 0): Fraction(node.value)} if node.value else {}
+    if isinstance(node, ast.Name) and node.arg is None and node.text in (x, y):
+        return {(1, 0) if node.text == x else (0, 1): Fraction(1)}
+    if isinstance(node, ast.Neg):
+        inner = poly2_of(node.operand, x, y)
+        return None if inner is None else {k: -v for k, v in inner.items()}
+    if isinstance(node, ast.Call) and node.name in (x, y):
+        inner = poly2_of(node.argument, x, y)
+        head = {(1, 0) if node.name == x else (0, 1): Fraction(1)}
+        return None if inner is None else _p2mul(head, inner)
+    if isinstance(node, ast.Power) and isinstance(node.exponent, Fraction):
+        base = poly2_of(node.base, x, y)
+        e = node.exponent
+        if base is None or e.denominator != 1 or e < 0 or e > 2:
+            return None
+        out: Poly2 = {(0, 0): Fraction(1)}
+        for _ in range(int(e)):
+            out = _p2mul(out, base)
+        return out
+    if isinstance(node, ast.BinOp):
+        a, b = poly2_of(node.left, x, y), poly2_of(node.right, x, y)
+        if a is None or b is None:
+            return None
+        if node.op in "+-":
+            sign = 1 if node.op == "+" else -1
+            out = dict(a)
+            for k, v in b.items():
+                out[k] = out.get(k, Fraction(0)) + sign * v
+            return {k: v for k, v in out.items() if v}
+        if node.op == "*":
+            return _p2mul(a, b)
+        if node.op == "/" and set(b) == {(0, 0)}:
+            return {k: v / b[(0, 0)] for k, v in a.items()}
+    return None
+
+
+def _p2mul(a: Poly2, b: Poly2) -> Poly2:
+    out: Poly2 = {}
+    for (i, j), u in a.items():
+        for (k, m), v in b.items():
+            out[(i + k, j + m)] = out.get((i + k, j + m), Fraction(0)) + u * v
+    return {k: v for k, v in out.items() if v}
+
+
 def _padd(a: Poly, b: Poly, sign: int) -> Poly:
     out = dict(a)
     for k, v in b.items():
@@ -536,6 +586,8 @@ class SumReader:
     def read(self, node: ast.BigSum, src: str) -> ir.Expr | None:
         if node.kind == "pair":
             return self._double(node, src)
+        if node.kind == "lattice":
+            return self._lattice(node, src)
         for inner in ast.walk(node.body):
             if isinstance(inner, ast.Pochhammer) and inner.length is not None and mentions(inner.length, node.var):
                 raise _fail(
@@ -646,6 +698,41 @@ class SumReader:
             )
             return ast.BigSum(span, "pair", node.var, node.lower, None, _product_of([*body, qnm], span), other)
         return None
+
+    def _lattice(self, node: ast.BigSum, src: str) -> ir.Expr:
+        """``sum_{x,y in Z} q^{a x^2 + b xy + c y^2}``: the theta series of the Gram matrix
+        [[2a, b], [b, 2c]] (Q(v) = v^T A v / 2), for a positive definite form with integral a, b, c
+        (docs/method.md#sums-over-z)."""
+        factors = factors_of(node.body)
+        if len(factors) != 1 or not _is_q_power(factors[0]):
+            raise _fail(
+                "a sum over Z^2 whose summand is not a single power q^{Q(x,y)}",
+                "write \\sum_{x,y\\in\\mathbb Z} q^{x^2+xy+y^2}, or define a Gram matrix and write \\Theta_A",
+                node,
+            )
+        qf = factors[0]
+        assert isinstance(qf, ast.Power)
+        e = poly2_of(_exponent_node(qf.exponent, qf.span), node.var, node.var2)
+        if e is None or any(i + j != 2 for i, j in e):
+            raise _fail(
+                "a sum over Z^2 whose exponent is not a quadratic form a x^2 + b xy + c y^2",
+                "write q^{x^2+xy+y^2} (no linear or constant terms)",
+                qf,
+            )
+        a, b, c = e.get((2, 0), Fraction(0)), e.get((1, 1), Fraction(0)), e.get((0, 2), Fraction(0))
+        if any(v.denominator != 1 for v in (a, b, c)) or a <= 0 or 4 * a * c - b * b <= 0:
+            raise _fail(
+                "a sum over Z^2 whose exponent is not a positive definite form with integral coefficients",
+                "write q^{a x^2 + b xy + c y^2} with a > 0 and 4ac - b^2 > 0",
+                qf,
+            )
+        from verifier.elaborate.elaborator import _atom
+        from verifier.forms.registry import AtomInfo
+        from verifier.forms.theta import QuadraticForm
+
+        gram = ((int(2 * a), int(b)), (int(b), int(2 * c)))
+        form = QuadraticForm.from_rows(gram)
+        return _atom(AtomInfo("theta", form.weight, params=(form.gram,)), Fraction(1), src, node)
 
     def _double(self, node: ast.BigSum, src: str) -> ir.Expr:
         """``sum_{n,m >= 1} w(n, m) q^{nm}`` = ``sum_N (sum_{d | N} w(d, N/d)) q^N``."""

@@ -104,6 +104,7 @@ class BigSum(Node):
     (var | target) or ``"at_least"`` (var >= lower); ``upper`` None means no upper limit.
 
     The q-series idiom adds (docs/method.md#sums-over-z): ``"integers"`` (var in Z),
+    ``"lattice"`` (var, var2 in Z: a theta series of a binary quadratic form),
     ``"pair"`` (var, var2 >= lower), ``"between"`` (lower < var < upper, written with <),
     ``"between_closed"`` (lower <= var <= upper), ``"below"`` (var < upper),
     ``"divides_parity"`` (var | lower with var odd or even: ``parity``), ``"split"``

@@ -522,6 +522,9 @@ def _make_transformer() -> Any:
         def index_integers(self, meta: Any, items: list[Any]) -> tuple[Any, ...]:
             return ("integers", str(items[0]), None)
 
+        def index_lattice(self, meta: Any, items: list[Any]) -> tuple[Any, ...]:
+            return ("lattice", str(items[0]), None, None, str(items[1]))
+
         def index_pair_at_least(self, meta: Any, items: list[Any]) -> tuple[Any, ...]:
             return ("pair", str(items[0]), items[-1], None, str(items[1]))
 
