@@ -16,6 +16,7 @@ Jacobi's identity for f_1^3 (Berndt, Entry 24(ii)) and the Lambert series of sig
 
 from __future__ import annotations
 
+import math
 from collections.abc import Callable
 from pathlib import Path
 
@@ -475,3 +476,31 @@ def test_the_hexagonal_lattice_sum_is_the_cubic_theta_function() -> None:
         ("proved", None),
         ("error", "unsupported-notation"),
     ]
+
+
+def test_a_printed_expansion_behind_a_power_of_q() -> None:
+    # E_4 / eta^8 = q^{-1/3} (1 + 240 q + 2160 q^2 + ...)(1 + 8q + 44q^2 + ...): E_4 from sigma_3
+    # (Serre, A Course in Arithmetic, ch. VII, §4.2) and 1/prod(1-q^n)^8 by brute force here.
+    from verifier import check_text
+
+    e4 = [1] + [240 * sum(d**3 for d in range(1, n + 1) if n % d == 0) for n in range(1, 3)]
+    inv = [1, 0, 0]
+    for n in range(1, 3):  # multiply by 1/(1-q^n)^8 = sum_k binom(k+7, 7) q^{nk}
+        new = [0, 0, 0]
+        for i, c in enumerate(inv):
+            k = 0
+            while i + n * k < 3:
+                new[i + n * k] += c * math.comb(k + 7, 7)
+                k += 1
+        inv = new
+    c = [sum(e4[i] * inv[m - i] for i in range(m + 1)) for m in range(3)]
+    good = f"q^{{-1/3}}\\left(1+{c[1]}q+{c[2]}q^2+\\cdots\\right)"
+    bad = f"q^{{-1/3}}\\left(1+{c[1]}q+{c[2] - 1}q^2+\\cdots\\right)"
+    text = (
+        f"%@claim\n\\[ \\frac{{E_4(\\tau)}}{{\\eta(\\tau)^8}} = {good} \\]\n"
+        f"%@claim\n\\[ \\frac{{E_4(\\tau)}}{{\\eta(\\tau)^8}} = {bad} \\]\n"
+        "%@claim\n\\[ \\Delta = q(1 - 24q + 252q^2 + O(q^3)) \\]\n"
+    )
+    report = check_text(text)
+    assert [r.verdict for r in report.claims] == ["proved", "refuted", "proved"]
+    assert report.claims[1].outcome.first_difference == {"n": "5/3", "left": str(c[2]), "right": str(c[2] - 1)}

@@ -84,6 +84,9 @@ class Elaborator:
     def side(self, node: ast.Node, text: str) -> ir.Side | Problem:
         """Elaborate one side of a claim; ``text`` is the claim text the spans index."""
         self._text = text
+        split = _prefactored(node)
+        if split is not None:
+            return self._prefactored_side(split[0], split[1], node, text)
         try:
             terms = _summands(node)
             trunc: Fraction | None = None
@@ -118,6 +121,27 @@ class Elaborator:
             return ir.Side(expr, printed, trunc, dots, degree(expr))
         except ElaborationError as exc:
             return exc.problem
+
+    def _prefactored_side(
+        self, factors: list[ast.Node], inner: ast.Node, node: ast.Node, text: str
+    ) -> ir.Side | Problem:
+        """``c q^e (1 + a_1 q + ... + \\cdots)``: a printed expansion behind a constant and a power of q.
+
+        The inner expansion claims its printed range; the prefactor shifts it by e.
+        """
+        inside = self.side(inner, text)
+        if isinstance(inside, Problem):
+            return inside
+        self._text = text
+        try:
+            pre = self.expr(_product_node(factors), text)
+            src = text[node.span[0] : node.span[1]]
+            expr = _mul(pre, inside.expr, src, node)
+        except ElaborationError as exc:
+            return exc.problem
+        shift = degree(pre)
+        big_o = None if inside.big_o is None else inside.big_o + shift
+        return ir.Side(expr, True, big_o, inside.dots, degree(expr))
 
     def unread_definition(self, name: str, why: str) -> None:
         """The author defines ``name`` in a way that cannot be read: later uses are errors."""
@@ -658,6 +682,58 @@ def _summands(node: ast.Node) -> list[tuple[int, ast.Node]]:
             stack.append((-sign, n.operand))
         else:
             out.append((sign, n))
+    return out
+
+
+def _prefactored(node: ast.Node) -> tuple[list[ast.Node], ast.Node] | None:
+    """``c q^e (printed + \\cdots)`` as (the prefactor's factors, the printed expansion), or None.
+
+    Only a product of numbers and powers of q may stand in front, and the last factor must be
+    an expansion that ends in ``\\cdots`` or ``O(q^m)``.
+    """
+    factors: list[ast.Node] = []
+    stack = [node]
+    while stack:
+        n = stack.pop()
+        if isinstance(n, ast.BinOp) and n.op == "*":
+            stack += [n.right, n.left]
+        else:
+            factors.append(n)
+    if len(factors) < 2:
+        if len(factors) == 1 and isinstance(factors[0], ast.Call) and factors[0].name == "q":
+            call = factors[0]
+            factors = [ast.Name(call.name_span, "q"), call.argument]
+        else:
+            return None
+    last = factors[-1]
+    if isinstance(last, ast.Call) and last.name == "q":
+        factors = [*factors[:-1], ast.Name(last.name_span, "q"), last.argument]
+        last = factors[-1]
+    if not any(isinstance(t, ast.Dots | ast.BigO) for _, t in _summands(last)):
+        return None
+    if not all(_is_monomial_factor(f) for f in factors[:-1]):
+        return None
+    return factors[:-1], last
+
+
+def _is_monomial_factor(node: ast.Node) -> bool:
+    if isinstance(node, ast.Number):
+        return True
+    if isinstance(node, ast.Name):
+        return node.text == "q" and node.arg is None
+    if isinstance(node, ast.Power):
+        return isinstance(node.exponent, Fraction) and isinstance(node.base, ast.Name) and node.base.text == "q"
+    if isinstance(node, ast.Neg):
+        return _is_monomial_factor(node.operand)
+    if isinstance(node, ast.BinOp) and node.op == "/":
+        return isinstance(node.left, ast.Number) and isinstance(node.right, ast.Number)
+    return False
+
+
+def _product_node(factors: list[ast.Node]) -> ast.Node:
+    out = factors[0]
+    for f in factors[1:]:
+        out = ast.BinOp((out.span[0], f.span[1]), "*", out, f)
     return out
 
 
