@@ -353,3 +353,31 @@ def test_a_defined_generating_function_is_used() -> None:
     doc = "%@define F = \\frac{f_2}{f_1^2}\n%@claim\n\\[ a_F(8n+7) \\equiv 0 \\pmod{64} \\]\n"
     (c,) = claims(doc)
     assert c["verdict"] == "proved"  # the overpartition congruence above
+
+
+def test_overpartitions_at_a_value_and_their_generating_function() -> None:
+    # sum pbar(n) q^n = prod (1+q^n)/(1-q^n) = f_2/f_1^2 (Corteel and Lovejoy, "Overpartitions",
+    # Trans. AMS 356 (2004), §1); the values are expanded here by brute force.
+    from verifier import check_text
+
+    terms = 8
+    series = [1] + [0] * (terms - 1)
+    for n in range(1, terms):
+        plus = [0] * terms  # multiply by (1 + q^n)
+        for i, c in enumerate(series):
+            plus[i] += c
+            if i + n < terms:
+                plus[i + n] += c
+        series = plus
+        for i in range(n, terms):  # divide by (1 - q^n)
+            series[i] += series[i - n]
+    text = (
+        f"%@claim\n\\[ \\overline{{p}}(5) = {series[5]} \\]\n"
+        f"%@claim\n\\[ \\overline{{p}}(5) = {series[5] + 2} \\]\n"
+        "%@claim\n\\[ \\sum_{n \\ge 0} \\overline{p}(n) q^n = \\frac{f_2}{f_1^2} \\]\n"
+        "%@claim\n\\[ \\sum_{n \\ge 0} \\overline{p}(n) q^n = \\frac{f_2}{f_1^3} \\]\n"
+    )
+    report = check_text("%@define f_k = (q^k;q^k)_\\infty\n" + text)
+    assert [c.verdict for c in report.claims] == ["proved", "refuted", "proved", "refuted"]
+    assert report.claims[3].outcome.first_difference is not None
+    assert report.claims[3].outcome.first_difference["n"] == 1

@@ -51,6 +51,8 @@ def function_kind(name: str, forms: dict[str, Any], matrices: dict[str, Any]) ->
         return None
     if name == "p":
         return ("p", None, None)
+    if name == "\\pbar":  # \overline{p}, the overpartitions (the scanner spells it \pbar)
+        return ("pbar", None, None)
     if name in ("\\varphi", "\\phi"):
         return ("phi", None, None)
     if name == "\\mu":

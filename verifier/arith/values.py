@@ -187,6 +187,10 @@ class Values:
             return theta ** int(e.index or 0)
         if e.name == "rQ":
             return e.form.series(prec)
+        if e.name == "pbar":
+            # sum pbar(n) q^n = prod (1 + q^n) / (1 - q^n) = f_2 / f_1^2 = eta(2 tau) / eta(tau)^2
+            # (Corteel and Lovejoy, "Overpartitions", Trans. AMS 356 (2004), §1).
+            return EtaQuotient.of({2: 1, 1: -2}).series(prec)
         if e.name == "coef":
             if self._series_of is None:
                 raise NotEvaluable("coefficients of defined forms are not available here")

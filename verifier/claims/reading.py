@@ -67,10 +67,12 @@ def _term(
         return None
     gen = partition_function(node.name, products, forms)
     lin = _linear(node.argument, var)
-    if gen is None or lin is None or lin[0] < 2 or lin[1] < 0:
+    if gen is None or lin is None or lin[0] < 1 or lin[1] < 0:
         return None
     name = "\\overline{p}" if node.name == "\\pbar" else node.name
-    return gen, lin[0], lin[1], f"{name}({lin[0]}{var}+{lin[1]})"
+    m, t = lin
+    inside = (f"{m}{var}" if m > 1 else var) + (f"+{t}" if t else "")
+    return gen, m, t, f"{name}({inside})"
 
 
 def _is_q_power(node: ast.Node, var: str) -> bool:
