@@ -30,10 +30,11 @@ from typing import Any
 
 from verifier.recheck import arith
 from verifier.recheck.atoms import eisenstein
-from verifier.recheck.graded import Unsupported, g_add
+from verifier.recheck.graded import Unsupported, g_add, plain
 from verifier.recheck.series import Series
 
 MAX_COMBINATIONS = 10_000
+DIRECT_SCAN = 30  # coefficients of left - right scanned directly, at least
 
 
 def _valuation(x: Fraction, p: int) -> int:
@@ -130,6 +131,7 @@ def recheck_congruence(claim: Any, cert: dict[str, Any], reasons: list[str], not
     for d in stated.values():
         if d.get("weight") is not None:
             need = max(need, arith.sturm_bound(Fraction(int(d["weight"])), level) + 1)
+    need = max(need, DIRECT_SCAN)
     ev = claim.evaluate(need)
     (nl, _), (nr, _) = (ev.side(t) for t in claim.trees)
     diff = g_add(nl, nr, -1)
@@ -143,6 +145,12 @@ def recheck_congruence(claim: Any, cert: dict[str, Any], reasons: list[str], not
         if (w - 2 * j, j, c) not in diff:
             reasons.append(f"the certificate's piece of weight {w} (E_2^{j}, character {c}) does not occur")
     pieces = [(w, j, c, s) for (w, j, c), s in diff.items() if not s.is_zero()]
+    # Direct scan: every known coefficient of left - right must be 0 mod M.
+    total = plain(diff, ev.e2, need)
+    for n in range(min(total.lo, need), need):
+        if _residue(total[n], modulus) != 0:
+            reasons.append(f"the coefficient of q^{n} of left - right is {total[n]}, not 0 mod {modulus}")
+            return
     biggest = 0
     for (p, e), detail in sorted(stated.items()):
         bound = _prime_power(pieces, p, e, level, detail, reasons)
