@@ -124,7 +124,7 @@ def recheck_congruence(claim: Any, cert: dict[str, Any], reasons: list[str], not
             raise Unsupported("a congruence between quotients")
         keys |= set(n)
     need = 1
-    for w, j, _ in keys:
+    for w, _j, _ in keys:
         if w.denominator != 1 or w < 0:
             raise Unsupported("a congruence with a piece of half-integral or negative weight")
         need = max(need, arith.sturm_bound(w, level) + 1)

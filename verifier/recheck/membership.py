@@ -128,7 +128,8 @@ def dimension_facts(level: int) -> dict[str, Any]:
 def dimension(k: int, level: int, cusp: bool) -> int:
     """dim M_k or S_k of Gamma_0(N), trivial character (module docstring)."""
     f = dimension_facts(level)
-    g, (e2, e3), ec = f["genus"], f["elliptic_points"], f["cusps"]
+    g, ec = int(f["genus"]), int(f["cusps"])
+    e2, e3 = (int(x) for x in f["elliptic_points"])
     if k < 0 or k % 2:
         return 0
     if k == 0:
