@@ -200,3 +200,20 @@ def test_dimension_formula_against_tables() -> None:
         expected = k // 12 + (0 if k % 12 == 2 else 1)
         assert dimension(k, 1, False) == expected, k
     assert dimension(3, 5, False) == 0  # odd weight, -I in Gamma_0(N): common practice
+
+
+def test_cusp_forms_built_from_delta_are_confirmed() -> None:
+    # Delta(2 tau) in S_12(Gamma_0(2)) and E_4 Delta in S_16(SL_2(Z)): Delta vanishes at every
+    # cusp (Delta = eta^24, Ligozat's formula; Serre, A Course in Arithmetic, VII.4.4).
+    text = r"""
+<!-- @claim -->
+$$ \Delta(2\tau) \in S_{12}(\Gamma_0(2)) $$
+
+<!-- @claim -->
+$$ E_4\Delta \in S_{16}(\Gamma_0(1)) $$
+"""
+    data = json.loads(json.dumps(check_text(text, "d.md").to_dict()))
+    for claim in data["claims"]:
+        assert claim["verdict"] == "proved", claim["message"]
+        result = recheck(claim["certificate"])
+        assert result.status == CONFIRMED, result.reasons
