@@ -22,6 +22,7 @@ from verifier.recheck.run import EXIT_FAILED, recheck_report
 REPO = Path(__file__).resolve().parent.parent
 SAMPLES = REPO / "sample_docs"
 RECHECK = REPO / "verifier" / "recheck"
+CHECKED = ("sturm", "valence", "expansion", "witness", "sturm-congruence", "cusp-orders", "dimension-formula")
 
 # Identities whose truth is classical (the source beside each).
 MANUSCRIPT = r"""
@@ -83,7 +84,7 @@ def test_sample_manuscripts_are_confirmed_or_named_as_not_rechecked() -> None:
         assert len(done.entries) == len(proved)
         for claim, result in done.entries:
             assert result.status != FAILED, (claim["source"], result.reasons)
-            if claim["certificate"]["method"] in ("sturm", "valence", "expansion", "witness"):
+            if claim["certificate"]["method"] in CHECKED:
                 assert result.status == CONFIRMED, (claim["source"], result.reasons)
             else:
                 assert result.status == NOT_RECHECKED and result.reasons

@@ -26,6 +26,7 @@ from verifier.arith.genfun import Untranslatable, add, const, generating_functio
 from verifier.arith.values import NotEvaluable, Values
 from verifier.elaborate import ir
 from verifier.numbers import prime_factors
+from verifier.prove import certificate, groups
 from verifier.prove.evaluate import laurent_to
 from verifier.prove.outcome import Witness, differ_modulo
 from verifier.prove.prover import Outcome, Prover, _frac_str
@@ -297,6 +298,16 @@ def _congruence(
             method="sturm-congruence",
             bound=decision.bound,
             components=decision.details,
+            certificate=certificate.congruence(
+                left,
+                right,
+                claim.modulus,
+                level,
+                groups.index_gamma0(level),
+                decision.bound,
+                [(pc.weight, pc.e2_power, pc.kernel) for pc in pieces],
+                decision.details,
+            ),
         )
     return Outcome(
         "unproven",

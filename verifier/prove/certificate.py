@@ -29,9 +29,21 @@ Fields (``format`` 1):
   them when there are at most :data:`MAX_LISTED`;
 * ``witness`` (method ``witness``): ``{"n", "left", "right"}``, the exponent (in the
   certificate's exponents) and the two different exact values there;
+* ``sturm-congruence`` (a congruence ``left = right (mod modulus)`` for every n, proved piece by
+  piece modulo each prime power): ``left``, ``right`` (the generating functions), ``modulus``,
+  ``level``, ``index``, ``pieces`` (``{"weight", "e2_power", "character"}`` of each piece of
+  ``left - right``, numbered from 0) and ``prime_powers``: per prime power p^e, what the proof
+  used (``vanishing_pieces`` with their own bounds, ``scaled_by`` p^a, ``e2_replaced_by``,
+  ``multipliers`` per piece, the common ``weight`` and its ``bound``);
+* ``cusp-orders`` (``f in M_k`` or ``S_k``): ``form`` (``{"expr"}``), ``space`` (``{"weight",
+  "level", "character", "cusp_forms", "group"}``), ``form_level`` (the least level found for
+  the form) and ``cusp_order_bounds`` (lower bounds of the orders at the cusps c/d, keyed by d);
+* ``dimension-formula``: ``space`` (``{"weight", "level", "cusp_forms"}``), the ``dimension``
+  and the facts of the formula: ``index``, ``elliptic_points`` ([e_2, e_3]), ``cusps``,
+  ``genus``;
 * ``sturm``/``valence`` certificates carry ``space``, ``pieces``, ``bound``, ``index`` (and
   ``cusp_order_bounds``) and ``coefficients``; ``expansion`` carries ``coefficients``;
-  other methods carry only ``method``, ``kind``, ``space_used`` and ``bound``.
+  other methods (values, ``solve=``, progressions) carry only ``method``, ``kind``, ``space_used`` and ``bound``.
 
 Expressions (S-expressions, written as text):
 
@@ -63,7 +75,9 @@ from verifier.prove.outcome import frac_str
 FORMAT = 1
 MAX_LISTED = 40
 # Methods whose certificates :mod:`verifier.recheck` re-verifies.
-CHECKABLE = frozenset({"sturm", "valence", "expansion", "witness"})
+CHECKABLE = frozenset(
+    {"sturm", "valence", "expansion", "witness", "sturm-congruence", "cusp-orders", "dimension-formula"}
+)
 
 
 def sexpr(expr: ir.Expr) -> str:
@@ -167,3 +181,66 @@ def make(
 def minimal(method: str | None, kind: str, space: dict[str, Any] | None, bound: int | None) -> dict[str, Any]:
     """The certificate of a proof outside the re-checker's reach: what was used, no sides."""
     return {"format": FORMAT, "method": method or kind, "kind": kind, "space_used": space, "bound": bound}
+
+
+def congruence(
+    left: ir.Side,
+    right: ir.Side,
+    modulus: int,
+    level: int,
+    index: int,
+    bound: int | None,
+    pieces: list[tuple[Fraction, int, int]],
+    prime_powers: list[dict[str, Any]],
+) -> dict[str, Any]:
+    """The certificate of a congruence proved modulo each prime power (method ``sturm-congruence``)."""
+    return {
+        "format": FORMAT,
+        "method": "sturm-congruence",
+        "kind": "congruence",
+        "space_used": None,
+        "relation": "=",
+        "left": side_record(left),
+        "right": side_record(right),
+        "modulus": modulus,
+        "level": level,
+        "index": index,
+        "bound": bound,
+        "pieces": [{"weight": frac_str(w), "e2_power": j, "character": k} for w, j, k in pieces],
+        "prime_powers": prime_powers,
+    }
+
+
+def membership(
+    side: ir.Side,
+    space_used: dict[str, Any],
+    space: dict[str, Any],
+    form_level: int,
+    bounds: dict[int, Fraction],
+) -> dict[str, Any]:
+    """The certificate of ``f in M_k`` or ``S_k`` (method ``cusp-orders``)."""
+    return {
+        "format": FORMAT,
+        "method": "cusp-orders",
+        "kind": "membership",
+        "space_used": space_used,
+        "bound": None,
+        "form": {"expr": sexpr(side.expr)},
+        "space": space,
+        "form_level": form_level,
+        "cusp_order_bounds": {str(d): frac_str(v) for d, v in sorted(bounds.items())},
+    }
+
+
+def dimension(space_used: dict[str, Any], space: dict[str, Any], dim: int, facts: dict[str, Any]) -> dict[str, Any]:
+    """The certificate of ``dim M_k = d`` (method ``dimension-formula``)."""
+    return {
+        "format": FORMAT,
+        "method": "dimension-formula",
+        "kind": "dimension",
+        "space_used": space_used,
+        "bound": None,
+        "space": space,
+        "dimension": dim,
+        **facts,
+    }

@@ -21,7 +21,7 @@ from verifier.elaborate.rescale import rescale_factor
 from verifier.forms import registry
 from verifier.numbers import QuadraticCharacter
 from verifier.parse.spaces import SpaceSpec
-from verifier.prove import groups, orders
+from verifier.prove import certificate, groups, orders
 from verifier.prove.evaluate import graded_fraction, laurent_to
 from verifier.prove.prover import Outcome, Prover, Setup, _first_nonzero, _frac_str, space_of
 
@@ -189,6 +189,21 @@ def decide_membership(prover: Prover, side: ir.Side, spec: SpaceSpec) -> Outcome
         space,
         "cusp-orders",
         components=[{"cusp_denominator": d, "order_at_least": _frac_str(v)} for d, v in sorted(bounds.items())],
+        certificate=None
+        if spec.group_kind != "Gamma0"
+        else certificate.membership(
+            side,
+            space,
+            {
+                "weight": _frac_str(spec.weight),
+                "level": spec.level,
+                "character": wanted,
+                "cusp_forms": spec.cusp,
+                "group": spec.group_kind,
+            },
+            level,
+            bounds,
+        ),
     )
 
 
@@ -226,7 +241,13 @@ def decide_dimension(spec: SpaceSpec, stated: int) -> Outcome:
     msg = f"{what} = {dim} (genus {g}, {e2} and {e3} elliptic points of order 2 and 3, {einf} cusps)"
     if verdict == "refuted":
         msg = f"{what} is {dim}, not {stated} (genus {g}, elliptic points {e2}, {e3}, {einf} cusps)"
-    return Outcome(verdict, "dimension", msg, space, "dimension-formula", None, 0)
+    cert = certificate.dimension(
+        space,
+        {"weight": kk, "level": spec.level, "cusp_forms": spec.cusp},
+        dim,
+        {"index": groups.index_gamma0(spec.level), "elliptic_points": [e2, e3], "cusps": einf, "genus": g},
+    )
+    return Outcome(verdict, "dimension", msg, space, "dimension-formula", None, 0, certificate=cert)
 
 
 def decide_eigenform(prover: Prover, side: ir.Side) -> Outcome:

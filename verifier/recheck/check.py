@@ -60,11 +60,44 @@ def recheck(cert: Any) -> Result:
             return _expansion(cert)
         if method == "witness":
             return _witness(cert)
+        if method in _BY_PARTS:
+            return _by_parts(cert, method)
     except (Unsupported, TooLarge) as exc:
         return Result(NOT_RECHECKED, [str(exc)])
     except (Malformed, KeyError, TypeError, ValueError, ZeroDivisionError, Unknown) as exc:
         return Result(FAILED, [f"the certificate cannot be read or evaluated: {type(exc).__name__}: {exc}"])
-    return Result(NOT_RECHECKED, [f"the method {method!r} has no independent re-check"])
+    why = _NOT_COVERED.get(str(method), "this re-checker has no independent re-check for it")
+    return Result(NOT_RECHECKED, [f"the method {method!r}: {why}"])
+
+
+_BY_PARTS = ("sturm-congruence", "cusp-orders", "dimension-formula")
+_NOT_COVERED = {
+    "computation": "values of arithmetic functions are not recomputed by this re-checker",
+    "linear-algebra": "solved unknowns are not re-derived by this re-checker",
+    "u-operator": "progressions (U_m and the eta-quotient multiplier) are not re-checked yet",
+}
+
+
+def _by_parts(cert: dict[str, Any], method: str) -> Result:
+    """Congruences, memberships and dimensions (:mod:`verifier.recheck.congruence`, ``.membership``)."""
+    from verifier.recheck.congruence import recheck_congruence
+    from verifier.recheck.membership import recheck_dimension, recheck_membership
+
+    reasons: list[str] = []
+    notes: list[str] = []
+    if method == "sturm-congruence":
+        if "left" not in cert:
+            return Result(NOT_RECHECKED, ["the congruence certificate carries no sides"])
+        recheck_congruence(_Claim(cert), cert, reasons, notes)
+    elif method == "cusp-orders":
+        if "form" not in cert:
+            return Result(NOT_RECHECKED, ["the membership certificate carries no form (e.g. the form 0)"])
+        recheck_membership(cert, reasons, notes)
+    else:
+        if "dimension" not in cert:
+            return Result(NOT_RECHECKED, ["the dimension certificate carries no dimension"])
+        recheck_dimension(cert, reasons, notes)
+    return Result(FAILED, reasons, notes) if reasons else Result(CONFIRMED, notes=notes)
 
 
 class _Claim:

@@ -180,7 +180,9 @@ class Atoms:
         return arith.kernel_product(arith.eta_kernel(with_theta), -1 if int(w + Fraction(1, 2)) % 2 else 1)
 
     def order_at(self, atom: list[Any], level: int, c_den: int) -> Fraction:
-        """A lower bound for the order of the atom at the cusps a/c_den (exact for eta quotients)."""
+        """A lower bound for the order of the atom at the cusps a/c_den (exact for eta quotients and Delta)."""
+        if atom[0] == "Delta":  # Delta(d tau) = eta(d tau)^24
+            return arith.ligozat_order([(_int(atom[1], "a scale"), 24)], level, c_den)
         if atom[0] != "eta":
             return Fraction(0)  # holomorphic at every cusp
         return arith.ligozat_order(_eta_pairs(atom[1:]), level, c_den)

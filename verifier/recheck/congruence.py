@@ -1,0 +1,245 @@
+"""Re-check a congruence ``left = right (mod M)`` for every n (certificate method ``sturm-congruence``).
+
+The difference F = left - right is recomputed as pieces f E_2^j (f a modular form on
+Gamma_0(N) of one weight and quadratic character).  For every prime power p^e || M,
+independently of the certificate's own arithmetic:
+
+1. a piece whose coefficients through the Sturm bound of its own weight are p-integral and
+   0 mod p^e is 0 mod p^e everywhere (Sturm's theorem, J. Sturm, LNM 1240, 1987, which
+   holds modulo prime powers; a p-adic denominator would show within that bound too);
+2. of the other pieces, p^a is the largest p-power in a denominator within each piece's own
+   bound; E_2 is replaced by E_{p+1} (p >= 5, E_2 = E_{p+1} mod p: J.-P. Serre, "Congruences
+   et formes modulaires", Sem. Bourbaki 416, 1972) or by 1 (E_2 = 1 - 24 sum sigma(n) q^n,
+   so E_2 = 1 mod 8 and mod 3), only where that substitution is exact enough;
+3. each piece is multiplied by a level-one form H = 1 (mod p^(a+e)) up to the certificate's
+   common weight K: powers of E_{p-1} (p >= 5; E_{p-1} = 1 mod p by von Staudt-Clausen), of
+   E_4 = 1 + 240(...) and E_6 = 1 - 504(...) (p = 2, 3), and H = 1 (mod p^b) gives
+   H^p = 1 (mod p^(b+1)) (common practice);
+4. G = sum p^a f_i S^j_i H_i lies in M_K(Gamma_0(N), chi), and it must be 0 mod p^(a+e)
+   through floor(K [SL_2(Z) : Gamma_0(N)] / 12).
+
+Multipliers are this module's own choice; a common weight they cannot reach leaves the
+certificate not re-checked (never failed).
+"""
+
+from __future__ import annotations
+
+import math
+from fractions import Fraction
+from typing import Any
+
+from verifier.recheck import arith
+from verifier.recheck.atoms import eisenstein
+from verifier.recheck.graded import Unsupported, g_add, plain
+from verifier.recheck.series import Series
+
+MAX_COMBINATIONS = 10_000
+DIRECT_SCAN = 30  # coefficients of left - right scanned directly, at least
+
+
+def _valuation(x: Fraction, p: int) -> int:
+    num, den, v = x.numerator, x.denominator, 0
+    while num % p == 0:
+        num //= p
+        v += 1
+    while den % p == 0:
+        den //= p
+        v -= 1
+    return v
+
+
+def _residue(x: Fraction, m: int) -> int | None:
+    """x mod m, None when the denominator is not prime to m."""
+    if math.gcd(x.denominator, m) != 1:
+        return None
+    return x.numerator * pow(x.denominator, -1, m) % m
+
+
+def _residues(s: Series, stop: int, mod: int, what: str) -> list[int]:
+    out = []
+    for n in range(stop):
+        r = _residue(s[n], mod)
+        if r is None:
+            raise Unsupported(f"{what} is not integral modulo {mod}")
+        out.append(r)
+    return out
+
+
+def _mul_mod(a: list[int], b: list[int], m: int) -> list[int]:
+    out = [0] * len(a)
+    for i, x in enumerate(a):
+        if x:
+            for j in range(len(a) - i):
+                out[i + j] = (out[i + j] + x * b[j]) % m
+    return out
+
+
+def _multipliers(p: int, t: int) -> list[tuple[int, int]]:
+    """(k, power): E_k^power = 1 (mod p^t), of weight k * power (step 3 of the module docstring)."""
+    if p >= 5:
+        return [(p - 1, p ** (t - 1))]
+    # E_4 = 1 mod 2^4 * 3, E_6 = 1 mod 2^3 * 3^2 (from 240 and 504).
+    have = {2: {4: 4, 6: 3}, 3: {4: 1, 6: 2}}[p]
+    return [(k, p ** max(0, t - a)) for k, a in have.items()]
+
+
+def _combination(gap: int, gens: list[tuple[int, int]]) -> list[int] | None:
+    """Nonnegative exponents n_g with sum n_g * weight_g = gap (None if there are none)."""
+    weights = [k * e for k, e in gens]
+    if gap < 0:
+        return None
+    if len(weights) == 1:
+        return [gap // weights[0]] if gap % weights[0] == 0 else None
+    w0, w1 = weights
+    for n0 in range(min(gap // w0, MAX_COMBINATIONS) + 1):
+        rest = gap - n0 * w0
+        if rest % w1 == 0:
+            return [n0, rest // w1]
+    return None
+
+
+def recheck_congruence(claim: Any, cert: dict[str, Any], reasons: list[str], notes: list[str]) -> None:
+    """Append to ``reasons`` what does not hold up (``claim`` is a ``check._Claim``)."""
+    level = claim.level
+    modulus = int(cert["modulus"])
+    if modulus < 2:
+        reasons.append(f"modulus {modulus} is not at least 2")
+        return
+    if int(cert.get("level", -1)) != level:
+        reasons.append(f"level: certificate {cert.get('level')}, recomputed {level}")
+    index = arith.index_gamma0(level)
+    if int(cert.get("index", -1)) != index:
+        reasons.append(f"index of Gamma_0({level}): certificate {cert.get('index')}, recomputed {index}")
+    stated = {(int(d["prime"]), int(d["exponent"])): d for d in cert.get("prime_powers", [])}
+    mine = sorted(arith.factor(modulus).items())
+    if sorted(stated) != mine:
+        reasons.append(f"prime powers of {modulus}: certificate {sorted(stated)}, recomputed {mine}")
+        return
+    # How far the pieces are needed: their own bounds and the stated common weights' bounds.
+    probe = claim.evaluate(2)
+    keys = set()
+    for tree in claim.trees:
+        n, d = probe.side(tree)
+        if d is not None:
+            raise Unsupported("a congruence between quotients")
+        keys |= set(n)
+    need = 1
+    for w, _j, _ in keys:
+        if w.denominator != 1 or w < 0:
+            raise Unsupported("a congruence with a piece of half-integral or negative weight")
+        need = max(need, arith.sturm_bound(w, level) + 1)
+    for d in stated.values():
+        if d.get("weight") is not None:
+            need = max(need, arith.sturm_bound(Fraction(int(d["weight"])), level) + 1)
+    need = max(need, DIRECT_SCAN)
+    ev = claim.evaluate(need)
+    (nl, _), (nr, _) = (ev.side(t) for t in claim.trees)
+    diff = g_add(nl, nr, -1)
+    listed = {(Fraction(str(q["weight"])), int(q["e2_power"]), int(q["character"])) for q in cert.get("pieces", [])}
+    for (w, j, c), s in sorted(diff.items()):
+        if (w + 2 * j, j, c) not in listed and not s.is_zero():
+            reasons.append(
+                f"the piece of weight {w + 2 * j} (E_2^{j}, character {c}) of left - right is not in the certificate"
+            )
+    for w, j, c in sorted(listed):
+        if (w - 2 * j, j, c) not in diff:
+            reasons.append(f"the certificate's piece of weight {w} (E_2^{j}, character {c}) does not occur")
+    pieces = [(w, j, c, s) for (w, j, c), s in diff.items() if not s.is_zero()]
+    # Direct scan: every known coefficient of left - right must be 0 mod M.
+    total = plain(diff, ev.e2, need)
+    for n in range(min(total.lo, need), need):
+        if _residue(total[n], modulus) != 0:
+            reasons.append(f"the coefficient of q^{n} of left - right is {total[n]}, not 0 mod {modulus}")
+            return
+    biggest = 0
+    for (p, e), detail in sorted(stated.items()):
+        bound = _prime_power(pieces, p, e, level, detail, reasons)
+        biggest = max(biggest, bound)
+    if int(cert.get("bound", -1)) != biggest:
+        reasons.append(f"bound: certificate {cert.get('bound')}, recomputed {biggest}")
+
+
+def _prime_power(
+    pieces: list[tuple[Fraction, int, int, Series]],
+    p: int,
+    e: int,
+    level: int,
+    detail: dict[str, Any],
+    reasons: list[str],
+) -> int:
+    """Steps 1-4 for p^e; the bound used."""
+    q = p**e
+    active = []
+    own = 0
+    for w, j, c, s in pieces:
+        b = arith.sturm_bound(w, level)
+        own = max(own, b)
+        if all(_residue(s[n], q) == 0 for n in range(b + 1)):
+            continue
+        active.append((w, j, c, s, b))
+    if not active:
+        if detail.get("bound") is not None and int(detail["bound"]) != own:
+            reasons.append(f"mod {q}: bound: certificate {detail['bound']}, recomputed {own}")
+        return own
+    if len({c for _, _, c, _, _ in active}) > 1:
+        reasons.append(f"mod {q}: the pieces not 0 mod {q} by themselves carry different characters")
+        return 0
+    dens = []
+    for _, _, _, s, b in active:
+        vals = [_valuation(s[n], p) for n in range(b + 1) if s[n] != 0]
+        dens.append(max(0, -min(vals)) if vals else 0)
+    a = max(dens)
+    t = a + e
+    mod = p**t
+    if detail.get("weight") is None:
+        reasons.append(f"mod {q}: the certificate gives no common weight for the pieces not 0 mod {q}")
+        return 0
+    big_k = int(detail["weight"])
+    big_b = arith.sturm_bound(Fraction(big_k), level)
+    if int(detail.get("bound", -1)) != big_b:
+        reasons.append(f"mod {q}: bound of weight {big_k}: certificate {detail.get('bound')}, recomputed {big_b}")
+    stop = big_b + 1
+    # E_2 substitutes S = E_2 (mod p^s): (weight of S, s).
+    sub = (p + 1, 1) if p >= 5 else ((0, 3) if p == 2 else (0, 1))
+    gens = _multipliers(p, t)
+    gen_res = []
+    for k, power in gens:
+        base = _residues(eisenstein(k, stop), stop, mod, f"E_{k}")
+        res = [1 % mod] + [0] * (stop - 1)
+        for _ in range(power if stop > 1 else 0):
+            res = _mul_mod(res, base, mod)
+        if res != [1 % mod] + [0] * (stop - 1):
+            reasons.append(f"mod {q}: E_{k}^{power} is not 1 mod {mod} through q^{big_b}")
+            return big_b
+        gen_res.append((base, power))
+    s_res = [1 % mod] + [0] * (stop - 1)
+    if sub[0]:
+        s_res = _residues(eisenstein(sub[0], stop), stop, mod, f"E_{sub[0]}")
+    total = [0] * stop
+    for (w, j, _, s, _), a_i in zip(active, dens, strict=True):
+        if j and a_i > sub[1] - e:
+            raise Unsupported(f"mod {q}: E_2 is known only mod {p}^{sub[1]} here, too little for this piece")
+        k_i = int(w) + j * sub[0]
+        exps = _combination(big_k - k_i, gens)
+        if exps is None:
+            raise Unsupported(f"mod {q}: this re-checker's multipliers do not join weight {k_i} to {big_k}")
+        term = []
+        for n in range(stop):
+            r = _residue(s[n] * p**a, mod)
+            if r is None:
+                reasons.append(f"mod {q}: a piece has more than {p}^{a} in the denominator of q^{n}")
+                return big_b
+            term.append(r)
+        for _ in range(j):
+            term = _mul_mod(term, s_res, mod)
+        for (base, power), n_g in zip(gen_res, exps, strict=True):
+            for _ in range(n_g * power):
+                term = _mul_mod(term, base, mod)
+        total = [(x + y) % mod for x, y in zip(total, term, strict=True)]
+    bad = next((n for n, r in enumerate(total) if r), None)
+    if bad is not None:
+        reasons.append(
+            f"mod {q}: the weight-{big_k} form built from left - right has coefficient {total[bad]} mod {mod} "
+            f"at q^{bad}, within its bound {big_b}"
+        )
+    return big_b
