@@ -504,3 +504,19 @@ def test_a_printed_expansion_behind_a_power_of_q() -> None:
     report = check_text(text)
     assert [r.verdict for r in report.claims] == ["proved", "refuted", "proved"]
     assert report.claims[1].outcome.first_difference == {"n": "5/3", "left": str(c[2]), "right": str(c[2] - 1)}
+
+
+def test_a_constant_times_a_power_of_q_in_front_of_a_product() -> None:
+    # The 2-dissection 1/f_1^2 = f_8^5/(f_2^5 f_16^2) + 2q f_4^2 f_16^2/(f_2^5 f_8) (Hirschhorn,
+    # The Power of q, ch. 1, from memory); 2q in front of a product is q^1 times a form, so the claim
+    # is an identity of eta quotients; with 3q it is false at q^1 (2 partitions into two colours).
+    from verifier import check_text
+
+    text = (
+        "%@define f_k = (q^k;q^k)_\\infty\n"
+        "%@claim\n\\[ \\frac{1}{f_1^2} = \\frac{f_8^5}{f_2^5f_{16}^2} + 2q\\frac{f_4^2f_{16}^2}{f_2^5f_8} \\]\n"
+        "%@claim\n\\[ \\frac{1}{f_1^2} = \\frac{f_8^5}{f_2^5f_{16}^2} + 3q\\frac{f_4^2f_{16}^2}{f_2^5f_8} \\]\n"
+    )
+    report = check_text(text)
+    assert [c.verdict for c in report.claims] == ["proved", "refuted"]
+    assert report.claims[1].outcome.first_difference == {"n": 1, "left": "2", "right": "3"}

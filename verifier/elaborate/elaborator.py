@@ -832,6 +832,11 @@ def _unshift(e: ir.Expr) -> tuple[ir.Expr, Fraction] | None:
         return e.base, e.exponent
     if isinstance(e, ir.QPower):
         return ir.Const(ir.Typ(Fraction(0)), "1", Fraction(1)), e.exponent
+    if isinstance(e, ir.Product) and e.left is not None and e.right is not None:
+        # 2q, q \cdot 3: a constant times a power of q.
+        for c, p in ((e.left, e.right), (e.right, e.left)):
+            if isinstance(c, ir.Const) and isinstance(p, ir.QPower):
+                return ir.Const(ir.Typ(Fraction(0)), c.text, c.value), p.exponent
     return None
 
 
