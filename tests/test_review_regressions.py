@@ -181,3 +181,30 @@ def test_delta_is_a_cusp_form_on_every_gamma0() -> None:
         "%@claim\n\\[ \\Delta + E_{12} \\in S_{12}(\\Gamma_0(2)) \\]\n"
     )
     assert [c.verdict for c in check_text(text).claims] == ["proved", "proved", "proved", "refuted"]
+
+
+def test_kronecker_symbols_written_as_bracketed_fractions() -> None:
+    # Jacobi's two-square theorem r_2(n) = 4 sum_{d | n} (-4/d) (Grosswald, Representations of
+    # Integers as Sums of Squares, ch. 2, Thm. 2), once refuted because (-4/d) was read as -4 over d.
+    # a(q) = 1 + 6 sum (d/3) q^n (Borwein, Borwein and Garvan 1994, from memory); the sum over
+    # x^2 + 2y^2 is 1 + 2 sum (-8/d) q^n (Dirichlet's formula for a form of class number one,
+    # common practice).  (n/d) in brackets could be a symbol or a fraction: it is refused.
+    text = (
+        "%@claim\n\\[ r_2(n) = 4\\sum_{d\\mid n}\\left(\\frac{-4}{d}\\right) \\]\n"
+        "%@claim\n\\[ r_2(n) = 4\\sum_{d\\mid n}\\left(\\frac{4}{d}\\right) \\]\n"
+        "%@claim\n\\[ \\sum_{x,y\\in\\mathbb Z}q^{x^2+xy+y^2} = 1+6\\sum_{n\\ge1}\\sum_{d\\mid n}\\left(\\frac{d}{3}\\right)q^n \\]\n"
+        "%@claim\n\\[ \\sum_{x,y\\in\\mathbb Z}q^{x^2+2y^2} = 1+2\\sum_{n\\ge1}\\sum_{d\\mid n}\\left(\\frac{-8}{d}\\right)q^n \\]\n"
+        "%@claim\n\\[ \\sum_{x,y\\in\\mathbb Z}q^{x^2+2y^2} = 1+2\\sum_{n\\ge1}\\sum_{d\\mid n}\\left(\\frac{-4}{d}\\right)q^n \\]\n"
+        "%@claim\n\\[ \\sum_{d\\mid n} \\left(\\frac{n}{d}\\right)^2 = \\sigma_2(n) \\]\n"
+        "%@claim\n\\[ \\sum_{d\\mid n} \\left(\\frac{n}{d}\\right) = \\sigma(n) \\]\n"
+    )
+    got = [(c.verdict, c.outcome.code) for c in check_text(text).claims]
+    assert got == [
+        ("proved", None),
+        ("error", "ambiguous-notation"),
+        ("proved", None),
+        ("proved", None),
+        ("refuted", None),
+        ("error", "ambiguous-notation"),
+        ("error", "ambiguous-notation"),
+    ]

@@ -76,6 +76,11 @@ CODES: dict[str, tuple[str, str]] = {
         "The claim is written in a notation qreferee does not read yet; the message names the construct "
         "and the hint the nearest form that is read.",
     ),
+    "ambiguous-notation": (
+        "parse",
+        "The claim can be read in two ways that give different mathematics (a bracketed fraction that may be "
+        "a Kronecker symbol); qreferee does not guess.",
+    ),
     "series-only": (
         "prove",
         "The sides are q-series with no modular proof here (a product that is no eta quotient, a weighted sum "
@@ -150,6 +155,10 @@ EXAMPLES: dict[str, tuple[str, str]] = {
     "unsupported-notation": (
         "\\prod_{n\\ge1}(1-q^n)^{n} = ...   (an infinite product with a non-periodic exponent)",
         "give each factor a constant exponent, (1-q^{Mn+a})^{r}, or write a q-Pochhammer symbol (q^a;q^M)_\\infty",
+    ),
+    "ambiguous-notation": (
+        "\\sum_{d\\mid n}\\left(\\frac{n}{d}\\right)^2   (the Jacobi symbol (n/d), or the fraction n/d?)",
+        "write \\chi_{D}(n) for a Kronecker symbol, or the fraction without brackets: \\frac{n}{d}",
     ),
     "series-only": (
         "(q;q^5)_\\infty (q^4;q^5)_\\infty = \\prod_{n\\ge1}(1-q^{5n-1})(1-q^{5n-4})   (no eta quotient)",

@@ -34,6 +34,7 @@ FOR_CODE: dict[str, str] = {
     "time-budget": "unproven",
     "no-witness": "witness",
     "unsupported-notation": "products",
+    "ambiguous-notation": "characters",
     "series-only": "series-only",
 }
 

@@ -14,6 +14,7 @@ Rules (level one and ``f(d tau)``):
 
 from __future__ import annotations
 
+import dataclasses
 import math
 import re
 from dataclasses import dataclass
@@ -404,16 +405,29 @@ class Elaborator:
 
         if node.kind != "at_least" or node.lower is None:
             raise _err("unsupported", "a finite sum is an arithmetic expression, not a form", "", node)
+
+        def is_q_to_var(f: ast.Node) -> bool:
+            return (
+                isinstance(f, ast.Power)
+                and isinstance(f.base, ast.Name)
+                and f.base.text == "q"
+                and isinstance(f.exponent, ast.Name)
+                and f.exponent.text == node.var
+            )
+
         body_factors = _factors(node.body)
-        qpow = [
-            f
-            for f in body_factors
-            if isinstance(f, ast.Power)
-            and isinstance(f.base, ast.Name)
-            and f.base.text == "q"
-            and isinstance(f.exponent, ast.Name)
-            and f.exponent.text == node.var
-        ]
+        qpow = [f for f in body_factors if is_q_to_var(f)]
+        if not qpow and len(body_factors) == 1 and isinstance(body_factors[0], ast.BigSum):
+            # \sum_{n\ge1}\sum_{d\mid n} w(d) q^n: the inner sum's body took q^n along (a sum's body
+            # runs to the next + or -); q^n does not depend on d, so it stands outside.
+            inner = body_factors[0]
+            inner_factors = _factors(inner.body)
+            found = [f for f in inner_factors if is_q_to_var(f)]
+            if len(found) == 1 and inner.var != node.var:
+                kept = [f for f in inner_factors if f is not found[0]]
+                body = _product_node(kept) if kept else ast.Number(inner.span, 1)
+                body_factors = [dataclasses.replace(inner, body=body), found[0]]
+                qpow = found
         if len(qpow) != 1:
             raise _err("unsupported", f"a generating-function sum needs the factor q^{node.var}", "", node)
         rest = [f for f in body_factors if f is not qpow[0]]

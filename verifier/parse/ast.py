@@ -99,6 +99,12 @@ class Call(Node):
 
 
 @dataclass(frozen=True)
+class KroneckerSymbol(Call):
+    """``\\left(\\frac{D}{d}\\right)`` or ``\\left(\\frac{d}{p}\\right)`` read as the Kronecker symbol
+    ``\\chi_{D}(d)`` (docs/method.md#characters); ``name`` is that ``\\chi_{D}``."""
+
+
+@dataclass(frozen=True)
 class BigSum(Node):
     """``\\sum`` over ``var``: ``kind`` is ``"from"`` (var = lower .. upper), ``"divides"``
     (var | target) or ``"at_least"`` (var >= lower); ``upper`` None means no upper limit.

@@ -419,6 +419,13 @@ def _make_transformer() -> Any:
 
         def pow(self, meta: Any, items: list[Any]) -> ast.Node:
             base = items[0]
+            if isinstance(base, ast.KroneckerSymbol):
+                raise _BadNumber(
+                    "a power of a bracketed fraction: a Kronecker symbol or a fraction?",
+                    base.span[0],
+                    "ambiguous-notation",
+                    "write \\chi_{D}(n) for the symbol (D/n), or the fraction without brackets",
+                )
             if isinstance(base, ast.Name) and base.text == "e" and isinstance(items[1], ast.Node):
                 # e^{2\\pi i n z} is q^n (the author's variable; docs/method.md#products).
                 exponent = _nome_exponent(items[1])
@@ -438,6 +445,12 @@ def _make_transformer() -> Any:
 
         def exp_digit(self, meta: Any, items: list[Any]) -> Fraction:
             return Fraction(int(str(items[0])))
+
+        def paren(self, meta: Any, items: list[Any]) -> ast.Node:
+            """``( expr )``; a bracketed ``\\frac`` of a number and a letter is a Kronecker symbol."""
+            inner: ast.Node = items[0]
+            symbol = _kronecker_symbol(self.text[meta.start_pos : meta.end_pos], _span(meta), meta.start_pos)
+            return inner if symbol is None else symbol
 
         def call(self, meta: Any, items: list[Any]) -> ast.Node:
             if str(items[0]) == "\\exp":
@@ -623,6 +636,54 @@ def _make_transformer() -> Any:
 
 
 _RANGE_PARTS = re.compile(r"([a-z])\s*(?:\\geq?|>=|\\geqslant)\s*(-?\d+)\s*\)$")
+
+
+_PAREN_FRAC = re.compile(r"^\(\s*\\[dt]?frac\s*\{\s*([^{}]*?)\s*\}\s*\{\s*([^{}]*?)\s*\}\s*\)$")
+_SYMBOL_INT = re.compile(r"^[+-]?\s*\d{1,6}$")
+_SYMBOL_VAR = re.compile(r"^[a-z](?:_(?:\{\s*\w+\s*\}|\w))?$")
+
+
+def _kronecker_symbol(text: str, span: ast.Span, offset: int) -> ast.Node | None:
+    """``(\\frac{D}{d})`` and ``(\\frac{d}{p})`` as the Kronecker symbol, or None (a plain group).
+
+    Number theorists write the Kronecker (Legendre, Jacobi) symbol as a fraction in brackets
+    (docs/method.md#characters).  Read as a symbol: an integer D over a letter, (D/d) with D a
+    fundamental discriminant, and a letter over an odd squarefree m > 0, (d/m) = chi_{m*}(d) with
+    m* = (-1)^{(m-1)/2} m (quadratic reciprocity).  A bracketed fraction of a letter over a letter,
+    or over another integer, could be either: it is refused rather than guessed.  Two integers
+    stay a fraction.
+    """
+    m = _PAREN_FRAC.match(text)
+    if m is None:
+        return None
+    top, bottom = m.group(1).replace(" ", ""), m.group(2).replace(" ", "")
+    top_int, bottom_int = _SYMBOL_INT.match(top), _SYMBOL_INT.match(bottom)
+    top_var, bottom_var = _SYMBOL_VAR.match(top), _SYMBOL_VAR.match(bottom)
+    if not ((top_int or top_var) and (bottom_int or bottom_var)) or (top_int and bottom_int):
+        return None
+    from verifier.numbers import is_fundamental_discriminant, squarefree_kernel
+
+    ambiguous = _BadNumber(
+        f"({top}/{bottom}) in brackets: a Kronecker symbol or a fraction?",
+        offset,
+        "ambiguous-notation",
+        "write \\chi_{D}(n) for the Kronecker symbol (D/n), or the fraction without brackets",
+    )
+    arg_text = bottom if top_int else top
+    if top_int and bottom_var:
+        d = int(top)
+        if not is_fundamental_discriminant(d):
+            raise ambiguous
+    elif top_var and bottom_int:
+        p = int(bottom)
+        if p <= 0 or p % 2 == 0 or squarefree_kernel(p) != p:
+            raise ambiguous
+        d = p if p % 4 == 1 else -p
+    else:
+        raise ambiguous
+    start = span[0] + text.index(arg_text[0], text.index("{"))
+    argument = ast.Name((start, start + len(arg_text)), arg_text)
+    return ast.KroneckerSymbol(span, f"\\chi_{{{d}}}", span, argument)
 
 
 def _group_row(span: ast.Span, items: list[Any]) -> ast.Row:
