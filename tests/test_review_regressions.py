@@ -189,15 +189,18 @@ def test_kronecker_symbols_written_as_bracketed_fractions() -> None:
     # a(q) = 1 + 6 sum (d/3) q^n (Borwein, Borwein and Garvan 1994, from memory); the sum over
     # x^2 + 2y^2 is 1 + 2 sum (-8/d) q^n (Dirichlet's formula for a form of class number one,
     # common practice).  (n/d) in brackets could be a symbol or a fraction: it is refused.
-    text = (
-        "%@claim\n\\[ r_2(n) = 4\\sum_{d\\mid n}\\left(\\frac{-4}{d}\\right) \\]\n"
-        "%@claim\n\\[ r_2(n) = 4\\sum_{d\\mid n}\\left(\\frac{4}{d}\\right) \\]\n"
-        "%@claim\n\\[ \\sum_{x,y\\in\\mathbb Z}q^{x^2+xy+y^2} = 1+6\\sum_{n\\ge1}\\sum_{d\\mid n}\\left(\\frac{d}{3}\\right)q^n \\]\n"
-        "%@claim\n\\[ \\sum_{x,y\\in\\mathbb Z}q^{x^2+2y^2} = 1+2\\sum_{n\\ge1}\\sum_{d\\mid n}\\left(\\frac{-8}{d}\\right)q^n \\]\n"
-        "%@claim\n\\[ \\sum_{x,y\\in\\mathbb Z}q^{x^2+2y^2} = 1+2\\sum_{n\\ge1}\\sum_{d\\mid n}\\left(\\frac{-4}{d}\\right)q^n \\]\n"
-        "%@claim\n\\[ \\sum_{d\\mid n} \\left(\\frac{n}{d}\\right)^2 = \\sigma_2(n) \\]\n"
-        "%@claim\n\\[ \\sum_{d\\mid n} \\left(\\frac{n}{d}\\right) = \\sigma(n) \\]\n"
-    )
+    lattice = "\\sum_{x,y\\in\\mathbb Z}q^"
+    divisor_sum = "\\sum_{n\\ge1}\\sum_{d\\mid n}"
+    claims = [
+        "r_2(n) = 4\\sum_{d\\mid n}\\left(\\frac{-4}{d}\\right)",
+        "r_2(n) = 4\\sum_{d\\mid n}\\left(\\frac{4}{d}\\right)",
+        f"{lattice}{{x^2+xy+y^2}} = 1+6{divisor_sum}\\left(\\frac{{d}}{{3}}\\right)q^n",
+        f"{lattice}{{x^2+2y^2}} = 1+2{divisor_sum}\\left(\\frac{{-8}}{{d}}\\right)q^n",
+        f"{lattice}{{x^2+2y^2}} = 1+2{divisor_sum}\\left(\\frac{{-4}}{{d}}\\right)q^n",
+        "\\sum_{d\\mid n} \\left(\\frac{n}{d}\\right)^2 = \\sigma_2(n)",
+        "\\sum_{d\\mid n} \\left(\\frac{n}{d}\\right) = \\sigma(n)",
+    ]
+    text = "".join(f"%@claim\n\\[ {c} \\]\n" for c in claims)
     got = [(c.verdict, c.outcome.code) for c in check_text(text).claims]
     assert got == [
         ("proved", None),
