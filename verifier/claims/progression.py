@@ -29,7 +29,6 @@ from typing import Any
 from flint import fmpz_poly, nmod_poly
 
 from verifier.claims.products import Mono
-from verifier.forms.delta import euler_product
 from verifier.forms.eta import EtaQuotient
 from verifier.numbers import QuadraticCharacter, prime_factors
 from verifier.prove.groups import group_name, index_gamma0, sturm_bound
@@ -223,27 +222,14 @@ def product_coefficients(exps: dict[int, int], count: int) -> list[int]:
 def product_residues(exps: dict[int, int], count: int, modulus: int) -> list[int]:
     """The first ``count`` coefficients of ``prod f_delta^{r_delta}`` modulo ``modulus``.
 
-    The same product as :func:`product_coefficients`, computed in (Z/M)[q]: Euler's
-    pentagonal series, its inverse by Newton's iteration g <- g(2 - f g) (the constant term
-    is 1, a unit modulo any M), powers and the substitution q -> q^delta.
+    The numerator and denominator of :meth:`EtaQuotient.product_parts` (small integers) are
+    reduced modulo M, and the denominator is inverted in (Z/M)[q] by Newton's iteration
+    g <- g(2 - f g) (its constant term is 1, a unit modulo any M).
     """
     if count <= 0:
         return []
-    result = nmod_poly([1], modulus)
-    for delta, r in sorted(exps.items()):
-        m = -(-count // delta)
-        base = nmod_poly([int(c) for c in euler_product(m).coeffs()], modulus)
-        if r < 0:
-            base = _inverse_mod(base, m, modulus)
-        factor = base.pow_trunc(abs(r), m) if abs(r) > 1 else base
-        if delta > 1:
-            coeffs = [int(c) for c in factor.coeffs()]
-            spread = [0] * count
-            for i, c in enumerate(coeffs):
-                if i * delta < count:
-                    spread[i * delta] = c
-            factor = nmod_poly(spread, modulus)
-        result = result.mul_low(factor, count)
+    top, bottom = (nmod_poly(part, modulus) for part in EtaQuotient.of(exps).product_parts(count))
+    result = top if bottom == 1 else _inverse_mod(bottom, count, modulus).mul_low(top, count)
     out = [int(c) for c in result.coeffs()[:count]]
     return out + [0] * (count - len(out))
 
