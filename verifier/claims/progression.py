@@ -621,3 +621,63 @@ def decide_dissection(p: int, claims: tuple[Claim, ...]) -> Outcome:
         f"t = {c.t}: {o.message}" for c, o in zip(claims, outcomes, strict=True) if o.verdict != "proved"
     )
     return Outcome("unproven", "equality", f"not every class of the {p}-dissection is proved ({reasons})")
+
+
+def decide_residues(var: str, claims: tuple[Claim, ...]) -> Outcome:
+    """``a(mn + t) = 0 (mod M)`` for every listed t: one verdict for the set.
+
+    Each class is decided on its own (:func:`decide`).  Proved only when every class is
+    proved; refuted by the first listed t that is refuted (its n and both residues);
+    otherwise unproven (or an internal error), with the reasons of the classes not proved.
+    """
+    outcomes = [decide(c) for c in claims]
+    for c, o in zip(claims, outcomes, strict=True):
+        if o.verdict == "refuted":
+            w = o.witness
+            assert w is not None
+            return Outcome(
+                "refuted",
+                "congruence",
+                f"{var} = {c.t - c.m * c.start}: {o.message}",
+                method="computation",
+                first_difference=w.to_dict(),
+                terms_compared=o.terms_compared,
+            )
+    for o in outcomes:
+        if o.verdict == "error":
+            return o
+    labels = [f"{var} = {c.t - c.m * c.start}" for c in claims]
+    if all(o.verdict == "proved" for o in outcomes):
+        records = [o.progression for o in outcomes]
+        record = {"residues": [c.t - c.m * c.start for c in claims], "components": records}
+        bound = max(o.bound or 0 for o in outcomes)
+        return Outcome(
+            "proved",
+            "congruence",
+            "every listed class is proved by U_m ("
+            + "; ".join(f"{label}: bound {o.bound}" for label, o in zip(labels, outcomes, strict=True))
+            + ")",
+            method="u-operator",
+            bound=bound,
+            terms_compared=sum(o.terms_compared for o in outcomes),
+            certificate={
+                "format": 1,
+                "method": "u-operator",
+                "kind": "congruence",
+                "space_used": None,
+                "bound": bound,
+                "progression": record,
+            },
+            progression=record,
+        )
+    reasons = "; ".join(
+        f"{label}: {o.message}" for label, o in zip(labels, outcomes, strict=True) if o.verdict != "proved"
+    )
+    compared = min(o.terms_compared for o in outcomes)
+    return Outcome(
+        "unproven",
+        "congruence",
+        f"not every listed class is proved ({reasons})",
+        method="computation",
+        terms_compared=compared,
+    )
