@@ -490,3 +490,51 @@ def test_exact_products_match_the_brute_force(exps: dict[int, int]) -> None:
     poly = EtaQuotient.of(exps).product_poly(count)
     got = [int(c) for c in poly.coeffs()] + [0] * (count - poly.length())
     assert got == brute(exps, count)
+
+
+# -- internal congruences a(mn+t) = c a(n) (mod M) ----------------------------------------
+
+# sum pbar(n) q^n = 1/phi(-q) (Corteel-Lovejoy, Overpartitions, Trans. AMS 356 (2004), from
+# memory), and phi(-q) = 1 + 2 sum (-1)^k q^{k^2} = 1 (mod 2), so 1/phi(-q) = phi(-q) (mod 4):
+# pbar(n) = 2 [n a square] (mod 4) for n >= 1.  Hence pbar(4n) = pbar(n) and pbar(9n) = pbar(n)
+# (mod 4) (derived here from that identity; confirmed by brute force below).
+INTERNAL = [(4, 4), (9, 4)]
+
+
+@pytest.mark.parametrize(("m", "modulus"), INTERNAL)
+def test_internal_congruences_are_proved(m: int, modulus: int) -> None:
+    series = brute(PBAR, 40 * m)
+    assert all((series[m * n] - series[n]) % modulus == 0 for n in range(40))  # brute force
+    c = one(f"\\overline{{p}}({m}n) \\equiv \\overline{{p}}(n) \\pmod{{{modulus}}}")
+    assert c["verdict"] == "proved", c["message"]
+    assert c["method"] == "u-operator" and c["progression"]["modulus"] == modulus
+
+
+@pytest.mark.parametrize(("m", "modulus"), INTERNAL)
+def test_false_internal_congruences_are_refuted(m: int, modulus: int) -> None:
+    series = brute(PBAR, 40 * m + 2)
+    variants = [
+        (f"\\overline{{p}}({m}n) \\equiv \\overline{{p}}(n) \\pmod{{{2 * modulus}}}", 0, 1, 2 * modulus),  # modulus
+        (f"\\overline{{p}}({m}n+1) \\equiv \\overline{{p}}(n) \\pmod{{{modulus}}}", 1, 1, modulus),  # t off by one
+        (f"\\overline{{p}}({m}n) \\equiv 3\\, \\overline{{p}}(n) \\pmod{{{modulus}}}", 0, 3, modulus),  # constant
+        (f"\\overline{{p}}({m}n) \\equiv -\\overline{{p}}(n) \\pmod{{{modulus}}}", 0, -1, modulus),  # sign
+    ]
+    checked = 0
+    for text, t, coeff, mod in variants:
+        first = next((n for n in range(40) if (series[m * n + t] - coeff * series[n]) % mod), None)
+        if first is None:  # true on these terms after all; not a false neighbour
+            continue
+        checked += 1
+        c = one(text)
+        assert c["verdict"] == "refuted", (text, c["message"])
+        w = c["first_difference"]
+        assert (w["n"], int(w["left"]), int(w["right"])) == (first, series[m * first + t], coeff * series[first])
+    assert checked >= 3
+
+
+def test_internal_congruence_outside_the_method_is_unproven() -> None:
+    # p(5n+4) = 5 p(n) (mod 5) holds because both sides are 0 mod 5 (Ramanujan 1919), but the
+    # q-shifts differ (lambda != 0): no single form identity covers it.
+    c = one("p(5n+4) \\equiv 5\\, p(n) \\pmod 5")
+    assert c["verdict"] == "unproven"
+    assert "lambda" in c["message"]

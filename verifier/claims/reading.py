@@ -38,9 +38,9 @@ class Reading:
 
     claims: tuple[Claim, ...]
     dissection: int | None = None
-    residues: tuple[str, tuple[int, ...]] | None = None  # (t, listed values) of a residue set
     left: Mono | None = None  # F, for a dissection
     right: ProductSum = ()  # the claimed sum, for a dissection
+    residues: tuple[str, tuple[int, ...]] | None = None  # (t, listed values) of a residue set
 
 
 # A residue set after a claim: "(t \in \{3,5,6\})", "\text{for } t \in \{3, 5, 6\}", "for t \in \{...\}",
@@ -156,6 +156,10 @@ def read(
     """
     reader = Reader(products, forms)
     if rel == "≡" and modulus is not None and modulus > 1:
+        if residues is None and not start_n:
+            relative = _internal(left, right, modulus, products, forms)
+            if relative is not None:
+                return relative
         for a, b in ((left, right), (right, left)):
             if not (isinstance(b, ast.Number) and b.value == 0):
                 continue
@@ -196,6 +200,29 @@ def read(
     if found_dissection is None or not dissection_ok():
         return None
     return found_dissection
+
+
+def _internal(
+    left: ast.Node, right: ast.Node, modulus: int, products: Mapping[str, ProductSum], forms: Mapping[str, Any]
+) -> Reading | None:
+    """An internal congruence ``a(mn+t) \\equiv c\\, a(n) \\pmod M`` (c an integer, possibly 1 or -1)."""
+    var = _variable(left)
+    term = _term(left, var, products, forms) if var else None
+    if var is None or term is None or not _usable(term[0]):
+        return None
+    gen, m, t, what = term
+    node, sign = right, 1
+    if isinstance(node, ast.Neg):
+        node, sign = node.operand, -1
+    coeff = 1
+    if isinstance(node, ast.BinOp) and node.op == "*" and isinstance(node.left, ast.Number):
+        coeff, node = node.left.value, node.right
+    if not (isinstance(node, ast.Call) and isinstance(left, ast.Call) and node.name == left.name):
+        return None
+    if _linear(node.argument, var) != (1, 0):
+        return None
+    rhs = (Mono(Fraction(sign * coeff), Fraction(0), gen.exps),)
+    return Reading((Claim(what, dict(gen.exps), m, t, rhs, modulus),))
 
 
 def _variable(node: ast.Node, residue: str | None = None) -> str | None:
