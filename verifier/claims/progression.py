@@ -234,7 +234,7 @@ def product_residues(exps: dict[int, int], count: int, modulus: int) -> list[int
     if count <= 0:
         return []
     top, bottom = (nmod_poly(part, modulus) for part in EtaQuotient.of(exps).product_parts(count))
-    result = top if bottom == 1 else _inverse_mod(bottom, count, modulus).mul_low(top, count)
+    result = top if bottom.is_one() else _inverse_mod(bottom, count, modulus).mul_low(top, count)
     out = [int(c) for c in result.coeffs()[:count]]
     return out + [0] * (count - len(out))
 
