@@ -219,7 +219,7 @@ def _internal(
         coeff, node = node.left.value, node.right
     if not (isinstance(node, ast.Call) and isinstance(left, ast.Call) and node.name == left.name):
         return None
-    if _linear(node.argument, var) != (1, 0):
+    if _linear(node.argument, var) != (1, 0) or coeff == 0:
         return None
     rhs = (Mono(Fraction(sign * coeff), Fraction(0), gen.exps),)
     return Reading((Claim(what, dict(gen.exps), m, t, rhs, modulus),))
