@@ -208,7 +208,7 @@ def _internal(
     """An internal congruence ``a(mn+t) \\equiv c\\, a(n) \\pmod M`` (c an integer, possibly 1 or -1)."""
     var = _variable(left)
     term = _term(left, var, products, forms) if var else None
-    if var is None or term is None or not _usable(term[0]):
+    if var is None or term is None or not _usable(term[0]) or term[1] < 2:
         return None
     gen, m, t, what = term
     node, sign = right, 1
