@@ -1238,6 +1238,42 @@ def section_progression(quick: bool) -> bool:
             f"{fmt_ratio(t_ours / t_base):>9}",
             flush=True,
         )
+    return _progression_expansions(quick)
+
+
+def _progression_expansions(quick: bool) -> bool:
+    """Exact coefficients of products of f_k (the direct computation behind refutations)."""
+    from verifier.forms.eta import EtaQuotient
+
+    size = 10**4 if quick else 10**5
+    products: list[tuple[str, dict[int, int]]] = [
+        ("1/f_1 (p(n))", {1: -1}),
+        ("f_2/f_1^2 (overpartitions)", {1: -2, 2: 1}),
+        ("f_4/f_1 (4-regular)", {1: -1, 4: 1}),
+        ("f_5^5/f_1^6", {1: -6, 5: 5}),
+        ("f_4^5/(f_1^4 f_8^2)", {1: -4, 4: 5, 8: -2}),
+    ]
+    header = f"{'exact expansion to q^' + str(size):<44}{'qreferee s':>12}{'FLINT s':>10}{'ratio':>9}{'CPU s':>8}"
+    print()
+    print(header)
+    print("-" * len(header))
+    for label, exps in products:
+        c0 = time.process_time()
+        ours, t_first = run_once(lambda e=exps: EtaQuotient.of(e).product_poly(size))
+        cpu = time.process_time() - c0
+        base, t_base_first = run_once(lambda e=exps: _flint_product(e, size))
+        if ours != base:
+            raise Mismatch(f"{label}: the expansion differs from the FLINT baseline")
+        t_ours, t_base = best_pair(
+            lambda e=exps: EtaQuotient.of(e).product_poly(size),
+            t_first,
+            lambda e=exps: _flint_product(e, size),
+            t_base_first,
+            0.3 if quick else 1.0,
+            3 if quick else 5,
+        )
+        print(f"{label:<44}{fmt_s(t_ours):>12}{fmt_s(t_base):>10}{fmt_ratio(t_ours / t_base):>9}{fmt_s(cpu):>8}")
+    return True
 
 
 # ---------------------------------------------------------------------------------

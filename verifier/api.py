@@ -23,8 +23,9 @@ from verifier.arith.values import NotEvaluable, Values
 from verifier.budget import DEFAULT_MAX_SECONDS, TimeExceeded, decide_timed, internal_error, time_limit
 from verifier.claims import products as progression_products
 from verifier.claims.progression import decide as decide_progression
-from verifier.claims.progression import decide_dissection
+from verifier.claims.progression import decide_dissection, decide_residues
 from verifier.claims.reading import read as read_progression
+from verifier.claims.reading import residue_set
 from verifier.config import DEFAULT_FAIL_ON
 from verifier.diagnostics import Diagnostic
 from verifier.elaborate import ir
@@ -524,6 +525,7 @@ def _block(
     chains: list[list[ClaimResult]] = []  # the claims of each chain A = B = C (rows continued by "&= D" too)
     for row in block.rows:
         text = _overline_p(row.text)
+        text, residues = _residue_set(text)
         row_modulus, row_start = None, _range_option(block.options)
         stripped = text.text.lstrip()
         continuation = stripped.startswith(("=", "\\ne", "\\not="))
@@ -592,7 +594,18 @@ def _block(
                 if continuation and k == 0 and i == 0 and previous_side is not None:
                     start = offset + (len(text.text) - offset - len(stripped))
                 pending_claim = _claim(
-                    text, left_node, right_node, rel, start, row, claim_name, block, elaborator, modulus, start_n
+                    text,
+                    left_node,
+                    right_node,
+                    rel,
+                    start,
+                    row,
+                    claim_name,
+                    block,
+                    elaborator,
+                    modulus,
+                    start_n,
+                    residues,
                 )
                 result = pending_claim if isinstance(pending_claim, ClaimResult) else pending_claim.result
                 if statement.iff:
@@ -635,6 +648,7 @@ def _claim(
     elaborator: Elaborator,
     modulus: int | None = None,
     start_n: int | None = None,
+    residues: tuple[str, tuple[int, ...]] | None = None,
 ) -> _Pending | ClaimResult:
     loc = text.location(start)
     end = text.location(right_node.span[1] - 1)
@@ -685,7 +699,20 @@ def _claim(
     letter = nome_letter((left_node, right_node), set(forms) | set(matrices))
     if letter is not None:
         left_node, right_node = (substitute(n, {letter: ast.Name(n.span, "q")}) for n in (left_node, right_node))
-    progression = _progression_claim(left_node, right_node, rel, text, elaborator, modulus, start_n)
+    progression = _progression_claim(left_node, right_node, rel, text, elaborator, modulus, start_n, residues)
+    if residues is not None and progression is None:
+        return _error(
+            loc,
+            "unsupported",
+            f"a residue set ({residues[0]} in a list) is read only after a congruence a(mn+{residues[0]}) "
+            "\\equiv 0 \\pmod{M} of a partition-type function",
+            "tag each residue class as its own claim",
+            source,
+            name,
+            row.label,
+            kind,
+            end,
+        )
     if progression is not None:
         kind = "congruence" if modulus is not None else ("equality" if progression[1] else "arithmetic")
         result = ClaimResult(loc, end, name, row.label, source, Outcome("error", kind, "not decided"))
@@ -773,6 +800,12 @@ def _overline_p(text: MappedText) -> MappedText:
     return text if out == text.text else MappedText(out, text.origins, text.source)
 
 
+def _residue_set(text: MappedText) -> tuple[MappedText, tuple[str, tuple[int, ...]] | None]:
+    """A trailing residue set ``(t \\in \\{3, 5, 6\\})`` taken out (blanked, offsets kept)."""
+    out, residues = residue_set(text.text)
+    return (text if residues is None else MappedText(out, text.origins, text.source)), residues
+
+
 def _progression_claim(
     left_node: ast.Node,
     right_node: ast.Node,
@@ -781,6 +814,7 @@ def _progression_claim(
     elaborator: Elaborator,
     modulus: int | None,
     start_n: int | None,
+    residues: tuple[str, tuple[int, ...]] | None = None,
 ) -> tuple[Callable[[], Outcome], bool] | None:
     """A claim about a progression a(mn+t) or a dissection (docs/method.md#progressions), or None.
 
@@ -795,10 +829,21 @@ def _progression_claim(
         return any(isinstance(s, Problem) for s in sides) or weights[0] != weights[1]
 
     reading = read_progression(
-        left_node, right_node, rel, modulus, start_n, elaborator.products, elaborator.definitions, dissection_ok
+        left_node,
+        right_node,
+        rel,
+        modulus,
+        start_n,
+        elaborator.products,
+        elaborator.definitions,
+        dissection_ok,
+        residues,
     )
     if reading is None:
         return None
+    if reading.residues is not None:
+        var, many = reading.residues[0], reading.claims
+        return (lambda: decide_residues(var, many)), False
     if reading.dissection is not None:
         p, claims = reading.dissection, reading.claims
         return (lambda: decide_dissection(p, claims)), True

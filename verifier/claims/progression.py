@@ -29,7 +29,6 @@ from typing import Any
 from flint import fmpz_poly, nmod_poly
 
 from verifier.claims.products import Mono
-from verifier.forms.delta import euler_product
 from verifier.forms.eta import EtaQuotient
 from verifier.numbers import QuadraticCharacter, prime_factors
 from verifier.prove.groups import group_name, index_gamma0, sturm_bound
@@ -120,10 +119,12 @@ def _multipliers(exps: dict[int, int], m: int, t: int) -> list[EtaQuotient]:
     return out
 
 
-def plan(exps: dict[int, int], m: int, t: int, rhs: tuple[Mono, ...] | None) -> Plan | str:
+def plan(exps: dict[int, int], m: int, t: int, rhs: tuple[Mono, ...] | None, congruence: bool = False) -> Plan | str:
     """The multiplier with the least bound for which the proof applies, or why none does.
 
-    ``rhs`` is the claimed sum of products (None for a congruence to 0).
+    ``rhs`` is the claimed sum of products (None for a congruence to 0).  For a congruence
+    to a nonzero ``rhs`` (``congruence``) only plans whose terms are holomorphic at every
+    cusp are kept: Sturm's theorem modulo M is applied to a form, not to a quotient.
     """
     if not compatible(exps, m, t):
         s = sum(d * r for d, r in exps.items())
@@ -136,6 +137,9 @@ def plan(exps: dict[int, int], m: int, t: int, rhs: tuple[Mono, ...] | None) -> 
     reasons: list[str] = []
     for mult in _multipliers(exps, m, t):
         p = _try(f_eta, mult, m, t, rhs, reasons)
+        if p is not None and congruence and p.cusp_bounds:
+            reasons.append("every multiplier leaves a term of the claimed side with a pole at a cusp")
+            p = None
         if p is not None and (best is None or p.bound < best.bound):
             best = p
     if best is None:
@@ -223,27 +227,14 @@ def product_coefficients(exps: dict[int, int], count: int) -> list[int]:
 def product_residues(exps: dict[int, int], count: int, modulus: int) -> list[int]:
     """The first ``count`` coefficients of ``prod f_delta^{r_delta}`` modulo ``modulus``.
 
-    The same product as :func:`product_coefficients`, computed in (Z/M)[q]: Euler's
-    pentagonal series, its inverse by Newton's iteration g <- g(2 - f g) (the constant term
-    is 1, a unit modulo any M), powers and the substitution q -> q^delta.
+    The numerator and denominator of :meth:`EtaQuotient.product_parts` (small integers) are
+    reduced modulo M, and the denominator is inverted in (Z/M)[q] by Newton's iteration
+    g <- g(2 - f g) (its constant term is 1, a unit modulo any M).
     """
     if count <= 0:
         return []
-    result = nmod_poly([1], modulus)
-    for delta, r in sorted(exps.items()):
-        m = -(-count // delta)
-        base = nmod_poly([int(c) for c in euler_product(m).coeffs()], modulus)
-        if r < 0:
-            base = _inverse_mod(base, m, modulus)
-        factor = base.pow_trunc(abs(r), m) if abs(r) > 1 else base
-        if delta > 1:
-            coeffs = [int(c) for c in factor.coeffs()]
-            spread = [0] * count
-            for i, c in enumerate(coeffs):
-                if i * delta < count:
-                    spread[i * delta] = c
-            factor = nmod_poly(spread, modulus)
-        result = result.mul_low(factor, count)
+    top, bottom = (nmod_poly(part, modulus) for part in EtaQuotient.of(exps).product_parts(count))
+    result = top if bottom.is_one() else _inverse_mod(bottom, count, modulus).mul_low(top, count)
     out = [int(c) for c in result.coeffs()[:count]]
     return out + [0] * (count - len(out))
 
@@ -413,6 +404,15 @@ def direct_search(
                 return n, prog.exact(n), Fraction(0)
             done = count
             continue
+        if rhs is not None and modulus is not None:
+            claimed = sum_residues(rhs, count, modulus)
+            if claimed is not None:
+                residues = prog.values(count, modulus)
+                n = next((i for i in range(count) if residues[i] != claimed[i]), None)
+                if n is not None:
+                    return n, prog.exact(n), Fraction(sum_coefficients(rhs, n + 1)[n])
+                done = count
+                continue
         if rhs is not None and modulus is None and not exact and count > DIRECT:
             screened = sum_residues(rhs, count, SCREEN_PRIME)
             if screened is not None:
@@ -438,7 +438,11 @@ def search_limit(prog: Progression) -> int:
 
 @dataclass(frozen=True)
 class Claim:
-    """``sum a(mn+t) q^n = rhs`` (rhs a sum of products) or ``a(mn+t) = 0 (mod modulus)``."""
+    """``sum a(mn+t) q^n = rhs`` (rhs a sum of products) or ``a(mn+t) = 0 (mod modulus)``.
+
+    With both ``rhs`` and ``modulus``: the congruence ``sum a(mn+t) q^n = rhs (mod modulus)``,
+    e.g. an internal congruence ``a(mn+t) = c a(n)`` (rhs ``c F``).
+    """
 
     what: str  # how a(mn+t) is written, for messages
     exps: dict[int, int]
@@ -476,6 +480,8 @@ def _decide(claim: Claim) -> Outcome:
     if first is not None:
         n, a, b = first
         return refuted(kind, claim.what, n + claim.start, a, b, modulus)
+    if claim.rhs is not None and modulus is not None:
+        return _decide_relative(claim, prog)
     t_proof = t
     if t >= m:
         if claim.rhs is not None:
@@ -524,6 +530,46 @@ def _decide(claim: Claim) -> Outcome:
     raise Internal("the proof failed but no direct counterexample was found")
 
 
+def _decide_relative(claim: Claim, prog: Progression) -> Outcome:
+    """``sum a(mn+t) q^n = rhs (mod M)``: U_m h and E times rhs compared modulo M.
+
+    Both are forms in M_k(Gamma_0(N''), chi) with integer coefficients (the plan requires every
+    term holomorphic and of the same weight and character, and lambda = 0), so Sturm's bound
+    modulo M applies to their difference.
+    """
+    assert claim.rhs is not None and claim.modulus is not None
+    m, t, modulus = claim.m, claim.t, claim.modulus
+    if t >= m or claim.start:
+        return _unproven(claim, prog, "a congruence to a nonzero side is proved only for 0 <= t < m and n >= 0")
+    if any(mono.coeff.denominator != 1 for mono in claim.rhs):
+        return _unproven(claim, prog, "the claimed side has a coefficient that is not an integer")
+    p = plan(claim.exps, m, t, claim.rhs, congruence=True)
+    if isinstance(p, str):
+        return _unproven(claim, prog, p)
+    if p.bound > MAX_BOUND:
+        return _unproven(claim, prog, f"the target space's bound {p.bound} exceeds the budget ({MAX_BOUND})")
+    count = p.bound + 1
+    from_h = cross_check(prog, p, count, modulus)
+    forms_side = sum_residues(
+        tuple(Mono.make(gamma, Fraction(term.s, 24), dict(term.exponents)) for gamma, term in p.terms),
+        count,
+        modulus,
+    )
+    claimed = sum_residues(claim.rhs, count, modulus)
+    assert forms_side is not None and claimed is not None  # integer coefficients
+    bad = next((i for i in range(count) if from_h[i] != forms_side[i]), None)
+    direct_bad = next((i for i, x in enumerate(prog.values(count, modulus)) if x != claimed[i]), None)
+    if bad is None:
+        if direct_bad is not None:
+            raise Internal("the forms agree modulo M through the bound but the direct coefficients do not")
+        return _proved(claim, p, count, t)
+    found = direct_search(prog, claim.rhs, modulus, search_limit(prog))
+    if found is None:
+        raise Internal("the forms differ modulo M within the bound but no direct counterexample was found")
+    n, a, b = found
+    return refuted(claim.kind, claim.what, n, a, b, modulus)
+
+
 def _unproven(claim: Claim, prog: Progression, reason: str) -> Outcome:
     upto = search_limit(prog)
     found = direct_search(prog, claim.rhs, claim.modulus, upto)
@@ -548,7 +594,14 @@ def _proved(claim: Claim, p: Plan, count: int, t_proof: int) -> Outcome:
     record["poles"] = {str(d): frac_str(v) for d, v in sorted(p.cusp_bounds.items())}
     bound_kind = "valence bound" if p.cusp_bounds else "Sturm bound"
     target = f"M_{p.weight}(Gamma0({p.target_level}), {p.character.name})"
-    if claim.modulus is not None:
+    if claim.modulus is not None and claim.rhs is not None:
+        msg = (
+            f"for all n >= 0, sum {claim.what} q^n = the claimed side modulo {claim.modulus}: with "
+            f"E = {p.multiplier.label()}, h = {p.h.label()} is in M_{p.weight}(Gamma0({p.level}), {p.character.name}); "
+            f"U_{m} h and E times the claimed side are in {target} and agree modulo {claim.modulus} "
+            f"for q^0..q^{p.bound} (Sturm bound)"
+        )
+    elif claim.modulus is not None:
         stronger = f" (proved for the whole class {t_proof} mod {m})" if t_proof != claim.t else ""
         msg = (
             f"for all n >= 0, {claim.what} = 0 modulo {claim.modulus}{stronger}: with E = {p.multiplier.label()}, "
@@ -635,3 +688,63 @@ def decide_dissection(p: int, claims: tuple[Claim, ...]) -> Outcome:
         f"t = {c.t}: {o.message}" for c, o in zip(claims, outcomes, strict=True) if o.verdict != "proved"
     )
     return Outcome("unproven", "equality", f"not every class of the {p}-dissection is proved ({reasons})")
+
+
+def decide_residues(var: str, claims: tuple[Claim, ...]) -> Outcome:
+    """``a(mn + t) = 0 (mod M)`` for every listed t: one verdict for the set.
+
+    Each class is decided on its own (:func:`decide`).  Proved only when every class is
+    proved; refuted by the first listed t that is refuted (its n and both residues);
+    otherwise unproven (or an internal error), with the reasons of the classes not proved.
+    """
+    outcomes = [decide(c) for c in claims]
+    for c, o in zip(claims, outcomes, strict=True):
+        if o.verdict == "refuted":
+            w = o.witness
+            assert w is not None
+            return Outcome(
+                "refuted",
+                "congruence",
+                f"{var} = {c.t - c.m * c.start}: {o.message}",
+                method="computation",
+                first_difference=w.to_dict(),
+                terms_compared=o.terms_compared,
+            )
+    for o in outcomes:
+        if o.verdict == "error":
+            return o
+    labels = [f"{var} = {c.t - c.m * c.start}" for c in claims]
+    if all(o.verdict == "proved" for o in outcomes):
+        records = [o.progression for o in outcomes]
+        record = {"residues": [c.t - c.m * c.start for c in claims], "components": records}
+        bound = max(o.bound or 0 for o in outcomes)
+        return Outcome(
+            "proved",
+            "congruence",
+            "every listed class is proved by U_m ("
+            + "; ".join(f"{label}: bound {o.bound}" for label, o in zip(labels, outcomes, strict=True))
+            + ")",
+            method="u-operator",
+            bound=bound,
+            terms_compared=sum(o.terms_compared for o in outcomes),
+            certificate={
+                "format": 1,
+                "method": "u-operator",
+                "kind": "congruence",
+                "space_used": None,
+                "bound": bound,
+                "progression": record,
+            },
+            progression=record,
+        )
+    reasons = "; ".join(
+        f"{label}: {o.message}" for label, o in zip(labels, outcomes, strict=True) if o.verdict != "proved"
+    )
+    compared = min(o.terms_compared for o in outcomes)
+    return Outcome(
+        "unproven",
+        "congruence",
+        f"not every listed class is proved ({reasons})",
+        method="computation",
+        terms_compared=compared,
+    )

@@ -3,7 +3,9 @@
 Three shapes, each turned into :class:`verifier.claims.progression.Claim` objects:
 
 * ``\\sum_{n \\ge 0} a(mn+t) q^n = G`` (either side), a(n) a partition-type function;
-* ``a(mn+t) \\equiv 0 \\pmod M`` (with an optional range ``n \\ge s``);
+* ``a(mn+t) \\equiv 0 \\pmod M`` (with an optional range ``n \\ge s``), also for ``t`` in a listed
+  set written after the claim, ``(t \\in \\{3, 5, 6\\})`` or ``\\text{for } t \\in \\{3, 5, 6\\}``
+  (:func:`residue_set` takes the qualifier out of the text before parsing);
 * a dissection ``F = sum_i gamma_i q^{e_i} prod f_{delta}^{s}`` in which every delta of the
   right side is divisible by a prime p that does not divide every delta of F: one claim
   per residue class modulo p (classes without terms claim 0).
@@ -14,6 +16,7 @@ Anything else returns None, and the claim goes on to the other decision procedur
 from __future__ import annotations
 
 import math
+import re
 from collections.abc import Callable, Mapping
 from dataclasses import dataclass
 from fractions import Fraction
@@ -37,22 +40,47 @@ class Reading:
     dissection: int | None = None
     left: Mono | None = None  # F, for a dissection
     right: ProductSum = ()  # the claimed sum, for a dissection
+    residues: tuple[str, tuple[int, ...]] | None = None  # (t, listed values) of a residue set
 
 
-def _linear(node: ast.Node, var: str) -> tuple[int, int] | None:
-    """``m var + t`` as (m, t) with integers, or None."""
+# A residue set after a claim: "(t \in \{3,5,6\})", "\text{for } t \in \{3, 5, 6\}", "for t \in \{...\}",
+# optionally after \quad, \qquad or a comma.
+RESIDUE_SET = re.compile(
+    r"(?:,|\\q?quad)?\s*(?P<open>\()?\s*(?:\\text\s*\{\s*for\s*\}|\\text\s*\{\s*for\s+all\s*\}|for)?\s*"
+    r"(?P<var>[a-z])\s*\\in\s*\\\{(?P<values>\s*\d+\s*(?:,\s*\d+\s*)*)\\\}\s*(?(open)\))\s*$"
+)
+
+
+def residue_set(text: str) -> tuple[str, tuple[str, tuple[int, ...]] | None]:
+    """The row text without a trailing residue set, and the set as (variable, values).
+
+    The qualifier is replaced by spaces, so every offset of the rest stays valid.  Values
+    are kept in the author's order, without repeats.
+    """
+    found = RESIDUE_SET.search(text)
+    if found is None:
+        return text, None
+    values = tuple(dict.fromkeys(int(v) for v in found.group("values").split(",")))
+    blank = text[: found.start()] + " " * (found.end() - found.start())
+    return blank, (found.group("var"), values)
+
+
+def _linear(node: ast.Node, var: str, fixed: Mapping[str, int] | None = None) -> tuple[int, int] | None:
+    """``m var + t`` as (m, t) with integers, or None; names in ``fixed`` stand for their values."""
     if isinstance(node, ast.Name) and node.text == var and node.arg is None:
         return 1, 0
+    if fixed and isinstance(node, ast.Name) and node.arg is None and node.text in fixed:
+        return 0, fixed[node.text]
     if isinstance(node, ast.Number):
         return 0, node.value
     if isinstance(node, ast.BinOp) and node.op in "+-":
-        a, b = _linear(node.left, var), _linear(node.right, var)
+        a, b = _linear(node.left, var, fixed), _linear(node.right, var, fixed)
         if a is None or b is None:
             return None
         sign = 1 if node.op == "+" else -1
         return a[0] + sign * b[0], a[1] + sign * b[1]
     if isinstance(node, ast.BinOp) and node.op == "*":
-        a, b = _linear(node.left, var), _linear(node.right, var)
+        a, b = _linear(node.left, var, fixed), _linear(node.right, var, fixed)
         if a is None or b is None or (a[0] and b[0]):
             return None
         return a[0] * b[1] + b[0] * a[1], a[1] * b[1]
@@ -60,13 +88,17 @@ def _linear(node: ast.Node, var: str) -> tuple[int, int] | None:
 
 
 def _term(
-    node: ast.Node, var: str, products: Mapping[str, ProductSum], forms: Mapping[str, Any]
+    node: ast.Node,
+    var: str,
+    products: Mapping[str, ProductSum],
+    forms: Mapping[str, Any],
+    fixed: Mapping[str, int] | None = None,
 ) -> tuple[Mono, int, int, str] | None:
     """``a(m var + t)``: (generating function, m, t, spelling) when a is a partition function."""
     if not isinstance(node, ast.Call):
         return None
     gen = partition_function(node.name, products, forms)
-    lin = _linear(node.argument, var)
+    lin = _linear(node.argument, var, fixed)
     if gen is None or lin is None or lin[0] < 1 or lin[1] < 0:
         return None
     name = "\\overline{p}" if node.name == "\\pbar" else node.name
@@ -115,21 +147,40 @@ def read(
     products: Mapping[str, ProductSum],
     forms: Mapping[str, Any],
     dissection_ok: Callable[[], bool],
+    residues: tuple[str, tuple[int, ...]] | None = None,
 ) -> Reading | None:
-    """The progression claims of ``left rel right``, or None when it is not one of the shapes."""
+    """The progression claims of ``left rel right``, or None when it is not one of the shapes.
+
+    With ``residues = (t, values)`` only a congruence ``a(m n + t) \\equiv 0`` is read, as one
+    claim per listed value of t (in the listed order).
+    """
     reader = Reader(products, forms)
     if rel == "≡" and modulus is not None and modulus > 1:
+        if residues is None and not start_n:
+            relative = _internal(left, right, modulus, products, forms)
+            if relative is not None:
+                return relative
         for a, b in ((left, right), (right, left)):
-            if isinstance(b, ast.Number) and b.value == 0:
-                var = _variable(a)
-                term = _term(a, var, products, forms) if var else None
-                if term is not None and _usable(term[0]):
-                    gen, m, t, what = term
-                    start = start_n or 0
-                    if start < 0:
-                        return None
-                    # n >= start: a(m(n' + start) + t) with n' >= 0.
-                    return Reading((Claim(what, dict(gen.exps), m, t + m * start, None, modulus, start),))
+            if not (isinstance(b, ast.Number) and b.value == 0):
+                continue
+            var = _variable(a, residues[0] if residues else None)
+            if var is None:
+                continue
+            claims = []
+            for value in residues[1] if residues else (None,):
+                fixed = {residues[0]: value} if residues and value is not None else None
+                term = _term(a, var, products, forms, fixed)
+                if term is None or not _usable(term[0]):
+                    return None
+                gen, m, t, what = term
+                start = start_n or 0
+                if start < 0:
+                    return None
+                # n >= start: a(m(n' + start) + t) with n' >= 0.
+                claims.append(Claim(what, dict(gen.exps), m, t + m * start, None, modulus, start))
+            return Reading(tuple(claims), residues=residues)
+        return None
+    if residues is not None:
         return None
     if rel != "=" or modulus is not None:
         return None
@@ -151,9 +202,33 @@ def read(
     return found_dissection
 
 
-def _variable(node: ast.Node) -> str | None:
+def _internal(
+    left: ast.Node, right: ast.Node, modulus: int, products: Mapping[str, ProductSum], forms: Mapping[str, Any]
+) -> Reading | None:
+    """An internal congruence ``a(mn+t) \\equiv c\\, a(n) \\pmod M`` (c an integer, possibly 1 or -1)."""
+    var = _variable(left)
+    term = _term(left, var, products, forms) if var else None
+    if var is None or term is None or not _usable(term[0]) or term[1] < 2:
+        return None
+    gen, m, t, what = term
+    node, sign = right, 1
+    if isinstance(node, ast.Neg):
+        node, sign = node.operand, -1
+    coeff = 1
+    if isinstance(node, ast.BinOp) and node.op == "*" and isinstance(node.left, ast.Number):
+        coeff, node = node.left.value, node.right
+    if not (isinstance(node, ast.Call) and isinstance(left, ast.Call) and node.name == left.name):
+        return None
+    if _linear(node.argument, var) != (1, 0) or coeff == 0:
+        return None
+    rhs = (Mono(Fraction(sign * coeff), Fraction(0), gen.exps),)
+    return Reading((Claim(what, dict(gen.exps), m, t, rhs, modulus),))
+
+
+def _variable(node: ast.Node, residue: str | None = None) -> str | None:
+    """The running variable of ``a(m n + t)``: its one name other than the residue variable."""
     if isinstance(node, ast.Call):
-        names = {n.text for n in ast.walk(node.argument) if isinstance(n, ast.Name)}
+        names = {n.text for n in ast.walk(node.argument) if isinstance(n, ast.Name)} - {residue}
         if len(names) == 1:
             return next(iter(names))
     return None

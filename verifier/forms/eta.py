@@ -145,32 +145,43 @@ class EtaQuotient:
     def product_poly(self, prec: int) -> Any:
         """``P(q) mod q^prec`` as an ``fmpz_poly`` (P is the product without ``q^{s/24}``).
 
-        For each delta, ``prod_n (1 - q^n)^{r}`` is computed in the variable ``x = q^delta``
-        to ``ceil(prec/delta)`` terms -- Euler's pentagonal series, or for ``r < 0`` its
-        inverse (the partition generating function, an exact integer Newton inverse since
-        the constant term is 1) -- raised to ``|r|`` and then inflated ``x -> q^delta``.
-        All arithmetic is in Z[q] truncated at ``q^prec``.
+        The factors with ``r > 0`` and those with ``r < 0`` are multiplied out separately,
+        each ``prod_n (1 - q^{delta n})^{|r|}`` as a power of Euler's pentagonal series in
+        ``x = q^delta`` inflated to ``q``.  Both products have small integer coefficients,
+        so this is cheap.  The quotient then costs one Newton inverse of the denominator
+        (exact over Z, its constant term being 1) and one multiplication.  Inverting the
+        whole denominator at once is cheaper than inverting ``f_1`` and raising the
+        inverse (whose coefficients are large) to a power.
         """
         if prec <= 0:
             return fmpz_poly([])
-        result = fmpz_poly([1])
-        if not self.exponents:
-            return result
-        # One Euler product (and one inverse) at the longest length needed, truncated per delta.
-        longest = -(-prec // self.exponents[0][0])
-        euler = euler_product(longest)
-        longest_neg = max((-(-prec // d) for d, r in self.exponents if r < 0), default=0)
-        partitions = _unit_inverse(euler.truncate(longest_neg), longest_neg) if longest_neg else None
+        top, bottom = self.product_parts(prec)
+        if bottom == 1:
+            return top
+        quotient = _unit_inverse(bottom, prec)
+        return quotient if top == 1 else quotient.mul_low(top, prec)
+
+    def product_parts(self, prec: int) -> tuple[Any, Any]:
+        """``(prod_{r > 0} f_delta^r, prod_{r < 0} f_delta^{-r}) mod q^prec`` as ``fmpz_poly``.
+
+        ``P`` is the first divided by the second; both have small integer coefficients.
+        """
+        top = fmpz_poly([1])
+        bottom = fmpz_poly([1])
+        if prec <= 0 or not self.exponents:
+            return (top if prec > 0 else fmpz_poly([])), bottom
+        euler = euler_product(-(-prec // self.exponents[0][0]))
         for delta, r in self.exponents:
             m = -(-prec // delta)  # terms x^n with delta * n < prec
-            base = euler if r > 0 else partitions
-            assert base is not None
-            base = base.truncate(m)
+            base = euler.truncate(m)
             factor = base if abs(r) == 1 else base.pow_trunc(abs(r), m)
             if delta > 1:
                 factor = factor.inflate(delta).truncate(prec)
-            result = result.mul_low(factor, prec)
-        return result
+            if r > 0:
+                top = top.mul_low(factor, prec)
+            else:
+                bottom = bottom.mul_low(factor, prec)
+        return top, bottom
 
     def product_series(self, prec: int) -> QSeries:
         """``prod_delta prod_n (1 - q^{delta n})^{r_delta} + O(q^prec)``, without ``q^{s/24}``."""
@@ -344,14 +355,17 @@ def _unit_inverse(f: Any, m: int) -> Any:
     """``1/f mod x^m`` for an ``fmpz_poly`` with ``f(0) = 1``, by Newton iteration over Z.
 
     For ``f = prod(1 - x^n)`` this is the partition generating function ``sum p(n) x^n``.
-    The step ``g <- g (2 - f g) mod x^{2k}`` doubles the number of correct terms and, since
-    ``f(0) = 1``, never leaves Z[x].
+    With ``g = 1/f mod x^k`` the error ``1 - f g`` starts at ``x^k``; the step
+    ``g <- g + x^k g (1 - f g) / x^k mod x^{2k}`` doubles the number of correct terms and
+    only multiplies ``g`` by the ``n - k`` error terms (not by a full-length series).
+    Since ``f(0) = 1`` it never leaves Z[x].
     """
     assert f[0] == 1
     g = fmpz_poly([1])
     k = 1
-    two = fmpz_poly([2])
     while k < m:
-        k = min(2 * k, m)
-        g = g.mul_low(two - f.truncate(k).mul_low(g, k), k)
+        n = min(2 * k, m)
+        err = f.truncate(n).mul_low(g, n).right_shift(k)  # coefficients k .. n-1 of f g
+        g -= g.mul_low(err, n - k).left_shift(k)
+        k = n
     return g.truncate(m)
