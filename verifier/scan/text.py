@@ -30,6 +30,11 @@ class SourceFile:
     def __post_init__(self) -> None:
         self._line_starts = [0] + [m.end() for m in re.finditer("\n", self.text)]
 
+    @property
+    def line_starts(self) -> list[int]:
+        """The offset of the first character of each line (do not modify)."""
+        return self._line_starts
+
     def line_col(self, offset: int) -> tuple[int, int]:
         """1-based line and column of a character offset."""
         offset = max(0, min(offset, len(self.text)))
@@ -135,25 +140,13 @@ class MappedText:
         return MappedText("".join(p.text for p in parts), [o for p in parts for o in p.origins], source)
 
 
+_ESCAPE_OR_COMMENT = re.compile(r"\\[\s\S]|%[^\n]*")
+
+
 def blank_comments(text: str) -> str:
     """Replace every TeX comment (``%`` to end of line, not ``\\%``) by spaces."""
-    out = list(text)
-    i = 0
-    n = len(text)
-    while i < n:
-        ch = text[i]
-        if ch == "\\":
-            i += 2
-            continue
-        if ch == "%":
-            j = text.find("\n", i)
-            j = n if j < 0 else j
-            for k in range(i, j):
-                out[k] = " "
-            i = j
-            continue
-        i += 1
-    return "".join(out)
+    # An escape (a backslash and the character after it) is kept whole, so \\% is no comment.
+    return _ESCAPE_OR_COMMENT.sub(lambda m: m.group(0) if m.group(0)[0] == "\\" else " " * len(m.group(0)), text)
 
 
 _CONTROL = re.compile(r"\\([A-Za-z]+|.)", re.S)
