@@ -30,7 +30,6 @@ import hashlib
 import inspect
 import json
 import os
-import re
 import tempfile
 from collections.abc import Callable
 from dataclasses import dataclass, field
@@ -227,10 +226,10 @@ def _region(block: ClaimBlock) -> _Region | None:
     if not 1 <= block.tag.line <= len(starts):
         return None
     start = starts[block.tag.line - 1]
-    origins = [o for r in block.rows for o in r.text.origins]
-    if not origins or min(origins) < start:
+    filled = [r.text.origins for r in block.rows if r.text.origins]
+    if not filled or min(min(o) for o in filled) < start:
         return None
-    return _Region(source, start, max(origins) + 1, starts)
+    return _Region(source, start, max(max(o) for o in filled) + 1, starts)
 
 
 def _define_text(item: DefineTag) -> str:

@@ -185,7 +185,7 @@ def _block_span(block: ClaimBlock) -> Span:
     if not block.rows or any(r.text.source.display != block.tag.file for r in block.rows):
         return Span(path, tag, Pos(block.tag.line - 1, block.tag.column))
     source = block.rows[0].text.source
-    last = max(o for r in block.rows for o in r.text.origins)
+    last = max(max(r.text.origins) for r in block.rows if r.text.origins)
     line, col = source.line_col(last + 1)
     return Span(path, tag, Pos(line - 1, col - 1))
 
@@ -244,10 +244,14 @@ _GENERATION: Any = None  # a shared integer: the number of the newest request
 def worker_main(conn: Connection, generation: Any) -> None:
     """The worker process: answer each :class:`Request` from ``conn`` with a :class:`Checked`.
 
+    Answers go through :mod:`verifier.lsp.wire` (findings the server has are not sent again).
     A check that crashes is answered with the error's text.  The process's standard output
     is the language server's protocol stream, so it is pointed at standard error first.
     """
     global _GENERATION
+    from verifier.lsp import wire
+
+    table = wire.Table()  # the findings the server has from this process
     os.dup2(2, 1)
     sys.stdout = sys.stderr
     _GENERATION = generation
@@ -266,9 +270,9 @@ def worker_main(conn: Connection, generation: Any) -> None:
         except Exception as exc:  # a bug: say so, and keep serving
             answer = f"{type(exc).__name__}: {exc}"
         try:
-            conn.send(answer)
+            conn.send_bytes(wire.dumps(answer, table))
             if isinstance(answer, Checked) and not answer.superseded and not conn.poll():
-                conn.send(untagged(request))
+                conn.send_bytes(wire.dumps(untagged(request), table))
         except (OSError, ValueError):
             return
 

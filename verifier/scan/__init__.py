@@ -7,8 +7,8 @@ from pathlib import Path
 
 from verifier.scan.document import ScannedDocument
 from verifier.scan.latex import scan_latex_path, scan_latex_text
-from verifier.scan.memo import DisplayMemo
 from verifier.scan.markdown import scan_markdown_path, scan_markdown_source
+from verifier.scan.memo import DisplayMemo
 from verifier.scan.text import SourceFile
 
 MARKDOWN_SUFFIXES = (".md", ".markdown", ".mdown")

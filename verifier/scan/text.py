@@ -140,13 +140,27 @@ class MappedText:
         return MappedText("".join(p.text for p in parts), [o for p in parts for o in p.origins], source)
 
 
-_ESCAPE_OR_COMMENT = re.compile(r"\\[\s\S]|%[^\n]*")
-
-
 def blank_comments(text: str) -> str:
     """Replace every TeX comment (``%`` to end of line, not ``\\%``) by spaces."""
-    # An escape (a backslash and the character after it) is kept whole, so \\% is no comment.
-    return _ESCAPE_OR_COMMENT.sub(lambda m: m.group(0) if m.group(0)[0] == "\\" else " " * len(m.group(0)), text)
+    # A % starts a comment when an even run of backslashes precedes it (each pair is an
+    # escaped backslash); the comment runs to the end of its line.
+    parts: list[str] = []
+    done = 0
+    i = text.find("%")
+    while i >= 0:
+        k = i
+        while k > done and text[k - 1] == "\\":
+            k -= 1
+        if (i - k) % 2:
+            i = text.find("%", i + 1)
+            continue
+        end = text.find("\n", i)
+        end = len(text) if end < 0 else end
+        parts += [text[done:i], " " * (end - i)]
+        done = end
+        i = text.find("%", end)
+    parts.append(text[done:])
+    return "".join(parts)
 
 
 _CONTROL = re.compile(r"\\([A-Za-z]+|.)", re.S)
