@@ -42,6 +42,9 @@ if TYPE_CHECKING:
 
 # Tagged blocks decided between two looks at whether a newer edit has arrived.
 CHUNK = 16
+# Seconds of quiet after the verdicts before the "add a tag" offers are made: making them
+# at once would take the processor from the server and the editor while they show the verdicts.
+UNTAGGED_PAUSE = 0.1
 
 
 @dataclass
@@ -271,7 +274,7 @@ def worker_main(conn: Connection, generation: Any) -> None:
             answer = f"{type(exc).__name__}: {exc}"
         try:
             conn.send_bytes(wire.dumps(answer, table))
-            if isinstance(answer, Checked) and not answer.superseded and not conn.poll():
+            if isinstance(answer, Checked) and not answer.superseded and not conn.poll(UNTAGGED_PAUSE):
                 conn.send_bytes(wire.dumps(untagged(request), table))
         except (OSError, ValueError):
             return
