@@ -74,7 +74,7 @@ def math_regions(bare: str) -> Iterator[Region]:
         token = m.group(0)
         env = m.group("env")
         if env:
-            close = _end_of(env).search(bare, m.end())
+            close = end_of(env).search(bare, m.end())
             end, after = (close.start(), close.end()) if close else (-1, -1)
             kind, inline = env.rstrip("*"), False
         else:
@@ -89,7 +89,8 @@ def math_regions(bare: str) -> Iterator[Region]:
 
 
 @functools.lru_cache(maxsize=64)
-def _end_of(env: str) -> re.Pattern[str]:
+def end_of(env: str) -> re.Pattern[str]:
+    """The pattern of ``\\end{env}``."""
     return re.compile(r"\\end\s*\{" + re.escape(env) + r"\}")
 
 

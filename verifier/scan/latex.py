@@ -16,7 +16,7 @@ from pathlib import Path
 from verifier.diagnostics import Diagnostic
 from verifier.location import Location
 from verifier.scan import macros as macro_mod
-from verifier.scan.definitions import Region, classify, definition_items, math_regions, split_definitions
+from verifier.scan.definitions import Region, classify, definition_items, end_of, math_regions, split_definitions
 from verifier.scan.display import join_continued_rows, normalise_row, rows_of
 from verifier.scan.document import (
     MAX_FILE_BYTES,
@@ -51,7 +51,7 @@ class _Reader:
     def __init__(self, root: Path, overlay: Mapping[Path, str] | None = None, memo: DisplayMemo | None = None) -> None:
         self.root = root.resolve()
         self.memo = memo
-        self._macros_key: tuple[tuple[str, int, str | None, str], ...] | None = None
+        self._macros_key: str | None = None
         # Texts that replace files on disk (an editor's unsaved buffers), by resolved path.
         self.overlay = {p.resolve(): t for p, t in (overlay or {}).items()}
         self.doc = ScannedDocument()
@@ -260,7 +260,7 @@ class _Reader:
         block.environment = env
         self.tagged.append((source.display, opener.start(), close + 1))
         block.source = " ".join(source.text[opener.end() : close].split())
-        key = (env, bare[opener.end() : close], self._macros()) if self.memo is not None else None
+        key = (env, source.text[opener.end() : close], self._macros()) if self.memo is not None else None
         known = self.memo.get(key, opener.end(), source) if self.memo is not None else None
         if known is not None:
             block.rows = known
@@ -285,10 +285,10 @@ class _Reader:
         if not block.problems:
             self.doc.items[-1:] = split_definitions(block)
 
-    def _macros(self) -> tuple[tuple[str, int, str | None, str], ...]:
-        """The macros in force, as data (what a display's reading depends on besides its text)."""
+    def _macros(self) -> str:
+        """The macros in force, as text (what a display's reading depends on besides its text)."""
         if self._macros_key is None:
-            self._macros_key = tuple(sorted((m.name, m.nargs, m.default, m.body) for m in self.macros.values()))
+            self._macros_key = repr(sorted((m.name, m.nargs, m.default, m.body) for m in self.macros.values()))
         return self._macros_key
 
     def _problem(self, code: str, at: Location | None, message: str, hint: str) -> None:
@@ -357,8 +357,7 @@ def _matching(text: str, start: int, closer: str) -> int:
 def _find_closer(text: str, start: int, closer: str, env: str) -> int:
     if not env.startswith(("\\", "$")):
         # Same-name nesting is not legal LaTeX for these environments; take the first end.
-        pattern = re.compile(r"\\end\s*\{" + re.escape(env) + r"\}")
-        m = pattern.search(text, start)
+        m = end_of(env).search(text, start)
         return m.start() if m else -1
     return text.find(closer, start)
 
