@@ -1,8 +1,9 @@
 """The rows of displays already read, kept from one scan of a manuscript to the next.
 
 An editor scans the same manuscript again after every edit, and most displays have not
-changed.  A display's rows depend only on its environment, its text and the macros in
-force where it stands, so the rows read last time are reused when all three are the same;
+changed.  A display's rows depend only on its environment, its text as the author wrote it
+(comments included: a row's ``source_text`` keeps them) and the macros in force where it
+stands, so the rows read last time are reused when all three are the same;
 only their positions are moved to where the display stands now (the text before it may
 have grown or shrunk).  A display whose reading failed (a macro that does not expand) is
 never kept.  The memo keeps what the last scan used, so it grows no larger than a manuscript.
