@@ -24,14 +24,12 @@ clock (a claim stopped by the time budget) are never stored.
 from __future__ import annotations
 
 import contextlib
-import copy
 import dataclasses
 import functools
 import hashlib
 import inspect
 import json
 import os
-import re
 import tempfile
 from collections.abc import Callable
 from dataclasses import dataclass, field
@@ -218,26 +216,20 @@ class _Region:
         return Location(self.source.display, line, col)
 
 
-def _line_starts(text: str) -> list[int]:
-    return [0] + [m.end() for m in re.finditer("\n", text)]
-
-
-def _region(block: ClaimBlock, starts_of: dict[int, list[int]]) -> _Region | None:
+def _region(block: ClaimBlock) -> _Region | None:
     if not block.rows:
         return None
     source = block.rows[0].text.source
     if source.display != block.tag.file or any(r.text.source is not source for r in block.rows):
         return None
-    starts = starts_of.get(id(source))
-    if starts is None:
-        starts = starts_of[id(source)] = _line_starts(source.text)
+    starts = source.line_starts
     if not 1 <= block.tag.line <= len(starts):
         return None
     start = starts[block.tag.line - 1]
-    origins = [o for r in block.rows for o in r.text.origins]
-    if not origins or min(origins) < start:
+    filled = [r.text.origins for r in block.rows if r.text.origins]
+    if not filled or min(min(o) for o in filled) < start:
         return None
-    return _Region(source, start, max(origins) + 1, starts)
+    return _Region(source, start, max(max(o) for o in filled) + 1, starts)
 
 
 def _define_text(item: DefineTag) -> str:
@@ -246,24 +238,40 @@ def _define_text(item: DefineTag) -> str:
     return "!" + "\n".join(f"{p.code}:{p.message}" for p in item.problems)
 
 
-def block_key(block: ClaimBlock, region: _Region, defines: list[str], settings: dict[str, Any]) -> str:
-    """The cache key of a block: a hash of everything its verdicts can depend on."""
+def fixed_key(settings: dict[str, Any]) -> str:
+    """A hash of what every block's key shares: the format, the engine, the result types, the settings."""
     material = {
         "format": CACHE_FORMAT,
         "version": __version__,
         "engine": engine_fingerprint(),
         "schema": _schema(),
         "settings": sorted((k, repr(v)) for k, v in settings.items()),
-        "defines": defines,
-        "options": sorted(block.options.items()),
-        "environment": block.environment,
-        "problems": [(p.code, p.severity, p.message, p.hint, region.relative(p.location)) for p in block.problems],
-        "tag": region.relative(block.tag),
-        "rows": [[r.text.text, [o - region.start for o in r.text.origins], r.label, r.source_text] for r in block.rows],
-        "region": region.source.text[region.start : region.end],
     }
     blob = json.dumps(material, ensure_ascii=False, sort_keys=True, separators=(",", ":"))
     return hashlib.sha256(blob.encode("utf-8")).hexdigest()
+
+
+def block_key(
+    block: ClaimBlock, region: _Region, defines: list[str], settings: dict[str, Any], fixed: str | None = None
+) -> str:
+    """The cache key of a block: a hash of everything its verdicts can depend on.
+
+    ``fixed`` is :func:`fixed_key` of ``settings`` when the caller has it already.  The
+    material is a tuple of strings, integers and None (in lists and tuples), whose ``repr``
+    is unambiguous and much quicker to make than JSON.
+    """
+    start = -region.start
+    material = (
+        fixed if fixed is not None else fixed_key(settings),
+        tuple(defines),
+        tuple(sorted(block.options.items())),
+        block.environment,
+        tuple((p.code, p.severity, p.message, p.hint, region.relative(p.location)) for p in block.problems),
+        region.relative(block.tag),
+        tuple((r.text.text, list(map(start.__add__, r.text.origins)), r.label, r.source_text) for r in block.rows),
+        region.source.text[region.start : region.end],
+    )
+    return hashlib.sha256(repr(material).encode("utf-8", "surrogatepass")).hexdigest()
 
 
 def _encode(result: ClaimResult, region: _Region) -> dict[str, Any] | None:
@@ -293,11 +301,20 @@ def _encode(result: ClaimResult, region: _Region) -> dict[str, Any] | None:
     return entry
 
 
+def _copy_data(value: Any) -> Any:
+    """A copy of JSON data (dicts, lists and scalars) that shares no dict or list with it."""
+    if isinstance(value, dict):
+        return {k: _copy_data(v) for k, v in value.items()}
+    if isinstance(value, list):
+        return [_copy_data(v) for v in value]
+    return value
+
+
 def _decode(entry: dict[str, Any], region: _Region) -> ClaimResult:
     from verifier.api import ClaimResult
     from verifier.prove.prover import Outcome
 
-    entry = copy.deepcopy(entry)  # results never share mutable parts (space, components)
+    entry = _copy_data(entry)  # results never share mutable parts (space, components)
     outcome = Outcome(**entry["outcome"])
     at, end = entry["at"], entry["end"]
     if not (isinstance(at, int) and isinstance(end, int)):
@@ -340,6 +357,11 @@ class CachedChecker:
     them (project defaults); they reach the key through the block's options.  ``check``
     replaces the checker (tests count what is decided with it).  ``cache_dir=None`` puts the
     cache beside each main file; ``use_disk=False`` keeps it in memory only.
+
+    ``keep_results=True`` (for a caller that checks the same manuscript again and again and
+    never modifies the results, such as the language server) also keeps the results
+    themselves: a block whose key, file and line are unchanged gets the very same
+    :class:`~verifier.api.ClaimResult` objects as last time, not a fresh copy.
     """
 
     def __init__(
@@ -352,6 +374,7 @@ class CachedChecker:
         tag_defaults: dict[str, str] | None = None,
         check: Check | None = None,
         use_disk: bool = True,
+        keep_results: bool = False,
     ) -> None:
         from verifier.api import check_document
         from verifier.prove.prover import DEFAULT_MAX_TERMS
@@ -371,7 +394,11 @@ class CachedChecker:
         else:
             self.ignored_options = []
         self._check = check
+        self._fixed = fixed_key(settings)
         self._memory: dict[str, list[dict[str, Any]]] = {}
+        self.keep_results = keep_results
+        # (key, file, line of the tag) -> the results given last time (keep_results only)
+        self._results: dict[tuple[str, str, int], list[ClaimResult]] = {}
         self._disks: dict[Path, DiskCache] = {}
         self.stats = CacheStats()
 
@@ -403,6 +430,11 @@ class CachedChecker:
             self._memory.pop(next(iter(self._memory)))
         self._memory[key] = claims
 
+    def _keep(self, key: str, block: ClaimBlock, results: list[ClaimResult]) -> None:
+        if len(self._results) >= MAX_ENTRIES:
+            self._results.pop(next(iter(self._results)))
+        self._results[(key, block.tag.file, block.tag.line)] = results
+
     def check_document(self, doc: ScannedDocument, cache_dir: Path | None = None) -> Report:
         """Check ``doc``: cached blocks are re-located, the others decided in one run."""
         from verifier.api import Report
@@ -410,7 +442,6 @@ class CachedChecker:
         apply_tag_defaults(doc, self.tag_defaults)
         disk = self._disk(cache_dir if cache_dir is not None else self.cache_dir)
         stats = self.stats = CacheStats()
-        starts_of: dict[int, list[int]] = {}
         defines: list[str] = []
         # Per block: (block, region, key, cached results or None)
         plan: list[tuple[ClaimBlock, _Region | None, str | None, list[ClaimResult] | None]] = []
@@ -419,16 +450,22 @@ class CachedChecker:
                 defines.append(_define_text(item))
                 continue
             stats.blocks += 1
-            region = _region(item, starts_of)
-            key = block_key(item, region, list(defines), self.settings) if region is not None else None
+            region = _region(item)
+            key = block_key(item, region, list(defines), self.settings, self._fixed) if region is not None else None
             cached: list[ClaimResult] | None = None
-            if key is not None and region is not None:
+            if key is not None and self.keep_results:
+                cached = self._results.pop((key, item.tag.file, item.tag.line), None)
+                if cached is not None:
+                    self._results[(key, item.tag.file, item.tag.line)] = cached  # the most recently used last
+            if cached is None and key is not None and region is not None:
                 entry = self._lookup(key, disk)
                 if entry is not None:
                     try:
                         cached = [_decode(e, region) for e in entry]
                     except (TypeError, ValueError, KeyError):
                         cached = None
+                    if cached is not None and self.keep_results:
+                        self._keep(key, item, cached)
             plan.append((item, region, key, cached))
 
         fresh = self._decide(doc, {id(b) for b, _, _, c in plan if c is None})
@@ -450,6 +487,8 @@ class CachedChecker:
                 continue
             clean = [e for e in entries if e is not None]
             self._remember(key, clean)
+            if self.keep_results:
+                self._keep(key, block, list(results))
             if disk is not None and disk.put(key, clean):
                 stats.stored += 1
                 stored = True

@@ -6,6 +6,11 @@ cache that ``check`` and ``watch`` share: a claim is decided again only when its
 define before it or a macro it uses changed.  The worker keeps one checker per set of
 settings, so its memory cache lives from one edit to the next.
 
+An edit usually changes one display, so the worker also keeps, per manuscript, what it
+built last time: the rows of every display (:class:`verifier.scan.memo.DisplayMemo`), the
+results of every block (the checker's ``keep_results``) and the finding of every result.
+A block whose text, defines, macros and place are unchanged costs a key and a look-up.
+
 The tagged blocks are checked in chunks.  Between two chunks the check asks ``stop()``
 whether a newer edit has arrived; if so it gives up (what it decided so far is in the
 cache) and the newer check starts at once.  A single claim is bounded by the time budget
@@ -28,6 +33,7 @@ from verifier import method
 from verifier.lsp import DEFAULT_SECONDS, fixes
 from verifier.lsp.model import SCAN_SEVERITY, SEVERITY, Checked, Finding, Fix, Pos, Span, absolute, span_of
 from verifier.scan.document import ClaimBlock, DefineTag, ScannedDocument
+from verifier.scan.memo import DisplayMemo
 
 if TYPE_CHECKING:
     from verifier.api import ClaimResult
@@ -36,6 +42,9 @@ if TYPE_CHECKING:
 
 # Tagged blocks decided between two looks at whether a newer edit has arrived.
 CHUNK = 16
+# Seconds of quiet after the verdicts before the "add a tag" offers are made: making them
+# at once would take the processor from the server and the editor while they show the verdicts.
+UNTAGGED_PAUSE = 0.1
 
 
 @dataclass
@@ -64,6 +73,29 @@ class Untagged:
 _CHECKERS: dict[Any, CachedChecker] = {}
 
 
+@dataclass
+class _Session:
+    """What the worker keeps of the last complete check of one manuscript."""
+
+    memo: DisplayMemo = field(default_factory=DisplayMemo)
+    # id(result) -> (result, its finding): a result given again gets the same finding
+    findings: dict[int, tuple[ClaimResult, Finding]] = field(default_factory=dict)
+    scanned: tuple[int, ScannedDocument] | None = None  # (version, scan) for the untagged offers
+
+
+# The sessions of the manuscripts checked most recently (the least recent are dropped).
+_SESSIONS: dict[str, _Session] = {}
+MAX_SESSIONS = 8
+
+
+def _session(main: str) -> _Session:
+    session = _SESSIONS.pop(main, None) or _Session()
+    _SESSIONS[main] = session
+    while len(_SESSIONS) > MAX_SESSIONS:
+        _SESSIONS.pop(next(iter(_SESSIONS)))
+    return session
+
+
 def _checker(max_terms: int, max_seconds: float, tag_defaults: dict[str, str], use_disk: bool) -> CachedChecker:
     from verifier.cache import CachedChecker
 
@@ -74,6 +106,7 @@ def _checker(max_terms: int, max_seconds: float, tag_defaults: dict[str, str], u
             run_options={"max_seconds": max_seconds},
             tag_defaults=tag_defaults,
             use_disk=use_disk,
+            keep_results=True,
         )
     return _CHECKERS[key]
 
@@ -94,7 +127,9 @@ def check(request: Request, stop: Callable[[], bool] = lambda: False) -> Checked
         no_cache=request.no_cache,
     )
     overlay = {Path(p): t for p, t in request.overlay.items()}
-    doc = scan_path(main, overlay)
+    session = _session(request.main)
+    doc = scan_path(main, overlay, session.memo)
+    session.scanned = (request.version, doc)
     checker = _checker(settings.max_terms, settings.max_seconds, settings.tag_defaults, settings.cache)
     cache_dir = default_cache_dir(main)
     done = Checked(request.main, request.version, files=list(dict.fromkeys(absolute(f) for f in doc.files)))
@@ -120,8 +155,16 @@ def check(request: Request, stop: Callable[[], bool] = lambda: False) -> Checked
     spans = [(b, _block_span(b)) for b in blocks]
     done.blocks = [s for _, s in spans]
     at = 0  # claims come in the blocks' order: look from the block of the previous claim on
+    known, session.findings = session.findings, {}
     for result in claims:
-        finding, at = _claim_finding(result, spans, at)
+        same = known.get(id(result))
+        if same is not None and same[0] is result:
+            # The same result object: its block's text and place are unchanged (the cache key,
+            # file and line), so its span, block and fixes are too.
+            finding = same[1]
+        else:
+            finding, at = _claim_finding(result, spans, at)
+        session.findings[id(result)] = (result, finding)
         done.findings.append(finding)
     for d in diagnostics:
         hint = f" (hint: {d.hint})" if d.hint else ""
@@ -145,7 +188,7 @@ def _block_span(block: ClaimBlock) -> Span:
     if not block.rows or any(r.text.source.display != block.tag.file for r in block.rows):
         return Span(path, tag, Pos(block.tag.line - 1, block.tag.column))
     source = block.rows[0].text.source
-    last = max(o for r in block.rows for o in r.text.origins)
+    last = max(max(r.text.origins) for r in block.rows if r.text.origins)
     line, col = source.line_col(last + 1)
     return Span(path, tag, Pos(line - 1, col - 1))
 
@@ -181,8 +224,11 @@ def untagged(request: Request) -> Untagged:
 
     overlay = {Path(p): t for p, t in request.overlay.items()}
     out = Untagged(request.main, request.version)
+    session = _SESSIONS.get(request.main)
+    scanned = session.scanned if session is not None else None
     try:
-        found = untagged_blocks(scan_path(Path(request.main), overlay), overlay)
+        doc = scanned[1] if scanned is not None and scanned[0] == request.version else None
+        found = untagged_blocks(doc or scan_path(Path(request.main), overlay), overlay)
     except Exception:  # a courtesy: a failure here never hides the verdicts
         return out
     for block in found:
@@ -201,10 +247,14 @@ _GENERATION: Any = None  # a shared integer: the number of the newest request
 def worker_main(conn: Connection, generation: Any) -> None:
     """The worker process: answer each :class:`Request` from ``conn`` with a :class:`Checked`.
 
+    Answers go through :mod:`verifier.lsp.wire` (findings the server has are not sent again).
     A check that crashes is answered with the error's text.  The process's standard output
     is the language server's protocol stream, so it is pointed at standard error first.
     """
     global _GENERATION
+    from verifier.lsp import wire
+
+    table = wire.Table()  # the findings the server has from this process
     os.dup2(2, 1)
     sys.stdout = sys.stderr
     _GENERATION = generation
@@ -223,9 +273,9 @@ def worker_main(conn: Connection, generation: Any) -> None:
         except Exception as exc:  # a bug: say so, and keep serving
             answer = f"{type(exc).__name__}: {exc}"
         try:
-            conn.send(answer)
-            if isinstance(answer, Checked) and not answer.superseded and not conn.poll():
-                conn.send(untagged(request))
+            conn.send_bytes(wire.dumps(answer, table))
+            if isinstance(answer, Checked) and not answer.superseded and not conn.poll(UNTAGGED_PAUSE):
+                conn.send_bytes(wire.dumps(untagged(request), table))
         except (OSError, ValueError):
             return
 

@@ -22,18 +22,20 @@ import contextlib
 import multiprocessing
 import sys
 import time
-from collections.abc import Sequence
+from collections.abc import Callable, Iterable, Sequence
 from dataclasses import dataclass
 from multiprocessing.connection import Connection
 from pathlib import Path
 from typing import Any
 
+from cattrs import Converter
 from lsprotocol import types
 from pygls.lsp.server import LanguageServer
+from pygls.protocol import default_converter
 from pygls.uris import from_fs_path, to_fs_path
 
 from verifier import __version__, method
-from verifier.lsp import DEFAULT_SECONDS, engine, hover, roots
+from verifier.lsp import DEFAULT_SECONDS, engine, hover, roots, wire
 from verifier.lsp.model import Checked, Edit, Finding, Fix, Pos, Span
 
 SUFFIXES = (".tex", ".ltx", ".latex", ".md", ".markdown", ".mdown")
@@ -69,6 +71,7 @@ class Worker:
         self.process = ctx.Process(target=engine.worker_main, args=(child, generation), daemon=True)
         self.process.start()
         child.close()
+        self.table = wire.Table()  # the findings this worker sent last
 
     def stop(self) -> None:
         """End the process at once (whatever it is doing)."""
@@ -77,11 +80,53 @@ class Worker:
         self.conn.close()
 
 
+class _DiagnosticData:
+    """The JSON data of each published diagnostic, made once per diagnostic object.
+
+    After an edit most diagnostics of a file are the objects published last time (see
+    :meth:`QrefereeServer.diagnostic`); the converter's hook for :class:`types.Diagnostic`
+    gives their data from here instead of converting them again.  Only the diagnostics
+    published now are kept.
+    """
+
+    def __init__(self) -> None:
+        self.plain: Callable[[Any], Any] = lambda d: d
+        self.data: dict[int, tuple[types.Diagnostic, Any]] = {}
+
+    def converter(self) -> Converter:
+        converter: Converter = default_converter()  # type: ignore[no-untyped-call]
+        self.plain = converter.get_unstructure_hook(types.Diagnostic)
+        converter.register_unstructure_hook(types.Diagnostic, self.hook)
+        return converter
+
+    def hook(self, diagnostic: types.Diagnostic) -> Any:
+        known = self.data.get(id(diagnostic))
+        if known is not None and known[0] is diagnostic:
+            return known[1]
+        data = self.plain(diagnostic)
+        self.data[id(diagnostic)] = (diagnostic, data)
+        return data
+
+    def keep(self, published: Iterable[list[types.Diagnostic]]) -> None:
+        """Forget the data of diagnostics no longer published."""
+        kept: dict[int, tuple[types.Diagnostic, Any]] = {}
+        for diagnostics in published:
+            for d in diagnostics:
+                known = self.data.get(id(d))
+                if known is not None and known[0] is d:
+                    kept[id(d)] = known
+        self.data = kept
+
+
 class QrefereeServer(LanguageServer):
     """The server's state: the last check of each manuscript, and the queue of checks to make."""
 
     def __init__(self, options: Options) -> None:
-        super().__init__("qreferee", __version__)
+        data = _DiagnosticData()
+        super().__init__("qreferee", __version__, converter_factory=data.converter)
+        self.diagnostic_data = data
+        # main file -> id(finding) -> (finding, the lines its range was converted with, its diagnostic)
+        self.made: dict[str, dict[int, tuple[Finding, tuple[str | None, str | None], types.Diagnostic]]] = {}
         self.options = options
         self.results: dict[str, Checked] = {}  # main file -> its last complete check
         self.published: dict[str, list[types.Diagnostic]] = {}  # uri -> what it shows now
@@ -196,9 +241,12 @@ class QrefereeServer(LanguageServer):
 
     def _answer(self, conn: Connection) -> None:
         """The worker sent something: a finished (or given up) check, or it died."""
+        table = self.worker.table if self.worker is not None and self.worker.conn is conn else wire.Table()
         try:
-            answer = conn.recv()
+            answer = wire.loads(conn.recv_bytes(), table)
         except (EOFError, OSError):
+            answer = None
+        except Exception:  # the two ends disagree (see verifier.lsp.wire): start afresh
             answer = None
         if isinstance(answer, engine.Untagged):
             last = self.results.get(answer.main)
@@ -321,10 +369,21 @@ class QrefereeServer(LanguageServer):
             if path not in paths:
                 self._send(self._uri(path), [])
         self.results_paths[checked.main] = paths
+        # A finding the worker sent again (verifier.lsp.wire) is the same object: its
+        # diagnostic is reused when the lines its range lies on read as before.
+        known, made = self.made.get(checked.main, {}), {}
         for path in paths:
             lines = self._lines(path)
-            diagnostics = [self.diagnostic(f, lines) for f in checked.for_path(path)]
+            diagnostics = []
+            for f in checked.for_path(path):
+                ends = (_line(lines, f.span.start.line), _line(lines, f.span.end.line))
+                old = known.get(id(f))
+                diagnostic = old[2] if old is not None and old[0] is f and old[1] == ends else self.diagnostic(f, lines)
+                made[id(f)] = (f, ends, diagnostic)
+                diagnostics.append(diagnostic)
             self._send(self._uri(path), diagnostics)
+        self.made[checked.main] = made
+        self.diagnostic_data.keep(self.published.values())
 
     def _send(self, uri: str, diagnostics: list[types.Diagnostic]) -> None:
         if self.published.get(uri) == diagnostics:
@@ -399,6 +458,10 @@ class QrefereeServer(LanguageServer):
                     action = types.CodeAction(title=fix.title, kind=types.CodeActionKind.QuickFix, edit=self._edit(fix))
                     out.append(action)
         return out
+
+
+def _line(lines: Sequence[str], number: int) -> str | None:
+    return lines[number] if 0 <= number < len(lines) else None
 
 
 def _touches(span: Span, path: str, start: Pos, end: Pos) -> bool:

@@ -14,6 +14,7 @@ on each region; what comes out becomes a :class:`verifier.scan.document.DefineTa
 
 from __future__ import annotations
 
+import functools
 import re
 from collections.abc import Iterator
 from dataclasses import dataclass, replace
@@ -73,7 +74,7 @@ def math_regions(bare: str) -> Iterator[Region]:
         token = m.group(0)
         env = m.group("env")
         if env:
-            close = re.compile(r"\\end\s*\{" + re.escape(env) + r"\}").search(bare, m.end())
+            close = end_of(env).search(bare, m.end())
             end, after = (close.start(), close.end()) if close else (-1, -1)
             kind, inline = env.rstrip("*"), False
         else:
@@ -85,6 +86,12 @@ def math_regions(bare: str) -> Iterator[Region]:
             return
         yield Region(m.start(), m.end(), end, kind, inline)
         pos = after
+
+
+@functools.lru_cache(maxsize=64)
+def end_of(env: str) -> re.Pattern[str]:
+    """The pattern of ``\\end{env}``."""
+    return re.compile(r"\\end\s*\{" + re.escape(env) + r"\}")
 
 
 def _find_unescaped(text: str, closer: str, start: int) -> int:

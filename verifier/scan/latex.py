@@ -8,6 +8,7 @@ relative to the main file and never outside its folder.
 
 from __future__ import annotations
 
+import bisect
 import re
 from collections.abc import Mapping
 from pathlib import Path
@@ -15,7 +16,7 @@ from pathlib import Path
 from verifier.diagnostics import Diagnostic
 from verifier.location import Location
 from verifier.scan import macros as macro_mod
-from verifier.scan.definitions import Region, classify, definition_items, math_regions, split_definitions
+from verifier.scan.definitions import Region, classify, definition_items, end_of, math_regions, split_definitions
 from verifier.scan.display import join_continued_rows, normalise_row, rows_of
 from verifier.scan.document import (
     MAX_FILE_BYTES,
@@ -26,6 +27,7 @@ from verifier.scan.document import (
     ScannedDocument,
 )
 from verifier.scan.files import decode_source, near_miss_tags
+from verifier.scan.memo import DisplayMemo
 from verifier.scan.options import parse_options
 from verifier.scan.text import MappedText, SourceFile, blank_comments
 
@@ -46,8 +48,10 @@ _DISPLAY_OPEN = re.compile(r"\\\[|\$\$|\\begin\s*\{(?P<env>(?:" + "|".join(ENVIR
 class _Reader:
     """Walks the main file and its includes, filling a :class:`ScannedDocument`."""
 
-    def __init__(self, root: Path, overlay: Mapping[Path, str] | None = None) -> None:
+    def __init__(self, root: Path, overlay: Mapping[Path, str] | None = None, memo: DisplayMemo | None = None) -> None:
         self.root = root.resolve()
+        self.memo = memo
+        self._macros_key: str | None = None
         # Texts that replace files on disk (an editor's unsaved buffers), by resolved path.
         self.overlay = {p.resolve(): t for p, t in (overlay or {}).items()}
         self.doc = ScannedDocument()
@@ -109,6 +113,7 @@ class _Reader:
                 if isinstance(found, macro_mod.Macro):
                     if not (found.name in self.macros and bare.startswith("\\providecommand", offset)):
                         self.macros[found.name] = found
+                        self._macros_key = None
                 else:
                     assert isinstance(found, macro_mod.DefinitionProblem)
                     loc = _loc(source, found.offset)
@@ -225,7 +230,8 @@ class _Reader:
         while i < len(bare) and bare[i] in " \t\r\n":
             i += 1
         opener = _DISPLAY_OPEN.match(bare, i)
-        next_tag = next((t for t in tag_offsets if t > at), None)
+        after_tag = bisect.bisect_right(tag_offsets, at)  # tag_offsets is sorted
+        next_tag = tag_offsets[after_tag] if after_tag < len(tag_offsets) else None
         if opener is None or (next_tag is not None and next_tag < i):
             block.problems.append(
                 Diagnostic(
@@ -254,23 +260,36 @@ class _Reader:
         block.environment = env
         self.tagged.append((source.display, opener.start(), close + 1))
         block.source = " ".join(source.text[opener.end() : close].split())
-        content = MappedText(bare[opener.end() : close], list(range(opener.end(), close)), source)
-        for row in rows_of(content, env):
-            try:
-                block.rows.append(normalise_row(row, self.macros))
-            except macro_mod.MacroError as exc:
-                block.problems.append(
-                    Diagnostic(
-                        "macro-expansion",
-                        "error",
-                        _loc(source, exc.origin),
-                        str(exc),
-                        "check the definition of the macro",
+        key = (env, source.text[opener.end() : close], self._macros()) if self.memo is not None else None
+        known = self.memo.get(key, opener.end(), source) if self.memo is not None else None
+        if known is not None:
+            block.rows = known
+        else:
+            content = MappedText(bare[opener.end() : close], list(range(opener.end(), close)), source)
+            for row in rows_of(content, env):
+                try:
+                    block.rows.append(normalise_row(row, self.macros))
+                except macro_mod.MacroError as exc:
+                    block.problems.append(
+                        Diagnostic(
+                            "macro-expansion",
+                            "error",
+                            _loc(source, exc.origin),
+                            str(exc),
+                            "check the definition of the macro",
+                        )
                     )
-                )
-        block.rows = join_continued_rows(block.rows)
+            block.rows = join_continued_rows(block.rows)
+            if self.memo is not None and not block.problems:
+                self.memo.put(key, opener.end(), block.rows)
         if not block.problems:
             self.doc.items[-1:] = split_definitions(block)
+
+    def _macros(self) -> str:
+        """The macros in force, as text (what a display's reading depends on besides its text)."""
+        if self._macros_key is None:
+            self._macros_key = repr(sorted((m.name, m.nargs, m.default, m.body) for m in self.macros.values()))
+        return self._macros_key
 
     def _problem(self, code: str, at: Location | None, message: str, hint: str) -> None:
         where = at or Location(str(self.root), 1, 1)
@@ -338,8 +357,7 @@ def _matching(text: str, start: int, closer: str) -> int:
 def _find_closer(text: str, start: int, closer: str, env: str) -> int:
     if not env.startswith(("\\", "$")):
         # Same-name nesting is not legal LaTeX for these environments; take the first end.
-        pattern = re.compile(r"\\end\s*\{" + re.escape(env) + r"\}")
-        m = pattern.search(text, start)
+        m = end_of(env).search(text, start)
         return m.start() if m else -1
     return text.find(closer, start)
 
@@ -356,13 +374,18 @@ def _display_name(path: Path, root: Path) -> str:
         return str(path)
 
 
-def scan_latex_path(path: Path, overlay: Mapping[Path, str] | None = None) -> ScannedDocument:
+def scan_latex_path(
+    path: Path, overlay: Mapping[Path, str] | None = None, memo: DisplayMemo | None = None
+) -> ScannedDocument:
     """Scan a LaTeX file and everything it includes.
 
     ``overlay`` gives texts that replace files on disk (by path), such as an editor's unsaved buffers.
+    ``memo`` reuses the rows of displays that have not changed since the last scan with it.
     """
-    reader = _Reader(path.resolve().parent, overlay)
+    reader = _Reader(path.resolve().parent, overlay, memo)
     reader.read_path(path, None)
+    if memo is not None:
+        memo.finish()
     return reader.doc
 
 

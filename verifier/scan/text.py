@@ -30,6 +30,11 @@ class SourceFile:
     def __post_init__(self) -> None:
         self._line_starts = [0] + [m.end() for m in re.finditer("\n", self.text)]
 
+    @property
+    def line_starts(self) -> list[int]:
+        """The offset of the first character of each line (do not modify)."""
+        return self._line_starts
+
     def line_col(self, offset: int) -> tuple[int, int]:
         """1-based line and column of a character offset."""
         offset = max(0, min(offset, len(self.text)))
@@ -137,23 +142,25 @@ class MappedText:
 
 def blank_comments(text: str) -> str:
     """Replace every TeX comment (``%`` to end of line, not ``\\%``) by spaces."""
-    out = list(text)
-    i = 0
-    n = len(text)
-    while i < n:
-        ch = text[i]
-        if ch == "\\":
-            i += 2
+    # A % starts a comment when an even run of backslashes precedes it (each pair is an
+    # escaped backslash); the comment runs to the end of its line.
+    parts: list[str] = []
+    done = 0
+    i = text.find("%")
+    while i >= 0:
+        k = i
+        while k > done and text[k - 1] == "\\":
+            k -= 1
+        if (i - k) % 2:
+            i = text.find("%", i + 1)
             continue
-        if ch == "%":
-            j = text.find("\n", i)
-            j = n if j < 0 else j
-            for k in range(i, j):
-                out[k] = " "
-            i = j
-            continue
-        i += 1
-    return "".join(out)
+        end = text.find("\n", i)
+        end = len(text) if end < 0 else end
+        parts += [text[done:i], " " * (end - i)]
+        done = end
+        i = text.find("%", end)
+    parts.append(text[done:])
+    return "".join(parts)
 
 
 _CONTROL = re.compile(r"\\([A-Za-z]+|.)", re.S)
