@@ -940,7 +940,8 @@ def section_processes(quick: bool) -> bool:
     import tempfile
 
     print("\n== 6. start-up, a heavy claim beside a light one, several processes ==")
-    env = {**os.environ, "PYTHONPATH": str(_REPO)}
+    # The verdict cache is off: every run must decide every claim, or --jobs would be timed against the cache.
+    env = {**os.environ, "PYTHONPATH": str(_REPO), "QREFEREE_NO_CACHE": "1"}
     cores = len(os.sched_getaffinity(0)) if hasattr(os, "sched_getaffinity") else (os.cpu_count() or 1)
     load = os.getloadavg()[0] if hasattr(os, "getloadavg") else float("nan")
     print(f"   {cores} cores; load average {load:.2f} before this section (other work slows the parallel figures)")
