@@ -662,32 +662,40 @@ def decide_dissection(p: int, claims: tuple[Claim, ...]) -> Outcome:
         if o.verdict == "error":
             return o
     if all(o.verdict == "proved" for o in outcomes):
-        records = [o.progression for o in outcomes]
-        record = {"dissection": p, "components": records}
-        bound = max(o.bound or 0 for o in outcomes)
-        return Outcome(
-            "proved",
-            "equality",
+        record = {"dissection": p, "components": [o.progression for o in outcomes]}
+        message = (
             f"the {p}-dissection holds: each class t mod {p} is proved by U_{p} ("
             + "; ".join(f"t = {c.t}: bound {o.bound}" for c, o in zip(claims, outcomes, strict=True))
-            + ")",
-            method="u-operator",
-            bound=bound,
-            terms_compared=sum(o.terms_compared for o in outcomes),
-            certificate={
-                "format": 1,
-                "method": "u-operator",
-                "kind": "equality",
-                "space_used": None,
-                "bound": bound,
-                "progression": record,
-            },
-            progression=record,
+            + ")"
         )
+        return _all_classes_proved("equality", message, outcomes, record)
     reasons = "; ".join(
         f"t = {c.t}: {o.message}" for c, o in zip(claims, outcomes, strict=True) if o.verdict != "proved"
     )
     return Outcome("unproven", "equality", f"not every class of the {p}-dissection is proved ({reasons})")
+
+
+def _all_classes_proved(kind: str, message: str, outcomes: list[Outcome], record: dict[str, Any]) -> Outcome:
+    """The proved outcome of a claim made of several classes, each proved by U_m on its own."""
+    bound = max(o.bound or 0 for o in outcomes)
+    certificate = {
+        "format": 1,
+        "method": "u-operator",
+        "kind": kind,
+        "space_used": None,
+        "bound": bound,
+        "progression": record,
+    }
+    return Outcome(
+        "proved",
+        kind,
+        message,
+        method="u-operator",
+        bound=bound,
+        terms_compared=sum(o.terms_compared for o in outcomes),
+        certificate=certificate,
+        progression=record,
+    )
 
 
 def decide_residues(var: str, claims: tuple[Claim, ...]) -> Outcome:
@@ -715,28 +723,13 @@ def decide_residues(var: str, claims: tuple[Claim, ...]) -> Outcome:
             return o
     labels = [f"{var} = {c.t - c.m * c.start}" for c in claims]
     if all(o.verdict == "proved" for o in outcomes):
-        records = [o.progression for o in outcomes]
-        record = {"residues": [c.t - c.m * c.start for c in claims], "components": records}
-        bound = max(o.bound or 0 for o in outcomes)
-        return Outcome(
-            "proved",
-            "congruence",
+        record = {"residues": [c.t - c.m * c.start for c in claims], "components": [o.progression for o in outcomes]}
+        message = (
             "every listed class is proved by U_m ("
             + "; ".join(f"{label}: bound {o.bound}" for label, o in zip(labels, outcomes, strict=True))
-            + ")",
-            method="u-operator",
-            bound=bound,
-            terms_compared=sum(o.terms_compared for o in outcomes),
-            certificate={
-                "format": 1,
-                "method": "u-operator",
-                "kind": "congruence",
-                "space_used": None,
-                "bound": bound,
-                "progression": record,
-            },
-            progression=record,
+            + ")"
         )
+        return _all_classes_proved("congruence", message, outcomes, record)
     reasons = "; ".join(
         f"{label}: {o.message}" for label, o in zip(labels, outcomes, strict=True) if o.verdict != "proved"
     )
