@@ -393,3 +393,21 @@ def test_unwritable_cache_folder_is_tolerated(tmp_path: Path) -> None:
     checker = CachedChecker(cache_dir=blocker / "cache")
     assert verdicts(checker.check_path(path)) == verdicts(check_path(path))
     assert checker.stats.stored == 0
+
+
+def test_a_half_written_file_is_read_again_before_it_is_checked(monkeypatch: pytest.MonkeyPatch) -> None:
+    # An editor that saves in place truncates, then writes: the watcher waits until two readings
+    # of the changed contents agree.  Here the contents read "", then the text twice.
+    import threading
+    import types
+
+    from verifier import watch
+
+    readings = iter(["empty", "full", "full", "never read"])
+    monkeypatch.setattr(watch, "_fingerprint", lambda files: next(readings))
+    fake = types.SimpleNamespace(_fp="before", _stop=threading.Event())
+    assert watch.Watcher._settled(fake, set()) == "full"  # type: ignore[arg-type]
+    assert next(readings) == "never read"
+    # Unchanged contents are not read twice.
+    monkeypatch.setattr(watch, "_fingerprint", lambda files: "before")
+    assert watch.Watcher._settled(fake, set()) == "before"  # type: ignore[arg-type]

@@ -309,6 +309,9 @@ def _doc_paths(doc: ScannedDocument) -> set[Path]:
     return out
 
 
+SETTLE_SECONDS = 0.05  # a changed file must read the same twice this far apart before it is checked
+
+
 class Watcher:
     """Watches a manuscript and calls ``on_report`` after each check that found changed files.
 
@@ -503,7 +506,7 @@ class Watcher:
         for _ in range(5):
             # The hash is taken before scanning: a change during the scan makes the next
             # check's hash differ, so it is never missed.
-            fingerprint = _fingerprint(files)
+            fingerprint = self._settled(files)
             doc = scan_path(self._given)
             found = _doc_paths(doc) | {self.path}
             if found == files:
@@ -517,6 +520,25 @@ class Watcher:
         report = self.checker.check_document(doc, self.cache_dir)
         # The first report shown is the full one (even if the first try found no main file).
         self._publish(report, self.report is None)
+
+    def _settled(self, files: set[Path]) -> str:
+        """The files' fingerprint once it holds still for ``SETTLE_SECONDS``.
+
+        An editor that saves in place truncates the file and then writes it: a check in
+        between would report the claims of a half-written file.  When the contents changed,
+        they are read again after a short pause until two readings agree (a few tries).
+        """
+        fingerprint = _fingerprint(files)
+        if fingerprint == self._fp:
+            return fingerprint
+        for _ in range(10):
+            if self._stop.wait(SETTLE_SECONDS):
+                break
+            again = _fingerprint(files)
+            if again == fingerprint:
+                break
+            fingerprint = again
+        return fingerprint
 
     def _publish(self, report: Report, first: bool) -> None:
         from verifier.report import text
