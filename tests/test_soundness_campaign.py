@@ -24,6 +24,7 @@ import random
 from dataclasses import dataclass, replace
 from fractions import Fraction
 
+import pytest
 from hypothesis import given
 from hypothesis import strategies as st
 from verifier import check_text
@@ -198,3 +199,49 @@ def test_a_mutation_is_never_proved(case: tuple[list[Term], int], seed: int) -> 
     assert v != "refuted", (left, right, message)
     if same_weight:
         assert v == "proved", (left, right, message)
+
+
+# -- Progressions: one residue, the modulus or the step mutated ------------------------------
+# Ramanujan's congruences p(5n+4) = 0 (mod 5), p(7n+5) = 0 (mod 7), p(11n+6) = 0 (mod 11)
+# (Ramanujan 1919; Hardy, Ramanujan, ch. VI) are proved; a mutation of one number is false, as a
+# brute-force count of partitions in the test confirms before the tool is asked.
+RAMANUJAN = ((5, 4), (7, 5), (11, 6))
+
+
+def _partitions(n: int) -> list[int]:
+    p = [1] + [0] * n
+    for part in range(1, n + 1):
+        for m in range(part, n + 1):
+            p[m] += p[m - part]
+    return p
+
+
+PARTITIONS = _partitions(400)
+
+
+@given(st.sampled_from(RAMANUJAN), st.sampled_from(["t+1", "t-1", "modulus", "step"]))
+def test_a_mutated_ramanujan_congruence_is_never_proved(case: tuple[int, int], how: str) -> None:
+    m, t = case
+    modulus = m
+    if how == "t+1":
+        t += 1
+    elif how == "t-1":
+        t -= 1
+    elif how == "modulus":
+        modulus = m * m  # p(5n+4) is not always 0 mod 25 (p(4) = 5), and so on
+    else:
+        m += 1
+    false_somewhere = any(PARTITIONS[m * n + t] % modulus for n in range((400 - t) // m + 1))
+    assert false_somewhere  # the mutation is false, by direct count
+    (c,) = check_text(f"%@claim\n\\[ p({m}n+{t}) \\equiv 0 \\pmod{{{modulus}}} \\]\n").claims
+    assert c.verdict == "refuted", c.outcome.message
+    fd = c.outcome.first_difference
+    assert fd is not None and PARTITIONS[m * int(fd["n"]) + t] % modulus == int(fd["left"]) % modulus != 0
+
+
+@pytest.mark.parametrize("case", RAMANUJAN)
+def test_ramanujan_congruences_are_proved(case: tuple[int, int]) -> None:
+    m, t = case
+    assert all(PARTITIONS[m * n + t] % m == 0 for n in range((400 - t) // m + 1))
+    (c,) = check_text(f"%@claim\n\\[ p({m}n+{t}) \\equiv 0 \\pmod{{{m}}} \\]\n").claims
+    assert c.verdict == "proved", c.outcome.message
