@@ -778,8 +778,8 @@ def _quasimodular() -> None:
 _quasimodular()
 
 
-def _lecture() -> None:
-    st = "lecture"
+def _mdnotes() -> None:
+    st = "mdnotes"
     e8 = Ser(lambda: E(8), lambda: 1 + 480 * series(lambda n: sigma(7, n), 1), f"{SER}, 4.2")
     e10 = Ser(lambda: E(10), lambda: 1 - 264 * series(lambda n: sigma(9, n), 1), f"{SER}, 4.2")
     e10_bad = Ser(lambda: E(10), lambda: 1 - 246 * series(lambda n: sigma(9, n), 1), FALSE)
@@ -822,7 +822,7 @@ def _lecture() -> None:
         add(st, name, reading)
 
 
-_lecture()
+_mdnotes()
 
 
 def _thesis() -> None:
@@ -1004,12 +1004,12 @@ _zvariable()
 _definitions()
 _editor()
 
-STYLES = ("partition", "lattice", "quasimodular", "lecture", "thesis", "zvariable", "definitions", "editor")
+STYLES = ("partition", "lattice", "quasimodular", "mdnotes", "thesis", "zvariable", "definitions", "editor")
 MAIN_FILES = {
     "partition": "partition/paper.tex",
     "lattice": "lattice/paper.tex",
     "quasimodular": "quasimodular/paper.tex",
-    "lecture": "lecture/notes.md",
+    "mdnotes": "mdnotes/notes.md",
     "thesis": "thesis/main.tex",
     "zvariable": "zvariable/paper.tex",
     "definitions": "definitions/paper.tex",

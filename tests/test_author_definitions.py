@@ -63,7 +63,7 @@ STYLES = [
     ),
     # Prose: 'where $H = ...$'.
     ("We use $F$, where $F = E_4 E_6$, and let $G = E_4^2$.\n%@claim\n\\[ F = E_{10}; G = E_8 \\]\n", False, 2),
-    # Markdown lecture notes.
+    # Markdown notes with MathJax.
     ("Define $F := E_4 E_6$ and set $G = E_4^2$.\n\n<!-- @claim -->\n$$ F = E_{10}, \\quad G = E_8 $$\n", True, 2),
     # A tagged display that defines and then claims, in one row.
     ("%@claim\n\\[ F := E_4 E_6 ,\\quad F = E_{10}, \\quad G := E_4^2, \\quad G = E_8 \\]\n", False, 2),
