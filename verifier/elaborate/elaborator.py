@@ -319,7 +319,7 @@ class Elaborator:
 
     def _product(self, node: ast.BinOp, text: str, src: str) -> ir.Expr:
         """A product, where the operators D, D^r and partial_k apply to the factor after them."""
-        factors = _factors(node)
+        factors = ast.factors(node)
         out: ir.Expr | None = None
         pieces: list[ir.Expr] = []
         i = 0
@@ -415,13 +415,13 @@ class Elaborator:
                 and f.exponent.text == node.var
             )
 
-        body_factors = _factors(node.body)
+        body_factors = ast.factors(node.body)
         qpow = [f for f in body_factors if is_q_to_var(f)]
         if not qpow and len(body_factors) == 1 and isinstance(body_factors[0], ast.BigSum):
             # \sum_{n\ge1}\sum_{d\mid n} w(d) q^n: the inner sum's body took q^n along (a sum's body
             # runs to the next + or -); q^n does not depend on d, so it stands outside.
             inner = body_factors[0]
-            inner_factors = _factors(inner.body)
+            inner_factors = ast.factors(inner.body)
             found = [f for f in inner_factors if is_q_to_var(f)]
             if len(found) == 1 and inner.var != node.var:
                 kept = [f for f in inner_factors if f is not found[0]]
@@ -594,19 +594,6 @@ def _arith_mul(a: Any, b: Any) -> Any:
     return t.Bin(f"{a.text} {b.text}", "*", a, b)
 
 
-def _factors(node: ast.Node) -> list[ast.Node]:
-    """The factors of a product chain, in order."""
-    out: list[ast.Node] = []
-    stack = [node]
-    while stack:
-        n = stack.pop()
-        if isinstance(n, ast.BinOp) and n.op == "*":
-            stack += [n.right, n.left]
-        else:
-            out.append(n)
-    return out
-
-
 _HECKE = re.compile(r"^([TU])_(?:\{\s*(\d+)\s*\}|(\d))$")
 _SERRE = re.compile(r"^\\partial(?:_(?:\{\s*(\d+(?:/\d+)?)\s*\}|(\d)))?$")
 
@@ -705,14 +692,7 @@ def _prefactored(node: ast.Node) -> tuple[list[ast.Node], ast.Node] | None:
     Only a product of numbers and powers of q may stand in front, and the last factor must be
     an expansion that ends in ``\\cdots`` or ``O(q^m)``.
     """
-    factors: list[ast.Node] = []
-    stack = [node]
-    while stack:
-        n = stack.pop()
-        if isinstance(n, ast.BinOp) and n.op == "*":
-            stack += [n.right, n.left]
-        else:
-            factors.append(n)
+    factors = ast.factors(node)
     if len(factors) < 2:
         if len(factors) == 1 and isinstance(factors[0], ast.Call) and factors[0].name == "q":
             call = factors[0]

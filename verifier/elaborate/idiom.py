@@ -552,13 +552,6 @@ def dataclasses_fields(node: ast.Node) -> list[str]:
     return [f.name for f in dataclasses.fields(node) if f.name != "span"]
 
 
-def factors_of(node: ast.Node) -> list[ast.Node]:
-    """The factors of a product chain."""
-    if isinstance(node, ast.BinOp) and node.op == "*":
-        return factors_of(node.left) + factors_of(node.right)
-    return [node]
-
-
 def _product_of(nodes: list[ast.Node], span: ast.Span) -> ast.Node:
     if not nodes:
         return ast.Number(span, 1)
@@ -598,7 +591,7 @@ class SumReader:
         lambert = self._lambert(node)
         if lambert is not None:
             return self._double(lambert, src)
-        factors = factors_of(node.body)
+        factors = ast.factors(node.body)
         qs = [(i, q_exponent(f, node.var)) for i, f in enumerate(factors)]
         found = [(i, e) for i, e in qs if e is not None and mentions(factors[i], node.var)]
         if node.kind == "integers":
@@ -679,14 +672,14 @@ class SumReader:
         """``sum_{n>=1} w(n) q^n/(1-q^n)`` as the double sum ``sum_{n,m>=1} w(n) q^{nm}``."""
         if node.kind not in ("at_least", "from") or node.upper is not None:
             return None
-        factors = factors_of(node.body)
+        factors = ast.factors(node.body)
         for k, f in enumerate(factors):
             if not (isinstance(f, ast.BinOp) and f.op == "/"):
                 continue
             den = _linear_factor(f.right, node.var)
             if den is None or den[0] != 1 or den[1] != {1: Fraction(1)}:
                 continue
-            num = factors_of(f.left)
+            num = ast.factors(f.left)
             qn = [x for x in num if q_exponent(x, node.var) == {1: Fraction(1)}]
             if len(qn) != 1:
                 continue
@@ -703,7 +696,7 @@ class SumReader:
         """``sum_{x,y in Z} q^{a x^2 + b xy + c y^2}``: the theta series of the Gram matrix
         [[2a, b], [b, 2c]] (Q(v) = v^T A v / 2), for a positive definite form with integral a, b, c
         (docs/method.md#sums-over-z)."""
-        factors = factors_of(node.body)
+        factors = ast.factors(node.body)
         if len(factors) != 1 or not _is_q_power(factors[0]):
             raise _fail(
                 "a sum over Z^2 whose summand is not a single power q^{Q(x,y)}",
@@ -738,7 +731,7 @@ class SumReader:
         """``sum_{n,m >= 1} w(n, m) q^{nm}`` = ``sum_N (sum_{d | N} w(d, N/d)) q^N``."""
         if not (isinstance(node.lower, ast.Number) and node.lower.value == 1):
             raise _fail("a double sum that does not start at n, m = 1", "write \\sum_{n,m \\ge 1}", node)
-        factors = factors_of(node.body)
+        factors = ast.factors(node.body)
         exps = [f for f in factors if _is_q_power(f)]
         if len(exps) != 1:
             raise _fail(

@@ -215,6 +215,19 @@ class Definition(Node):
     arg: str | None = None
 
 
+def factors(node: Node) -> list[Node]:
+    """The factors of a product chain ``a * b * c``, in order (iteratively: long products are read)."""
+    out: list[Node] = []
+    stack = [node]
+    while stack:
+        n = stack.pop()
+        if isinstance(n, BinOp) and n.op == "*":
+            stack += [n.right, n.left]
+        else:
+            out.append(n)
+    return out
+
+
 def walk(node: Node) -> list[Node]:
     """All nodes of a tree, parents before children."""
     out: list[Node] = [node]

@@ -270,14 +270,7 @@ def _nome_exponent(node: ast.Node) -> ast.Node | Fraction | None:
             return None
         scale /= den
         node = node.left
-    factors: list[ast.Node] = []
-    stack = [node]
-    while stack:
-        x = stack.pop()
-        if isinstance(x, ast.BinOp) and x.op == "*":
-            stack += [x.right, x.left]
-        else:
-            factors.append(x)
+    factors = ast.factors(node)
     names = [f.text for f in factors if isinstance(f, ast.Name)]
     if names.count("\\pi") != 1 or names.count("i") != 1 or sum(names.count(t) for t in _TAU_NAMES) != 1:
         return None

@@ -26,6 +26,8 @@ from dataclasses import dataclass, field
 from fractions import Fraction
 from typing import Any
 
+from verifier.numbers import prime_factors
+
 # Kinds of claims that compare two sides coefficient by coefficient.
 TWO_SIDED = frozenset({"equality", "inequality", "prefix", "arithmetic", "value", "congruence"})
 # Kinds whose claim may have no running variable (a value such as tau(5) mod 5): then the
@@ -39,19 +41,6 @@ def frac_str(x: Fraction) -> str:
     return str(x.numerator) if x.denominator == 1 else f"{x.numerator}/{x.denominator}"
 
 
-def _prime_factors(n: int) -> list[int]:
-    out, p = [], 2
-    while p * p <= n:
-        if n % p == 0:
-            out.append(p)
-            while n % p == 0:
-                n //= p
-        p += 1
-    if n > 1:
-        out.append(n)
-    return out
-
-
 def differ_modulo(a: Fraction, b: Fraction, modulus: int | None) -> bool:
     """Whether a and b differ (modulo ``modulus`` when given, for rationals integral at it).
 
@@ -60,7 +49,7 @@ def differ_modulo(a: Fraction, b: Fraction, modulus: int | None) -> bool:
     if modulus is None:
         return a != b
     diff = a - b
-    if any(diff.denominator % p == 0 for p in _prime_factors(abs(modulus))):
+    if any(diff.denominator % p == 0 for p in prime_factors(abs(modulus))):
         return True
     return diff.numerator % modulus != 0
 
