@@ -153,7 +153,6 @@ def check(request: Request, stop: Callable[[], bool] = lambda: False) -> Checked
         done.checked += checker.stats.misses
         done.reused += checker.stats.hits
     spans = [(b, _block_span(b)) for b in blocks]
-    done.blocks = [s for _, s in spans]
     at = 0  # claims come in the blocks' order: look from the block of the previous claim on
     known, session.findings = session.findings, {}
     for result in claims:

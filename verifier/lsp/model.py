@@ -83,7 +83,6 @@ class Checked:
     version: int  # the request's number (newer requests have larger numbers)
     files: list[str] = field(default_factory=list)  # absolute paths of the manuscript's files
     findings: list[Finding] = field(default_factory=list)
-    blocks: list[Span] = field(default_factory=list)  # every tagged display
     untagged: list[Fix] = field(default_factory=list)  # "add a tag" for untagged displays that read as claims
     untagged_spans: list[Span] = field(default_factory=list)  # the displays of ``untagged``, in order
     checked: int = 0  # tagged blocks decided in this check
