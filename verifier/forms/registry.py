@@ -197,10 +197,17 @@ def character(key: str, scale: int, params: tuple[Any, ...], at_level: int) -> A
     return QuadraticCharacter(1)
 
 
-def cusp_orders(key: str, params: tuple[Any, ...], at_level: int) -> dict[int, Fraction] | None:
-    """Orders at the cusps c/d (keyed by d), for eta quotients; None: holomorphic (>= 0) everywhere."""
+def cusp_orders(key: str, params: tuple[Any, ...], at_level: int, scale: int = 1) -> dict[int, Fraction] | None:
+    """Orders at the cusps c/d (keyed by d) of the atom at ``scale`` (tau -> scale*tau).
+
+    Eta quotients carry their scales in ``params`` (Ligozat's formula); Delta(d tau) is
+    eta(d tau)^24 by Jacobi's product formula, so it has the orders of that eta quotient.
+    None: holomorphic (order >= 0) at every cusp.
+    """
     if key == "eta":
         return {int(d): Fraction(v) for d, v in eta_quotient(params).orders(at_level).items()}
+    if key == "Delta":
+        return cusp_orders("eta", ((scale, 24),), at_level)
     return None
 
 

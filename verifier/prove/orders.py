@@ -46,11 +46,7 @@ def _times(a: Bounds, e: int) -> Bounds:
 
 def atom_bounds(atom: ir.Atom, level: int) -> Bounds:
     """Orders of one atom at every cusp of Gamma_0(level)."""
-    if atom.key == "Delta":
-        # Delta(d tau) = eta(d tau)^24 (Jacobi's product formula), with its Ligozat orders.
-        orders = registry.cusp_orders("eta", ((int(atom.scale), 24),), level)
-    else:
-        orders = registry.cusp_orders(atom.key, atom.params, level)
+    orders = registry.cusp_orders(atom.key, atom.params, level, int(atom.scale))
     if orders is None:
         return _const(level)
     return {d: Fraction(orders[d]) for d in divisors(level)}
