@@ -211,3 +211,44 @@ def test_kronecker_symbols_written_as_bracketed_fractions() -> None:
         ("error", "ambiguous-notation"),
         ("error", "ambiguous-notation"),
     ]
+
+
+def _partitions(n_max: int) -> list[int]:
+    """p(0..n_max) by Euler's recurrence with pentagonal numbers (Andrews, The Theory of Partitions, Cor. 1.8)."""
+    p = [1] + [0] * n_max
+    for n in range(1, n_max + 1):
+        k, total = 1, 0
+        while k * (3 * k - 1) // 2 <= n:
+            sign = 1 if k % 2 else -1
+            total += sign * p[n - k * (3 * k - 1) // 2]
+            if k * (3 * k + 1) // 2 <= n:
+                total += sign * p[n - k * (3 * k + 1) // 2]
+            k += 1
+        p[n] = total
+    return p
+
+
+def test_the_authors_f_k_is_used_by_progression_claims() -> None:
+    # With f_k := (q^{2k};q^{2k})_infty the right side 5 f_5^5/f_1^6 is a series in q^2, so its
+    # coefficient of q^1 is 0, while p(5*1+4) = p(9) = 30 (Andrews, Table 14.1).  Ramanujan's
+    # identity (Hardy, Ramanujan, Ch. VI) holds only with the usual f_k.
+    assert _partitions(9)[9] == 30
+    claim = "%@claim\n\\[ \\sum_{n\\ge0} p(5n+4)q^n = 5\\frac{f_5^5}{f_1^6} \\]\n"
+    usual = check_text("Let $f_k := (q^k;q^k)_\\infty$.\n" + claim).claims[0]
+    doubled = check_text("Let $f_k := (q^{2k};q^{2k})_\\infty$.\n" + claim).claims[0]
+    assert usual.verdict == "proved"
+    assert doubled.verdict == "refuted"
+    witness = doubled.outcome.first_difference
+    assert witness is not None and witness["n"] == 1
+    assert {witness["left"], witness["right"]} == {"30", "0"}
+
+
+def test_an_earlier_claim_with_f_k_does_not_change_a_later_verdict() -> None:
+    # Once a claim had used f_1 through the author's definition, a later progression claim
+    # read f_1 differently and fell back to a comparison of series.  Both claims are
+    # classical: phi(q) = f_2^5/(f_1^2 f_4^2) (Berndt, Ramanujan's Notebooks III, Entry 22) and
+    # Ramanujan's p(5n+4) identity (Hardy, Ramanujan, Ch. VI).
+    first = "%@claim\n\\[ \\sum_{n\\in\\mathbb Z} q^{n^2} = \\frac{f_2^5}{f_1^2 f_4^2} \\]\n"
+    second = "%@claim\n\\[ \\sum_{n\\ge0} p(5n+4)q^n = 5\\frac{f_5^5}{f_1^6} \\]\n"
+    report = check_text("Let $f_k := (q^k;q^k)_\\infty$.\n" + first + second)
+    assert [c.verdict for c in report.claims] == ["proved", "proved"]

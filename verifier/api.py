@@ -377,7 +377,7 @@ def _define(item: DefineTag, elaborator: Elaborator, report: Report) -> None:
         return
     name = parsed.name.replace(" ", "")
     try:
-        reader = progression_products.Reader(elaborator.products, elaborator.definitions)
+        reader = progression_products.Reader(elaborator.products, elaborator.author_forms())
         elaborator.products[normal_name(name)] = reader.read(parsed.body)
     except progression_products.NotProduct:
         elaborator.products.pop(normal_name(name), None)
@@ -835,7 +835,7 @@ def _progression_claim(
         modulus,
         start_n,
         elaborator.products,
-        elaborator.definitions,
+        elaborator.author_forms(),
         dissection_ok,
         residues,
     )

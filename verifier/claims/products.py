@@ -21,6 +21,7 @@ from fractions import Fraction
 from typing import Any
 
 from verifier.elaborate import ir
+from verifier.elaborate.elaborator import ElaborationError
 from verifier.parse import ast
 
 _F = re.compile(r"^f_(?:\{\s*(\d+)\s*\}|(\d))$")
@@ -138,6 +139,10 @@ def from_ir(expr: ir.Expr) -> ProductSum:
         return normalise([Mono(expr.value, Fraction(0))])
     if isinstance(expr, ir.QPower):
         return (Mono(Fraction(1), expr.exponent),)
+    if isinstance(expr, ir.Shift):
+        # q^c times a product, as a defined f_k = (q^k;q^k)_\infty is elaborated.
+        assert expr.base is not None
+        return tuple(m.times(Mono(Fraction(1), expr.exponent)) for m in from_ir(expr.base))
     if isinstance(expr, ir.Atom) and expr.key == "eta":
         out = Mono(Fraction(1), Fraction(0))
         for d, r in expr.params:
@@ -199,7 +204,10 @@ class Reader:
             if key in self.forms:
                 if scale != 1:
                     raise NotProduct(f"{text}({arg}) at a multiple of tau is not read", span)
-                return from_ir(self.forms[key])
+                try:
+                    return from_ir(self.forms[key])
+                except ElaborationError as exc:
+                    raise NotProduct(f"{text}: {exc.problem.message}", span) from exc
         m = _F.match(text)
         if m:
             if arg not in (None, "q"):

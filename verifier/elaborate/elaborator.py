@@ -17,6 +17,7 @@ from __future__ import annotations
 import dataclasses
 import math
 import re
+from collections.abc import Iterator, Mapping
 from dataclasses import dataclass
 from fractions import Fraction
 from typing import Any
@@ -521,6 +522,28 @@ class Elaborator:
         assert total is not None
         return total
 
+    def _family_member(self, name: str) -> tuple[str, int] | None:
+        """(letter, index) when ``name`` is f_3 or f_{16} of a family the author defined."""
+        # normal_name keeps a brace around more than one character: f_16 is f_1 6.
+        member = re.fullmatch(r"([A-Za-z])_(?:\{(\d+)\}|(\d+))", name)
+        if member is None or member.group(1) not in self.families:
+            return None
+        return member.group(1), int(member.group(2) or member.group(3))
+
+    def _elaborate_member(self, name: str) -> ir.Expr:
+        """The author's f_k at this k, elaborated once and kept with the definitions."""
+        from verifier.elaborate.idiom import substitute
+
+        found = self._family_member(name)
+        assert found is not None
+        index, body, body_text = self.families[found[0]]
+        self.definitions[name] = self.expr(substitute(body, {index: ast.Number(body.span, found[1])}), body_text)
+        return self.definitions[name]
+
+    def author_forms(self) -> AuthoredForms:
+        """The author's meanings of names, for readers outside the elaborator (see AuthoredForms)."""
+        return AuthoredForms(self)
+
     def _name(self, node: ast.Name, src: str) -> ir.Expr:
         name = normal_name(node.text)
         scale = _scale_of(node)
@@ -539,15 +562,9 @@ class Elaborator:
                 + ("" if is_builtin(name) else f", or add %@define {name} = ..."),
                 node,
             )
-        # f_3 or f_{16} (normal_name keeps a brace around more than one character: f_16 is f_1 6).
-        member = re.fullmatch(r"([A-Za-z])_(?:\{(\d+)\}|(\d+))", name)
-        if name not in self.definitions and member is not None and member.group(1) in self.families:
-            from verifier.elaborate.idiom import substitute
-
-            index, body, body_text = self.families[member.group(1)]
-            index_value = ast.Number(body.span, int(member.group(2) or member.group(3)))
+        if name not in self.definitions and self._family_member(name) is not None:
             try:
-                self.definitions[name] = self.expr(substitute(body, {index: index_value}), body_text)
+                self._elaborate_member(name)
             except ElaborationError as exc:
                 raise _err(exc.problem.code, f"{name}: {exc.problem.message}", exc.problem.hint, node) from exc
         if name in self.definitions:
@@ -1010,3 +1027,40 @@ def degree(expr: ir.Expr) -> Fraction:
         assert expr.base is not None
         return degree(expr.base) * max(expr.exponent, 0)
     return Fraction(0)
+
+
+class AuthoredForms(Mapping[str, ir.Expr]):
+    """The names the author gave a meaning, read-only: definitions, and every member f_k of
+    a family the author defined (elaborated on first use).
+
+    Readers outside the elaborator (the progression claims' product reader) look names up
+    here before any built-in meaning, so an author's ``f_k := (q^{2k};q^{2k})_\\infty`` is never
+    replaced by the usual shorthand.  A name whose definition could not be read is present,
+    and looking it up raises :class:`ElaborationError`, so it is never read another way.
+    """
+
+    def __init__(self, elaborator: Elaborator) -> None:
+        self._e = elaborator
+
+    def __contains__(self, name: object) -> bool:
+        if not isinstance(name, str):
+            return False
+        e = self._e
+        return name in e.definitions or name in e.unread or e._family_member(name) is not None
+
+    def __getitem__(self, name: str) -> ir.Expr:
+        e = self._e
+        if name in e.definitions:
+            return e.definitions[name]
+        if name in e.unread:
+            hint = f"write the definition of {name} in notation qreferee reads"
+            raise ElaborationError(Problem("unknown-symbol", e.unread[name], hint, (0, 0)))
+        if e._family_member(name) is not None:
+            return e._elaborate_member(name)
+        raise KeyError(name)
+
+    def __iter__(self) -> Iterator[str]:
+        return iter(list(self._e.definitions))
+
+    def __len__(self) -> int:
+        return len(self._e.definitions)
