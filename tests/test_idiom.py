@@ -461,6 +461,68 @@ def test_sums_over_z2_are_theta_series_of_binary_forms(a: int, b: int, c: int) -
     assert report.claims[1].outcome.first_difference == {"n": 5, "left": str(counts[5]), "right": str(wrong[5])}
 
 
+def _diagonal_counts(coefficients: tuple[int, ...], terms: int) -> list[int]:
+    """Number of x in Z^r with sum c_i x_i^2 = n, by enumeration (no qreferee code)."""
+    counts = [1] + [0] * (terms - 1)
+    for c in coefficients:
+        nxt = [0] * terms
+        for n, v in enumerate(counts):
+            if v:
+                x = 0
+                while n + c * x * x < terms:
+                    nxt[n + c * x * x] += v * (1 if x == 0 else 2)
+                    x += 1
+        counts = nxt
+    return counts
+
+
+@pytest.mark.parametrize(
+    "index,coefficients",
+    [
+        ("x,y,z\\in\\mathbb Z", (1, 1, 1)),
+        ("(x,y,z)\\in\\mathbb{Z}^3", (1, 1, 1)),
+        ("x,y,z\\in\\mathbb Z", (1, 1, 2)),
+        ("a,b,c,d\\in\\mathbb Z", (1, 1, 1, 1)),
+        ("(a,b,c,d,e)\\in\\mathbb Z^{5}", (1, 1, 1, 1, 3)),
+    ],
+)
+def test_sums_over_zr_are_theta_series_of_diagonal_forms(index: str, coefficients: tuple[int, ...]) -> None:
+    # sum_{x in Z^r} q^{sum c_i x_i^2} = prod_i theta(c_i tau) (Grosswald, Representations of
+    # Integers as Sums of Squares, ch. 9); r_3(n) and r_4(n) for the first n agree with Jacobi's
+    # four-square theorem, r_4(n) = 8 sum_{d | n, 4 not | d} d (Hardy and Wright, Thm 386).
+    from verifier import check_text
+
+    counts = _diagonal_counts(coefficients, 12)
+    if coefficients == (1, 1, 1, 1):
+        assert counts[1:] == [8 * sum(d for d in range(1, n + 1) if n % d == 0 and d % 4) for n in range(1, 12)]
+    names = [v.strip("()") for v in index.split("\\in")[0].split(",")]
+    body = " + ".join(f"{c if c > 1 else ''}{v}^2" for c, v in zip(coefficients, names, strict=True))
+    wrong = list(counts)
+    wrong[7] += 1
+    text = (
+        f"%@claim\n\\[ \\sum_{{{index}}} q^{{{body}}} = {_printed(counts)} \\]\n"
+        f"%@claim\n\\[ \\sum_{{{index}}} q^{{{body}}} = {_printed(wrong)} \\]\n"
+    )
+    report = check_text(text)
+    assert [c.verdict for c in report.claims] == ["proved", "refuted"], [c.outcome.message for c in report.claims]
+    assert report.claims[1].outcome.first_difference == {"n": 7, "left": str(counts[7]), "right": str(wrong[7])}
+
+
+def test_lattice_sums_that_are_not_read() -> None:
+    # An indefinite form, and a power of Z that does not match the variables: errors, never verdicts.
+    from verifier import check_text
+
+    text = (
+        "%@claim\n\\[ \\sum_{x,y,z\\in\\mathbb Z} q^{x^2+y^2-z^2} = 1 + 4q + \\cdots \\]\n"
+        "%@claim\n\\[ \\sum_{x,y\\in\\mathbb Z^3} q^{x^2+y^2} = 1 + 4q + \\cdots \\]\n"
+    )
+    report = check_text(text)
+    assert [(c.verdict, c.outcome.code) for c in report.claims] == [
+        ("error", "unsupported-notation"),
+        ("error", "syntax"),
+    ]
+
+
 def test_the_hexagonal_lattice_sum_is_the_cubic_theta_function() -> None:
     # a(q) = sum q^{x^2+xy+y^2} = (eta(tau)^3 + 9 eta(9 tau)^3) / eta(3 tau) (Borwein, Borwein and
     # Garvan, Trans. AMS 343 (1994), from memory); a sum with a linear term is not read.

@@ -87,32 +87,46 @@ def poly_of(node: ast.Node, var: str) -> Poly | None:
 
 
 Poly2 = dict[tuple[int, int], Fraction]
+PolyN = dict[tuple[int, ...], Fraction]
 
 
 def poly2_of(node: ast.Node, x: str, y: str) -> Poly2 | None:
     """``node`` as a polynomial in ``x`` and ``y`` with rational coefficients, or None."""
+    found = polyn_of(node, (x, y))
+    return None if found is None else {(k[0], k[1]): v for k, v in found.items()}
+
+
+def polyn_of(node: ast.Node, names: tuple[str, ...], max_power: int = 2) -> PolyN | None:
+    """``node`` as a polynomial in ``names`` (exponent tuples) with rational coefficients, or None.
+
+    Powers above ``max_power`` are refused, so a hostile exponent cannot blow up the expansion.
+    """
+    zero = (0,) * len(names)
+
+    def unit(name: str) -> PolyN:
+        return {tuple(int(v == name) for v in names): Fraction(1)}
+
     if isinstance(node, ast.Number):
-        return {(0, 0): Fraction(node.value)} if node.value else {}
-    if isinstance(node, ast.Name) and node.arg is None and node.text in (x, y):
-        return {(1, 0) if node.text == x else (0, 1): Fraction(1)}
+        return {zero: Fraction(node.value)} if node.value else {}
+    if isinstance(node, ast.Name) and node.arg is None and node.text in names:
+        return unit(node.text)
     if isinstance(node, ast.Neg):
-        inner = poly2_of(node.operand, x, y)
+        inner = polyn_of(node.operand, names, max_power)
         return None if inner is None else {k: -v for k, v in inner.items()}
-    if isinstance(node, ast.Call) and node.name in (x, y):
-        inner = poly2_of(node.argument, x, y)
-        head = {(1, 0) if node.name == x else (0, 1): Fraction(1)}
-        return None if inner is None else _p2mul(head, inner)
+    if isinstance(node, ast.Call) and node.name in names:
+        inner = polyn_of(node.argument, names, max_power)
+        return None if inner is None else _pnmul(unit(node.name), inner)
     if isinstance(node, ast.Power) and isinstance(node.exponent, Fraction):
-        base = poly2_of(node.base, x, y)
+        base = polyn_of(node.base, names, max_power)
         e = node.exponent
-        if base is None or e.denominator != 1 or e < 0 or e > 2:
+        if base is None or e.denominator != 1 or e < 0 or e > max_power:
             return None
-        out: Poly2 = {(0, 0): Fraction(1)}
+        out: PolyN = {zero: Fraction(1)}
         for _ in range(int(e)):
-            out = _p2mul(out, base)
+            out = _pnmul(out, base)
         return out
     if isinstance(node, ast.BinOp):
-        a, b = poly2_of(node.left, x, y), poly2_of(node.right, x, y)
+        a, b = polyn_of(node.left, names, max_power), polyn_of(node.right, names, max_power)
         if a is None or b is None:
             return None
         if node.op in "+-":
@@ -122,17 +136,18 @@ def poly2_of(node: ast.Node, x: str, y: str) -> Poly2 | None:
                 out[k] = out.get(k, Fraction(0)) + sign * v
             return {k: v for k, v in out.items() if v}
         if node.op == "*":
-            return _p2mul(a, b)
-        if node.op == "/" and set(b) == {(0, 0)}:
-            return {k: v / b[(0, 0)] for k, v in a.items()}
+            return _pnmul(a, b)
+        if node.op == "/" and set(b) == {zero}:
+            return {k: v / b[zero] for k, v in a.items()}
     return None
 
 
-def _p2mul(a: Poly2, b: Poly2) -> Poly2:
-    out: Poly2 = {}
-    for (i, j), u in a.items():
-        for (k, m), v in b.items():
-            out[(i + k, j + m)] = out.get((i + k, j + m), Fraction(0)) + u * v
+def _pnmul(a: PolyN, b: PolyN) -> PolyN:
+    out: PolyN = {}
+    for i, u in a.items():
+        for k, v in b.items():
+            key = tuple(x + y for x, y in zip(i, k, strict=True))
+            out[key] = out.get(key, Fraction(0)) + u * v
     return {k: v for k, v in out.items() if v}
 
 
@@ -693,38 +708,51 @@ class SumReader:
         return None
 
     def _lattice(self, node: ast.BigSum, src: str) -> ir.Expr:
-        """``sum_{x,y in Z} q^{a x^2 + b xy + c y^2}``: the theta series of the Gram matrix
-        [[2a, b], [b, 2c]] (Q(v) = v^T A v / 2), for a positive definite form with integral a, b, c
-        (docs/method.md#sums-over-z)."""
+        """``sum_{x_1..x_r in Z} q^{Q(x)}``: the theta series of Q = sum_{i<=j} c_ij x_i x_j, with
+        Gram matrix A_ii = 2 c_ii, A_ij = c_ij (Q(v) = v^T A v / 2), for a positive definite
+        form with integral c_ij (docs/method.md#sums-over-z)."""
+        names = (node.var, node.var2, *node.more)
+        rank = len(names)
         factors = ast.factors(node.body)
         if len(factors) != 1 or not _is_q_power(factors[0]):
             raise _fail(
-                "a sum over Z^2 whose summand is not a single power q^{Q(x,y)}",
+                f"a sum over Z^{rank} whose summand is not a single power q^{{Q}}",
                 "write \\sum_{x,y\\in\\mathbb Z} q^{x^2+xy+y^2}, or define a Gram matrix and write \\Theta_A",
                 node,
             )
         qf = factors[0]
         assert isinstance(qf, ast.Power)
-        e = poly2_of(_exponent_node(qf.exponent, qf.span), node.var, node.var2)
-        if e is None or any(i + j != 2 for i, j in e):
+        e = polyn_of(_exponent_node(qf.exponent, qf.span), names)
+        if e is None or any(sum(k) != 2 for k in e):
             raise _fail(
-                "a sum over Z^2 whose exponent is not a quadratic form a x^2 + b xy + c y^2",
+                f"a sum over Z^{rank} whose exponent is not a quadratic form in {', '.join(names)}",
                 "write q^{x^2+xy+y^2} (no linear or constant terms)",
                 qf,
             )
-        a, b, c = e.get((2, 0), Fraction(0)), e.get((1, 1), Fraction(0)), e.get((0, 2), Fraction(0))
-        if any(v.denominator != 1 for v in (a, b, c)) or a <= 0 or 4 * a * c - b * b <= 0:
-            raise _fail(
-                "a sum over Z^2 whose exponent is not a positive definite form with integral coefficients",
-                "write q^{a x^2 + b xy + c y^2} with a > 0 and 4ac - b^2 > 0",
-                qf,
-            )
+        gram = [[0] * rank for _ in range(rank)]
+        for powers, c in e.items():
+            if c.denominator != 1:
+                raise _fail(
+                    f"a sum over Z^{rank} whose quadratic form has the coefficient {c}, not an integer",
+                    "write a quadratic form with integral coefficients",
+                    qf,
+                )
+            i, j = (k for k, p in enumerate(powers) for _ in range(p))
+            if i == j:
+                gram[i][i] = 2 * int(c)
+            else:
+                gram[i][j] = gram[j][i] = int(c)
         from verifier.elaborate.elaborator import _atom
         from verifier.forms.registry import AtomInfo
         from verifier.forms.theta import QuadraticForm
 
-        gram = ((int(2 * a), int(b)), (int(b), int(2 * c)))
         form = QuadraticForm.from_rows(gram)
+        if form.validate() is not None:
+            raise _fail(
+                f"a sum over Z^{rank} whose exponent is not a positive definite quadratic form",
+                "write q^{Q} with Q positive definite (e.g. x^2+y^2+z^2)",
+                qf,
+            )
         return _atom(AtomInfo("theta", form.weight, params=(form.gram,)), Fraction(1), src, node)
 
     def _double(self, node: ast.BigSum, src: str) -> ir.Expr:

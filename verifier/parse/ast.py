@@ -110,7 +110,7 @@ class BigSum(Node):
     (var | target) or ``"at_least"`` (var >= lower); ``upper`` None means no upper limit.
 
     The q-series idiom adds (docs/method.md#sums-over-z): ``"integers"`` (var in Z),
-    ``"lattice"`` (var, var2 in Z: a theta series of a binary quadratic form),
+    ``"lattice"`` (var, var2, *more in Z: a theta series of a quadratic form),
     ``"pair"`` (var, var2 >= lower), ``"between"`` (lower < var < upper, written with <),
     ``"between_closed"`` (lower <= var <= upper), ``"below"`` (var < upper),
     ``"divides_parity"`` (var | lower with var odd or even: ``parity``), ``"split"``
@@ -125,6 +125,7 @@ class BigSum(Node):
     var2: str = ""
     parity: str = ""
     coefficients: tuple[int, int] = (1, 1)
+    more: tuple[str, ...] = ()  # the third and further variables of a lattice sum
 
 
 @dataclass(frozen=True)

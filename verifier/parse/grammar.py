@@ -462,9 +462,10 @@ def _make_transformer() -> Any:
             var2 = extra[1] if len(extra) > 1 else ""
             parity = extra[2] if len(extra) > 2 else ""
             coefficients = extra[3] if len(extra) > 3 else (1, 1)
+            more = extra[4] if len(extra) > 4 else ()
             if kind == "from" and upper is None:
                 kind = "at_least"  # \sum_{n=1}^{\infty}
-            return ast.BigSum(_span(meta), kind, var, lower, upper, items[1], var2, parity, coefficients)
+            return ast.BigSum(_span(meta), kind, var, lower, upper, items[1], var2, parity, coefficients, more)
 
         def sum_op(self, meta: Any, items: list[Any]) -> tuple[tuple[Any, ...], ast.Node | None]:
             return tuple(items[0]), (items[1] if len(items) > 1 else None)
@@ -529,7 +530,18 @@ def _make_transformer() -> Any:
             return ("integers", str(items[0]), None)
 
         def index_lattice(self, meta: Any, items: list[Any]) -> tuple[Any, ...]:
-            return ("lattice", str(items[0]), None, None, str(items[1]))
+            """``x, y, z \\in \\mathbb Z`` (optionally ``\\mathbb Z^3``): a lattice sum in every variable."""
+            names = [str(t) for t in items if getattr(t, "type", "") == "NAME"]
+            power = [t for t in items if isinstance(t, int)]
+            if power and power[0] != len(names):
+                raise _BadNumber(
+                    f"{len(names)} variables summed over Z^{power[0]}",
+                    meta.start_pos,
+                    hint="write as many variables as the power of Z",
+                )
+            if len(set(names)) != len(names):
+                raise _BadNumber("a variable is named twice in a lattice sum", meta.start_pos, hint="")
+            return ("lattice", names[0], None, None, names[1], "", (1, 1), tuple(names[2:]))
 
         def index_pair_at_least(self, meta: Any, items: list[Any]) -> tuple[Any, ...]:
             return ("pair", str(items[0]), items[-1], None, str(items[1]))
