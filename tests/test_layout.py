@@ -99,6 +99,12 @@ QUALIFIED = [
     (r"\sigma_3(n) \equiv \sigma_1(n) \; (\bmod 2)", None, 2),
     (r"\sigma_3(n) \equiv \sigma_1(n) \; (\mathrm{mod}\ 2)", None, 2),
     (r"\sigma_3(n) \equiv \sigma_1(n) \pmod{2} \quad (n \ge 1)", ("n", 1), 2),
+    # A modulus written as a product of prime powers is evaluated exactly.
+    (r"\tau(n) \equiv \sigma_{11}(n) \pmod{691^2}", None, 691**2),
+    (r"\tau(n) \equiv \sigma_{11}(n) \pmod{2^{11}}", None, 2**11),
+    (r"\tau(n) \equiv \sigma_{11}(n) \; (\bmod{2^8 \cdot 3})", None, 2**8 * 3),
+    (r"\tau(n) \equiv \sigma_{11}(n) \pmod{2^{3} \times 3^2}", None, 72),
+    (r"\tau(n) \equiv \sigma_{11}(n) \pmod{10^{60}}", None, -1),  # too large: an error, never a verdict
 ]
 
 
@@ -206,3 +212,16 @@ def test_claims_about_spaces_are_statements_of_a_row() -> None:
     ]
     bad = report.claims[-1]
     assert bad.outcome.code == "syntax" and bad.location.column == 12  # at the space, not the form
+
+
+def test_a_congruence_modulo_a_prime_power_is_decided() -> None:
+    # tau(n) = sigma_11(n) mod 691 (Ramanujan 1916) does not hold mod 691^2: at n = 2,
+    # tau(2) = -24 and sigma_11(2) = 2049 (sympy), and 2049 + 24 = 2073 = 3 * 691.
+    assert int(sympy.divisor_sigma(2, 11)) + 24 == 3 * 691
+    report = check_text(
+        "%@claim\n\\[ \\tau(n) \\equiv \\sigma_{11}(n) \\pmod{691} \\]\n"
+        "%@claim\n\\[ \\tau(n) \\equiv \\sigma_{11}(n) \\pmod{691^2} \\]\n"
+    )
+    assert [c.verdict for c in report.claims] == ["proved", "refuted"]
+    assert report.claims[1].outcome.first_difference is not None
+    assert report.claims[1].outcome.first_difference["n"] == 2

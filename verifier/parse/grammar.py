@@ -8,6 +8,7 @@ wheel as ``verifier/_grammar/``.  Parsing is LALR(1); syntax errors become a
 from __future__ import annotations
 
 import functools
+import math
 import re
 from dataclasses import dataclass
 from fractions import Fraction
@@ -96,6 +97,24 @@ def parse_definitions(text: str) -> tuple[ast.Definition, ...] | ParseFailure:
         return result
     assert isinstance(result, ast.Definitions)
     return result.items
+
+
+def _modulus_value(text: str) -> int:
+    """The modulus of a ``\\pmod`` token: an integer or a product of powers ``2^{8} \\cdot 3``.
+
+    -1 when it has more than MAX_MODULUS_DIGITS digits (decided before any power is formed).
+    """
+    body = text[text.index("mod") + 3 :]
+    value = 1
+    for factor in re.split(r"\\cdot|\\times", body):
+        numbers = re.findall(r"\d+", factor)
+        base, exponent = int(numbers[0][: MAX_MODULUS_DIGITS + 1]), int(numbers[1]) if len(numbers) > 1 else 1
+        if len(numbers[0]) > MAX_MODULUS_DIGITS or (base > 1 and exponent * math.log10(base) > MAX_MODULUS_DIGITS):
+            return -1
+        value *= base**exponent
+        if len(str(value)) > MAX_MODULUS_DIGITS:
+            return -1
+    return value
 
 
 def _parse(text: str, start: str) -> ast.Node | ParseFailure:
@@ -343,9 +362,8 @@ def _make_transformer() -> Any:
             return ("qualifier", items[-1])
 
         def q_modulus(self, meta: Any, items: list[Any]) -> tuple[str, int]:
-            digits = re.findall(r"\d+", str(items[0]))[-1]
             # -1 stands for a modulus too large to check; 0 is reported as such (api._claim).
-            return ("modulus", int(digits) if len(digits) <= MAX_MODULUS_DIGITS else -1)
+            return ("modulus", _modulus_value(str(items[0])))
 
         def q_range(self, meta: Any, items: list[Any]) -> tuple[str, tuple[str, int]]:
             m = _RANGE_PARTS.search(str(items[0]))
