@@ -252,3 +252,15 @@ def test_an_earlier_claim_with_f_k_does_not_change_a_later_verdict() -> None:
     second = "%@claim\n\\[ \\sum_{n\\ge0} p(5n+4)q^n = 5\\frac{f_5^5}{f_1^6} \\]\n"
     report = check_text("Let $f_k := (q^k;q^k)_\\infty$.\n" + first + second)
     assert [c.verdict for c in report.claims] == ["proved", "proved"]
+
+
+def test_the_space_used_by_a_cusp_form_claim_has_the_dimension_of_the_cusp_forms() -> None:
+    # dim S_2(Gamma_0(11)) = genus of X_0(11) = 1, and dim S_12(Gamma_0(11)) = 11*0 + 5*2 = 10 with
+    # g = 1, two cusps and no elliptic points (Diamond and Shurman, A First Course in Modular Forms,
+    # Thm 3.5.1 and Fig. 3.4); the report once gave dim M_k there instead (2 and 12).
+    report = check_text(
+        "%@claim\n\\[ \\eta(\\tau)^2\\eta(11\\tau)^2 \\in S_2(\\Gamma_0(11)) \\]\n"
+        "%@claim\n\\[ \\dim S_{12}(\\Gamma_0(11)) = 10 \\]\n"
+    )
+    assert [c.verdict for c in report.claims] == ["proved", "proved"]
+    assert [c.outcome.space["dimension"] for c in report.claims if c.outcome.space] == [1, 10]

@@ -33,6 +33,10 @@ def _space_dict(spec: SpaceSpec) -> dict[str, Any]:
     space = space_of(spec.weight, spec.level, 0, chi)
     if spec.group_kind == "Gamma1":
         space["group"] = f"Gamma1({spec.level})"
+        space.pop("dimension", None)  # space_of gives dim M_k(Gamma_0(N)), not that of Gamma_1(N)
+    elif spec.cusp and "dimension" in space:
+        assert spec.weight is not None
+        space["dimension"] = groups.dim_cusp(int(spec.weight), spec.level)
     space["cusp_forms"] = spec.cusp
     return space
 
