@@ -49,6 +49,46 @@ def test_paragraphs_and_bibliography() -> None:
     assert "\\texttt{quotient}" in tex
 
 
+MORE_KINDS = r"""
+%@claim
+\begin{equation}\label{eq:p5}
+\sum_{n\ge0} p(5n+4)q^n = 5\frac{f_5^5}{f_1^6}
+\end{equation}
+
+%@claim
+\[ p(11n+6) \equiv 0 \pmod{11} \]
+
+%@claim
+\[ \tau(n) \equiv n\sigma_3(n) \pmod 7 \]
+
+%@claim
+\[ \eta(\tau)^2\eta(11\tau)^2 \in S_2(\Gamma_0(11)) \]
+
+%@claim
+\[ \dim S_{12}(\Gamma_0(11)) = 10 \]
+"""
+# Ramanujan's identity for p(5n+4) and his congruence mod 11 (Hardy, Ramanujan, Ch. VI);
+# tau(n) = n sigma_3(n) mod 7 (Swinnerton-Dyer, LNM 350, 1973; from memory); eta(tau)^2 eta(11tau)^2
+# spans S_2(Gamma_0(11)) and dim S_12(Gamma_0(11)) = 10 (Diamond and Shurman, Thm 3.5.1; from memory).
+
+
+def test_paragraphs_for_progressions_congruences_membership_and_dimension() -> None:
+    report = check_text(MORE_KINDS, "k.tex")
+    assert [c.verdict for c in report.claims] == ["proved"] * 5
+    tex = proof_tex.render(report)
+    # Each kind gets its own argument, typeset, never the report's plain message.
+    assert "$E = \\eta(\\tau)^{5}$ and $h(\\tau) = \\eta(\\tau)^{-1} \\eta(5\\tau)^{5}$" in tex
+    assert "so the two forms are equal by Sturm's theorem \\cite{sturm}, which is \\eqref{eq:p5}" in tex
+    assert "of $U_{11}h$ vanish modulo $11$" in tex
+    assert "Modulo $7$: $E_2$ is replaced by $E_8$" in tex
+    assert "by the multipliers $E_6$, each congruent to $1$ modulo $7$" in tex
+    assert "it lies in $S_{2}(\\Gamma_0(11))$ as claimed" in tex
+    assert "genus 1, 2 cusps" in tex and "gives 10" in tex
+    assert "docs/method.md" not in tex and "(u-operator)" not in tex
+    for key in ("atkin-lehner", "serre-padic", "swinnerton-dyer", "diamond-shurman", "ligozat"):
+        assert f"\\bibitem{{{key}}}" in tex
+
+
 def test_escaping() -> None:
     assert proof_tex.escape("a_b & 50% #1 {x} ~ \\ ≥") == ("a\\_b \\& 50\\% \\#1 \\{x\\} $\\sim$ $\\backslash$ $\\geq$")
 
@@ -56,7 +96,7 @@ def test_escaping() -> None:
 @pytest.mark.skipif(shutil.which("pdflatex") is None, reason="pdflatex is not installed (CI installs it)")
 def test_the_file_compiles_with_pdflatex(tmp_path: Path) -> None:
     src = tmp_path / "m.tex"
-    src.write_text(MANUSCRIPT)
+    src.write_text(MANUSCRIPT + MORE_KINDS)
     out = tmp_path / "proofs.tex"
     run = subprocess.run(
         [sys.executable, "-m", "verifier", "check", str(src), "--proof-tex", str(out)], capture_output=True, text=True

@@ -34,6 +34,15 @@ REFERENCES: dict[str, str] = {
     "One Variable~VI, Lecture Notes in Math.~627, Springer, 1977, 27--67.",
     "kaneko-zagier": "M.~Kaneko and D.~Zagier, \\emph{A generalized Jacobi theta function and quasimodular "
     'forms}, in: The Moduli Space of Curves, Progr.\\ Math.~129, Birkh\\"auser, 1995, 165--172.',
+    "atkin-lehner": "A.~O.~L.~Atkin and J.~Lehner, \\emph{Hecke operators on $\\Gamma_0(m)$}, Math.\\ Ann.~185 "
+    "(1970), 134--160.",
+    "serre-padic": "J.-P.~Serre, \\emph{Formes modulaires et fonctions z\\^eta $p$-adiques}, in: Modular Functions "
+    "of One Variable~III, Lecture Notes in Math.~350, Springer, 1973, 191--268.",
+    "swinnerton-dyer": "H.~P.~F.~Swinnerton-Dyer, \\emph{On $\\ell$-adic representations and congruences for "
+    "coefficients of modular forms}, in: Modular Functions of One Variable~III, Lecture Notes in Math.~350, "
+    "Springer, 1973, 1--55.",
+    "diamond-shurman": "F.~Diamond and J.~Shurman, \\emph{A First Course in Modular Forms}, Graduate Texts in "
+    "Math.~228, Springer, 2005, Ch.~3.",
 }
 
 _SPECIAL = {
@@ -236,7 +245,138 @@ def _paragraph(claim: ClaimResult, cite: _Cites) -> str:
             f"The two sides of {ref} differ: their coefficients of $q^{{{w['n']}}}$ are ${w['left']}$ and "
             f"${w['right']}$ (computed exactly)." + _exponent_note(cert)
         )
+    if method == "u-operator" and isinstance(cert.get("progression"), dict):
+        return _progression_paragraph(claim, cert["progression"], cite)
+    if method == "sturm-congruence" and cert.get("prime_powers"):
+        return _congruence_paragraph(claim, cert, cite)
+    if method == "cusp-orders" and isinstance(cert.get("space"), dict) and cert.get("cusp_order_bounds"):
+        return _membership_paragraph(claim, cert, cite)
+    if method == "dimension-formula" and "dimension" in cert and "genus" in cert:
+        return _dimension_paragraph(claim, cert, cite)
     return f"{ref[:1].upper()}{ref[1:]} holds ({escape(str(method))}): {escape(claim.outcome.message)}."
+
+
+_ETA_FACTOR = re.compile(r"eta\((\d*)tau\)(?:\^\((-?\d+)\)|\^(-?\d+))?")
+
+
+def _eta_tex(text: str) -> str:
+    """``eta(tau)^(-1) eta(5tau)^5`` (the certificate's spelling) in LaTeX."""
+    out = []
+    for m in _ETA_FACTOR.finditer(text):
+        scale, exponent = m.group(1), m.group(2) or m.group(3) or "1"
+        power = "" if exponent == "1" else f"^{{{exponent}}}"
+        out.append(f"\\eta({scale}\\tau){power}")
+    return " ".join(out) if out else escape(text)
+
+
+def _math(text: str) -> str:
+    """A certificate's formula such as ``E_4^3 E_6`` for math mode: kept when it is plain
+    subscripts and powers, else escaped as text."""
+    if re.fullmatch(r"[A-Za-z0-9_{}^ ()*+-]+", text):
+        return text.replace("*", " ")
+    return f"\\text{{{escape(text)}}}"
+
+
+def _chi_tex(name: str) -> str:
+    """``chi_{-11}`` or ``trivial`` (the certificate's spelling) as a character argument."""
+    m = re.fullmatch(r"chi_\{?(-?\d+)\}?", name.strip())
+    return "" if m is None else f", \\left(\\frac{{{m.group(1)}}}{{\\cdot}}\\right)"
+
+
+def _progression_paragraph(claim: ClaimResult, prog: dict[str, Any], cite: _Cites) -> str:
+    ref = _ref(claim)
+    m, t = int(prog["m"]), int(prog["t"])
+    form, target = prog["form"], prog["target"]
+    bound = int(target["sturm_bound"])
+    modulus = prog.get("modulus")
+    h_space = f"$M_{{{form['weight']}}}({_group(int(form['level']))}{_chi_tex(str(form['character']))})$"
+    t_space = f"$M_{{{target['weight']}}}({_group(int(target['level']))}{_chi_tex(str(target['character']))})$"
+    text = (
+        f"Let $E = {_eta_tex(str(prog['multiplier']))}$ and $h(\\tau) = {_eta_tex(str(form['eta']))}$, which is "
+        f"$\\prod\\eta(\\delta\\tau)^{{r_\\delta}}$ of the generating function times $E({m}\\tau)$. By the criterion "
+        f"of Newman {cite('newman')} and of Gordon and Hughes {cite('gordon-hughes')}, with Ligozat's orders at the "
+        f"cusps {cite('ligozat')}, $h \\in$ {h_space}. Since $U_{{{m}}}(f\\cdot g(q^{{{m}}})) = U_{{{m}}}(f)\\,g$, "
+        f"$U_{{{m}}}h$ is $E$ times a power of $q$ times $\\sum_{{n\\ge0}} a({m}n+{t})q^n$, and $U_{{{m}}}h \\in$ "
+        f"{t_space} {cite('atkin-lehner')}, whose Sturm bound is {bound}. "
+    )
+    if modulus:
+        text += (
+            f"The coefficients of $q^0,\\dots,q^{{{bound}}}$ of $U_{{{m}}}h$ vanish modulo ${modulus}$ (computed "
+            f"exactly), so every coefficient does by Sturm's theorem {cite('sturm')}, which is {ref}."
+        )
+    else:
+        text += (
+            f"The coefficients of $q^0,\\dots,q^{{{bound}}}$ of $U_{{{m}}}h$ and of $E$ times the claimed side agree "
+            f"(computed exactly), so the two forms are equal by Sturm's theorem {cite('sturm')}, which is {ref}."
+        )
+    return text
+
+
+def _congruence_paragraph(claim: ClaimResult, cert: dict[str, Any], cite: _Cites) -> str:
+    ref = _ref(claim)
+    level = int(cert.get("level", 1))
+    weights = sorted({_weight(str(p["weight"])) for p in cert.get("pieces", [])}, key=Fraction)
+    parts = [
+        f"The generating function of the difference of the two sides of {ref} is a sum of modular and "
+        f"quasimodular forms on ${_group(level)}$ (weights {', '.join(weights)}); it is treated one prime power of "
+        f"the modulus ${cert['modulus']}$ at a time, and the Chinese remainder theorem joins them."
+    ]
+    for pp in cert["prime_powers"]:
+        modulus = f"{pp['prime']}^{{{pp['exponent']}}}" if int(pp["exponent"]) > 1 else str(pp["prime"])
+        steps = []
+        if pp.get("e2_replaced_by"):
+            steps.append(
+                f"$E_2$ is replaced by ${_math(str(pp['e2_replaced_by']))}$, which is congruent to it modulo "
+                f"${pp['prime']}$ {cite('serre-padic')}"
+            )
+        multipliers = sorted({str(x["multiplier"]) for x in pp.get("multipliers", []) if str(x["multiplier"]) != "1"})
+        if multipliers:
+            steps.append(
+                f"the pieces are brought to weight {pp.get('weight')} by the multipliers "
+                f"{', '.join('$' + _math(x) + '$' for x in multipliers)}, each congruent to $1$ modulo ${modulus}$ "
+                f"{cite('swinnerton-dyer')}"
+            )
+        if pp.get("vanishing_pieces") and not multipliers:
+            steps.append("every piece is congruent to $0$ modulo $" + modulus + "$ through its own Sturm bound")
+        else:
+            steps.append(
+                f"the coefficients of $q^0,\\dots,q^{{{pp.get('bound')}}}$ of the result vanish modulo ${modulus}$ "
+                f"({pp.get('coefficients_compared')} compared exactly)"
+            )
+        parts.append(f"Modulo ${modulus}$: " + "; ".join(steps) + ".")
+    parts.append(f"By Sturm's theorem modulo prime powers {cite('sturm')}, {ref} holds for every $n$.")
+    return " ".join(parts)
+
+
+def _membership_paragraph(claim: ClaimResult, cert: dict[str, Any], cite: _Cites) -> str:
+    ref = _ref(claim)
+    space = cert["space"]
+    orders = ", ".join(f"$\\geq {v}$ at the cusps $a/{d}$" for d, v in cert["cusp_order_bounds"].items())
+    name = "S" if space.get("cusp_forms") else "M"
+    group = _group(int(space["level"]))
+    k = _weight(str(space["weight"]))
+    expr = str((cert.get("form") or {}).get("expr", ""))
+    if re.fullmatch(r"\(eta( \(\d+ -?\d+\))+\)", expr):
+        modular = (
+            f"The form of {ref} is an eta quotient; by the criterion of Newman {cite('newman')} and of Gordon and "
+            f"Hughes {cite('gordon-hughes')} it is modular of weight {k} on ${group}$ with the stated character"
+        )
+    else:
+        modular = f"The form of {ref} is modular of weight {k} on ${group}$ with the stated character"
+    return (
+        f"{modular}, and by Ligozat's formula {cite('ligozat')} and the holomorphy of its other factors its orders "
+        f"at the cusps are {orders}, so it lies in ${name}_{{{k}}}({group})$ as claimed."
+    )
+
+
+def _dimension_paragraph(claim: ClaimResult, cert: dict[str, Any], cite: _Cites) -> str:
+    ref = _ref(claim)
+    e2, e3 = (cert.get("elliptic_points") or [0, 0])[:2]
+    return (
+        f"The group has index {cert.get('index')} in $\\mathrm{{SL}}_2(\\mathbb{{Z}})$, genus {cert['genus']}, "
+        f"{cert.get('cusps')} cusps and {e2} and {e3} elliptic points of orders 2 and 3; the dimension formula "
+        f"{cite('diamond-shurman')} gives {cert['dimension']}, which is {ref}."
+    )
 
 
 def render(report: Report) -> str:
