@@ -47,3 +47,31 @@ def test_untagged_displays_use_the_new_reading(tmp_path: Path) -> None:
     w = refuted.outcome.first_difference
     # F = E_4 E_6 has constant term 1 (Serre Ch. VII §4.2); -E_10 has -1.
     assert w is not None and (w["n"], int(w["left"]), int(w["right"])) == (0, 1, -1)
+
+
+COEFFICIENTS = r"""\documentclass{article}
+\begin{document}
+Let $f_k := (q^k;q^k)_\infty$.
+\[ \tau(n) \equiv \sigma_{11}(n) \pmod{691} \]
+\[ \sum_{(x,y,z,w)\in\mathbb Z^4} q^{x^2+y^2+z^2+w^2} = 1 + 8q + 24q^2 + 32q^3 + 24q^4 + \cdots \]
+\[ \sum_{n\ge0} \overline{p}(n)q^n = \frac{f_2}{f_1^2} \]
+\[ p(5n+4) \equiv 0 \pmod 5 \]
+\[ \dim S_{12}(\Gamma_0(11)) = 2 \]
+Ordinary mathematics that is not read as a claim:
+\[ p(n) = n^2 + 1 \]
+\[ \sum_{n\ge1} \frac{1}{n^2} = \frac{\pi^2}{6} \]
+\end{document}
+"""
+
+
+def test_untagged_coefficient_claims_lattice_sums_and_dimensions(tmp_path: Path) -> None:
+    # Ramanujan's tau(n) = sigma_11(n) mod 691 and p(5n+4) = 0 mod 5 (Ramanujan 1916, 1919); Jacobi's
+    # r_4(n) = 8 sum_{d | n, 4 not | d} d gives 8, 24, 32, 24 (Hardy and Wright, Thm 386); the
+    # overpartitions have generating function (-q;q)_inf/(q;q)_inf = f_2/f_1^2 (Corteel and Lovejoy,
+    # Trans. AMS 356 (2004), from memory); dim S_12(Gamma_0(11)) is 10, not 2 (Diamond and Shurman,
+    # Thm 3.5.1). A bare p(n) is not taken for the partition function in an untagged display.
+    main = tmp_path / "paper.tex"
+    main.write_text(COEFFICIENTS, encoding="utf-8")
+    result = screen.screen(main, untagged=True)
+    got = [(c.location.line, c.verdict) for c in result.report.claims]
+    assert got == [(4, "proved"), (5, "proved"), (6, "proved"), (7, "proved"), (8, "refuted")]

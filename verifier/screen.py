@@ -500,9 +500,21 @@ _BARE_J = re.compile(r"(?<![A-Za-z\\_^])j(?![A-Za-z])")
 _Q = re.compile(r"(?<![A-Za-z\\])q(?![A-Za-z])")
 
 
+# Coefficients and spaces: tau(n), sigma_k, p(5n+4) (a bare p(n) is too often another p), the
+# overpartitions, r_k(n), dimensions.
+_ARITHMETIC = re.compile(
+    r"\\tau\s*\(\s*[a-z0-9]|\\sigma_\s*\{?\s*\d|(?<![A-Za-z\\])p\s*\(\s*\d+\s*[a-z]\s*\+\s*\d+\s*\)"
+    r"|\\(?:overline|bar)\s*\{?\s*p(?![A-Za-z])|\\dim(?![A-Za-z])|(?<![A-Za-z\\])r_\s*\{?\s*\d+\s*\}?\s*\("
+)
+# q-series: a product, a q-Pochhammer symbol or a sum, beside q.
+_Q_SERIES = re.compile(r"\\prod(?![A-Za-z])|;\s*q|\\sum(?![A-Za-z])")
+
+
 def mentions_form(text: str) -> bool:
-    """Whether normalised claim text names a known modular form."""
-    return bool(_FORM_ATOM.search(text) or (_BARE_J.search(text) and _Q.search(text)))
+    """Whether normalised claim text names a known modular form, a coefficient of one, or a q-series."""
+    if _FORM_ATOM.search(text) or _ARITHMETIC.search(text):
+        return True
+    return bool(_Q.search(text) and (_BARE_J.search(text) or _Q_SERIES.search(text)))
 
 
 def _closer(bare: str, start: int, opener: re.Match[str]) -> tuple[int, int]:
