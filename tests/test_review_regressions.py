@@ -264,3 +264,19 @@ def test_the_space_used_by_a_cusp_form_claim_has_the_dimension_of_the_cusp_forms
     )
     assert [c.verdict for c in report.claims] == ["proved", "proved"]
     assert [c.outcome.space["dimension"] for c in report.claims if c.outcome.space] == [1, 10]
+
+
+def test_dots_after_forms_are_not_a_printed_expansion() -> None:
+    # "D^2 E_4 = E_2 D E_4 / 3 + ..." leaves terms out; it once came back proved by comparing
+    # the constant terms only (both 0). Ramanujan's D E_4 = (E_2 E_4 - E_6)/3 (Ramanujan 1916) shows
+    # the right side is not E_2 D E_4 / 3 alone. A printed tail after q-terms is still read.
+    report = check_text(
+        "%@claim\n\\[ D^2 E_4 = \\frac{E_2 D E_4}{3} + \\dots \\]\n"
+        "%@claim\n\\[ E_4 = 1 + 240q + \\cdots \\]\n"
+        "%@claim\n\\[ E_4 = 1 + \\cdots \\]\n"
+    )
+    assert [(c.verdict, c.outcome.code) for c in report.claims] == [
+        ("error", "bad-expansion"),
+        ("proved", None),
+        ("proved", None),
+    ]

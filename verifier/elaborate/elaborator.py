@@ -119,6 +119,15 @@ class Elaborator:
                     node,
                 )
             expr = self._sum_of(kept, text)
+            if dots and not expr.typ.printed and not isinstance(expr, ir.Const):
+                # f = g + \cdots with no power of q printed: "+ \cdots" then stands for omitted
+                # terms of unknown kind, not for the tail of a q-expansion.
+                raise _err(
+                    "bad-expansion",
+                    "\\cdots after terms with no power of q: the omitted terms are not a q-expansion's tail",
+                    "write every term, or a q-expansion such as 1 + 240q + \\cdots, or g + O(q^m)",
+                    node,
+                )
             printed = expr.typ.printed or dots or trunc is not None
             return ir.Side(expr, printed, trunc, dots, degree(expr))
         except ElaborationError as exc:
