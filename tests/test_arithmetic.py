@@ -943,3 +943,27 @@ def test_perturbed_identities_are_never_proved(identity: Identity) -> None:
     assert claim.verdict != "proved", identity.latex()
     assert claim.verdict == "refuted", (identity.latex(), claim.outcome.message)
     assert first_n(claim) == found[0]
+
+
+def test_generating_sums_in_q_to_a_multiple_of_n() -> None:
+    # sum sigma_1(n) q^{2n} is the generating function at 2 tau, so E_2(tau) - 2 E_2(2 tau) =
+    # -1 - 24 sum sigma_1(n) q^n + 48 sum sigma_1(n) q^{2n} (E_2 = 1 - 24 sum sigma_1(n) q^n,
+    # docs/method.md#e2). The coefficients are checked here from sympy's sigma before the tool is asked.
+    def rhs(n: int) -> int:
+        value = -24 * int(sympy.divisor_sigma(n, 1)) if n else -1
+        return value + (48 * int(sympy.divisor_sigma(n // 2, 1)) if n and n % 2 == 0 else 0)
+
+    def lhs(n: int) -> int:
+        e2 = lambda m: 1 if m == 0 else -24 * int(sympy.divisor_sigma(m, 1))  # noqa: E731
+        return e2(n) - 2 * (e2(n // 2) if n % 2 == 0 else 0)
+
+    assert all(lhs(n) == rhs(n) for n in range(60))
+    good = "E_2(\\tau) - 2E_2(2\\tau) = -1 - 24\\sum_{n\\ge1}\\sigma_1(n)q^n + 48\\sum_{n\\ge1}\\sigma_1(n)q^{2n}"
+    bad = good.replace("q^{2n}", "q^{3n}")
+    # sigma_2 has no modular generating function: a sum in q^{2n} is still compared as a series, and
+    # its coefficient of q^2 is sigma_2(1) = 1, not 0.
+    series = "\\sum_{n\\ge1}\\sigma_2(n)q^{2n} = q^{4} + \\cdots"
+    report = check_text("".join(f"%@claim\n\\[ {c} \\]\n" for c in (good, bad, series)))
+    assert [c.verdict for c in report.claims] == ["proved", "refuted", "refuted"]
+    witness = report.claims[2].outcome.first_difference
+    assert witness is not None and (witness["n"], witness["left"], witness["right"]) == (2, "1", "0")

@@ -23,6 +23,7 @@ from fractions import Fraction
 from typing import Any
 
 from verifier.elaborate import ir
+from verifier.elaborate.rescale import rescale_expr
 from verifier.forms.registry import AtomInfo, Unknown, eta_params, lookup
 from verifier.limits import number_text
 from verifier.parse import ast
@@ -407,23 +408,28 @@ class Elaborator:
     def _generating_sum(self, node: ast.BigSum, text: str) -> ir.Expr:
         """``\\sum_{n \\ge L} a(n) q^n`` (L = 0 or 1) as a form: its generating function.
 
-        See docs/method.md#generating-functions.
+        See docs/method.md#generating-functions.  A factor q^{dn} (d a positive integer) in
+        place of q^n gives the generating function at d tau.
         """
-        from verifier.arith.elaborate import ArithmeticError_, to_arith
-        from verifier.arith.genfun import Untranslatable, add, const, generating_function
-        from verifier.arith.values import NotEvaluable, Values
-
         if node.kind != "at_least" or node.lower is None:
             raise _err("unsupported", "a finite sum is an arithmetic expression, not a form", "", node)
 
+        def step_of(f: ast.Node) -> int | None:
+            """d for a factor q^{d n} (d a positive integer, 1 for q^n), else None."""
+            if not (isinstance(f, ast.Power) and isinstance(f.base, ast.Name) and f.base.text == "q"):
+                return None
+            e = f.exponent
+            if isinstance(e, ast.Name) and e.text == node.var:
+                return 1
+            if isinstance(e, ast.BinOp) and e.op == "*":
+                pair = (e.left, e.right) if isinstance(e.left, ast.Number) else (e.right, e.left)
+                d, v = pair
+                if isinstance(d, ast.Number) and isinstance(v, ast.Name) and v.text == node.var and d.value >= 1:
+                    return d.value if d.value <= 10_000 else None
+            return None
+
         def is_q_to_var(f: ast.Node) -> bool:
-            return (
-                isinstance(f, ast.Power)
-                and isinstance(f.base, ast.Name)
-                and f.base.text == "q"
-                and isinstance(f.exponent, ast.Name)
-                and f.exponent.text == node.var
-            )
+            return step_of(f) is not None
 
         body_factors = ast.factors(node.body)
         qpow = [f for f in body_factors if is_q_to_var(f)]
@@ -441,6 +447,19 @@ class Elaborator:
         if len(qpow) != 1:
             raise _err("unsupported", f"a generating-function sum needs the factor q^{node.var}", "", node)
         rest = [f for f in body_factors if f is not qpow[0]]
+        step = step_of(qpow[0]) or 1
+        try:
+            return rescale_expr(self._generating_sum_at(node, text, rest), step)  # sum a(n) q^{dn} = g(d tau)
+        except ValueError as exc:  # a Hecke operator inside cannot be rescaled
+            raise _err("unsupported", f"sum a(n) q^{{{step}n}}: {exc}", "write the sum with q^n", node) from exc
+
+    def _generating_sum_at(self, node: ast.BigSum, text: str, rest: list[ast.Node]) -> ir.Expr:
+        """The generating function sum a(n) q^n of the coefficient ``rest`` (see :meth:`_generating_sum`)."""
+        from verifier.arith.elaborate import ArithmeticError_, to_arith
+        from verifier.arith.genfun import Untranslatable, add, const, generating_function
+        from verifier.arith.values import NotEvaluable, Values
+
+        assert node.lower is not None
         try:
             lower = self.expr(node.lower, text)
             if not isinstance(lower, ir.Const) or lower.value not in (0, 1):
