@@ -445,7 +445,14 @@ class Elaborator:
                 body_factors = [dataclasses.replace(inner, body=body), found[0]]
                 qpow = found
         if len(qpow) != 1:
-            raise _err("unsupported", f"a generating-function sum needs the factor q^{node.var}", "", node)
+            raise _err(
+                "unsupported-notation",
+                f"not read: a sum over {node.var} whose summand is not a(n) times q^{node.var} "
+                f"(or q^{{d{node.var}}}), nor a Lambert series",
+                f"write \\sum_{{{node.var}\\ge1}} a({node.var}) q^{{{node.var}}}, or a Lambert series "
+                f"\\sum_{{{node.var}\\ge1}} a({node.var}) \\frac{{q^{{{node.var}}}}}{{1-q^{{{node.var}}}}}",
+                node,
+            )
         rest = [f for f in body_factors if f is not qpow[0]]
         step = step_of(qpow[0]) or 1
         try:
