@@ -23,10 +23,9 @@ from verifier.options import parse_character, parse_group, parse_nome, parse_wei
 from verifier.parse import ast
 from verifier.prove.outcome import Outcome
 from verifier.prove.prover import Prover, claim_level
+from verifier.prove.solve import Build
 from verifier.prove.suggest import suggestion
 from verifier.scan.text import MappedText
-
-Build = Callable[[dict[str, Fraction]], tuple[ir.Side, ir.Side] | str]
 
 
 @dataclass
