@@ -53,6 +53,7 @@ class ParsedClaim:
     start_n: int | None = None
     residues: Residues | None = None
     letter: str | None = None
+    relation_kind: str = "equality"  # equality or inequality, from the relation as written
     memo: dict[str, Any] = field(default_factory=dict)
 
     @property

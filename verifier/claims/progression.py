@@ -793,7 +793,7 @@ def read(claim: ParsedClaim, /) -> ProgressionReading | Unread | None:
         claim.modulus,
         claim.start_n,
         elaborator.products,
-        elaborator.definitions,
+        elaborator.author_forms(),
         dissection_ok,
         claim.residues,
     )
