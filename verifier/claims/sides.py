@@ -23,9 +23,9 @@ from verifier.options import parse_character, parse_group, parse_nome, parse_wei
 from verifier.parse import ast
 from verifier.prove.outcome import Outcome
 from verifier.prove.prover import Prover, claim_level
-from verifier.prove.solve import Build
-from verifier.prove.suggest import suggestion
 from verifier.scan.text import MappedText
+
+Build = Callable[[dict[str, Fraction]], tuple[ir.Side, ir.Side] | str]  # the two sides for values of unknowns
 
 
 @dataclass
@@ -122,6 +122,8 @@ def _read(claim: ParsedClaim) -> SidesReading | Unread:
     make_build = side_builder(elaborator, text, nome)
 
     def suggest(prover: Prover) -> str | None:
+        from verifier.claims.suggest import suggestion  # (suggest uses solve, which uses this module)
+
         if left.printed or right.printed:
             return None
         return suggestion(prover, left_node, right_node, make_build)
