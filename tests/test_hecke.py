@@ -13,19 +13,17 @@ from collections.abc import Callable
 from fractions import Fraction
 
 import pytest
-from verifier.forms.delta import delta_series
-from verifier.forms.eta import EtaQuotient
-from verifier.prove.groups import sturm_bound
-from verifier.prove.hecke import (
+from verifier.claims.eigenform import (
     decide_eigen,
     decide_normalised_eigenform,
     eigen_input_precision,
     eigenform_prime_bound,
-    hecke,
     normalised_eigenform_input_precision,
-    operator_name,
-    required_input_precision,
 )
+from verifier.forms.delta import delta_series
+from verifier.forms.eta import EtaQuotient
+from verifier.prove.groups import sturm_bound
+from verifier.prove.hecke import hecke, operator_name, required_input_precision
 from verifier.series.qseries import QSeries
 
 # Ramanujan (1916), table of tau(n), n = 1..12.

@@ -49,6 +49,7 @@ class RecordingTable(AtomTable):
 def _sides(text: str) -> tuple[ir.Side, ir.Side, str, Any]:
     """The pending sides of the single claim in ``text`` (through the library's own pipeline)."""
     from verifier.api import _block, _Pending
+    from verifier.claims.sides import SidesReading
     from verifier.elaborate.elaborator import Elaborator
     from verifier.scan.document import ClaimBlock
 
@@ -58,7 +59,9 @@ def _sides(text: str) -> tuple[ir.Side, ir.Side, str, Any]:
     (block,) = [item for item in doc.items if isinstance(item, ClaimBlock)]
     _block(block, Elaborator(), report, pending)
     (p,) = pending
-    return p.left, p.right, p.rel, p.unit
+    r = p.reading
+    assert isinstance(r, SidesReading)
+    return r.left, r.right, r.rel, r.unit
 
 
 def test_a_light_claim_after_a_heavy_one_builds_only_what_it_needs() -> None:

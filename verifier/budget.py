@@ -12,16 +12,11 @@ from __future__ import annotations
 import contextlib
 import signal
 import threading
-import time
 from collections.abc import Iterator
-from fractions import Fraction
 
-from verifier.elaborate import ir
-from verifier.prove.prover import Outcome, Prover
+from verifier.prove.outcome import Outcome
 
 DEFAULT_MAX_SECONDS = 60.0
-
-Job = tuple[ir.Side, ir.Side, str, Fraction]
 
 
 class TimeExceeded(Exception):
@@ -54,28 +49,6 @@ def time_limit(seconds: float | None) -> Iterator[None]:
     finally:
         signal.setitimer(signal.ITIMER_REAL, 0)
         signal.signal(signal.SIGALRM, previous)
-
-
-def decide_timed(prover: Prover, job: Job, max_seconds: float | None) -> tuple[Outcome, float]:
-    """Decide one claim within the time budget; returns the outcome and the seconds spent."""
-    left, right, rel, unit = job
-    start = time.perf_counter()
-    try:
-        with time_limit(max_seconds):
-            outcome = prover.decide(left, right, rel, unit)
-    except TimeExceeded:
-        kind = "prefix" if (left.printed or right.printed) else ("equality" if rel == "=" else "inequality")
-        need = prover.precision_needed(left, right)
-        outcome = Outcome(
-            "error",
-            kind,
-            f"stopped after {max_seconds:g} s (the time budget); deciding it needs about {need} coefficients",
-            code="time-budget",
-            hint="raise --max-seconds if this is intended",
-        )
-    except Exception as exc:  # a bug in qreferee: this claim gets an error, the others are still checked
-        outcome = internal_error("equality" if rel == "=" else "inequality", exc)
-    return outcome, time.perf_counter() - start
 
 
 def internal_error(kind: str, exc: BaseException) -> Outcome:

@@ -1,4 +1,4 @@
-"""Meaning of what authors write for a weight, a group or a character (tag options and spaces).
+"""Meaning of what authors write for a weight, a group, a character, a range or unknowns (tag options, spaces).
 
 The syntax of tag options is in scan.options; characters are read here by regular expressions
 only, nothing is evaluated.
@@ -171,3 +171,17 @@ def parse_character(text: str) -> QuadraticCharacter | None:
         result = result * chi
         first = False
     return None if first else result
+
+
+_RANGE = re.compile(r"^\s*([a-z])\s*(?:\\geq?|>=|\\geqslant)\s*(-?\d+)\s*$")
+
+
+def parse_range(value: str) -> int | None:
+    """The first n of the tag option ``for=n \\ge 1``; None if there is none or it is unreadable."""
+    o = _RANGE.match(value)
+    return int(o.group(2)) if o else None
+
+
+def parse_unknowns(value: str) -> list[str]:
+    """The unknowns of ``solve=a,b`` (or ``solve=a b``), in the author's order."""
+    return [u.strip() for u in re.split(r"[,\s]+", value) if u.strip()]

@@ -28,11 +28,14 @@ from typing import Any
 
 from flint import fmpz_poly, nmod_poly
 
+from verifier.claims.kind import ParsedClaim, Reading, Unread, certified
 from verifier.claims.products import Mono
+from verifier.elaborate.elaborator import Problem
 from verifier.forms.eta import EtaQuotient
 from verifier.numbers import QuadraticCharacter, prime_factors
 from verifier.prove.groups import group_name, index_gamma0, sturm_bound
 from verifier.prove.outcome import Outcome, Witness, frac_str
+from verifier.prove.prover import Prover
 
 DIRECT = 200  # progression terms compared directly before any proof is attempted
 DIRECT_LIMIT = 200_000  # coefficients of F computed when looking for a counterexample
@@ -458,8 +461,20 @@ class Claim:
         return "congruence" if self.modulus is not None else "arithmetic"
 
 
-def decide(claim: Claim) -> Outcome:
-    """Prove, refute or leave unproven one progression claim (see the module docstring)."""
+def decide(claim: Claim | ProgressionReading, prover: Prover | None = None) -> Outcome:
+    """Prove, refute or leave unproven one progression claim (see the module docstring).
+
+    Given the kind's reading (:func:`read`), the claims it stands for are decided together: a
+    dissection, or the classes of a residue set.  No series of the prover are needed.
+    """
+    if isinstance(claim, ProgressionReading):
+        found = claim.found
+        if found.residues is not None:
+            return decide_residues(found.residues[0], found.claims)
+        if found.dissection is not None:
+            return decide_dissection(found.dissection, found.claims)
+        claim = found.claims[0]
+        assert isinstance(claim, Claim)
     try:
         return _decide(claim)
     except Internal as exc:
@@ -741,3 +756,63 @@ def decide_residues(var: str, claims: tuple[Claim, ...]) -> Outcome:
         method="computation",
         terms_compared=compared,
     )
+
+
+# The kind's three steps (verifier/claims/kind.py); decide is above.
+
+
+@dataclass
+class ProgressionReading(Reading):
+    """The progression claims a written claim stands for (:class:`verifier.claims.reading.Reading`)."""
+
+    found: Any
+
+
+def read(claim: ParsedClaim, /) -> ProgressionReading | Unread | None:
+    """A progression, a congruence of a progression or a dissection; None for any other claim.
+
+    A plain identity between products is read as a dissection only when the forms route
+    cannot take it (a side it cannot read, or two sides of different weights).
+    """
+    from verifier.claims.reading import read as read_shapes
+
+    if claim.space is not None:
+        return None
+    left, right = claim.sides
+    elaborator = claim.elaborator
+
+    def dissection_ok() -> bool:
+        sides = [elaborator.side(n, claim.text.text) for n in (left, right)]
+        weights = [None if isinstance(s, Problem) else s.expr.typ.weight for s in sides]
+        return any(isinstance(s, Problem) for s in sides) or weights[0] != weights[1]
+
+    found = read_shapes(
+        left,
+        right,
+        claim.rel,
+        claim.modulus,
+        claim.start_n,
+        elaborator.products,
+        elaborator.author_forms(),
+        dissection_ok,
+        claim.residues,
+    )
+    if found is None:
+        if claim.residues is not None:
+            var = claim.residues[0]
+            return Unread(
+                claim.relation_kind,
+                "unsupported",
+                f"a residue set ({var} in a list) is read only after a congruence a(mn+{var}) "
+                "\\equiv 0 \\pmod{M} of a partition-type function",
+                "tag each residue class as its own claim",
+            )
+        return None
+    dissection = found.residues is None and found.dissection is not None
+    kind = "congruence" if claim.modulus is not None else ("equality" if dissection else "arithmetic")
+    return ProgressionReading(found, kind=kind, shown=claim.shown)
+
+
+def certify(outcome: Outcome, /) -> dict[str, Any] | None:
+    """The multiplier, the level and the bound of the U_m proof (built by the decision)."""
+    return certified(outcome)

@@ -22,10 +22,11 @@ from dataclasses import dataclass
 from fractions import Fraction
 from typing import Any
 
-from verifier.claims.products import Mono, NotProduct, ProductSum, Reader, partition_function
+from verifier.claims.products import OVERLINE_P, PBAR, Mono, NotProduct, ProductSum, Reader, partition_function
 from verifier.claims.progression import Claim
 from verifier.numbers import prime_factors
 from verifier.parse import ast
+from verifier.scan.text import MappedText
 
 
 @dataclass(frozen=True)
@@ -269,3 +270,15 @@ def _dissection(reader: Reader, left: ast.Node, right: ast.Node) -> Reading | No
 def shift_text(x: Fraction) -> str:
     """A q-shift as text."""
     return str(x.numerator) if x.denominator == 1 else f"{x.numerator}/{x.denominator}"
+
+
+def prepare_row(text: MappedText) -> tuple[MappedText, tuple[str, tuple[int, ...]] | None]:
+    """A row made ready for the grammar: ``\\overline{p}`` as one control word, a trailing
+    residue set ``(t \\in \\{3, 5, 6\\})`` taken out.  Both are blanked in place, so every
+    offset (and so every file:line:column) of the rest stays valid.
+    """
+    out = OVERLINE_P.sub(lambda m: PBAR + " " * (len(m.group(0)) - len(PBAR)), text.text)
+    if out != text.text:
+        text = MappedText(out, text.origins, text.source)
+    out, residues = residue_set(text.text)
+    return (text if residues is None else MappedText(out, text.origins, text.source)), residues

@@ -70,7 +70,7 @@ class Elaborator:
         # The nome of the claim being elaborated: 1 for q = e^{2 pi i tau}, 1/2 for
         # Jacobi's e^{pi i tau} (tag option nome=).
         self.nome = Fraction(1)
-        # Values of the unknowns of a solve= claim while it is elaborated (see prove/solve.py).
+        # Values of the unknowns of a solve= claim while it is elaborated (see claims/solve.py).
         self.unknowns: dict[str, Fraction] = {}
         # Set while a claim with a generating-function sum is elaborated: its other side may
         # mix weights (1 - E_2)/24, which the proof splits by weight.

@@ -2,7 +2,7 @@
 
 A correction comes from the ``suggestion`` of a refuted claim ("holds with NEW in place of
 OLD; ..."), which lists the changed coefficients in the order of the claim's summands
-(:mod:`verifier.prove.suggest`).  The claim is parsed again, its summands are walked in the
+(:mod:`verifier.claims.suggest`).  The claim is parsed again, its summands are walked in the
 same order, and each change becomes an edit of the coefficient the author wrote, at its
 place in the source.  When the place is not certain (the coefficient comes out of a macro,
 two summands could be the one meant, a sign would have to move where no operator is
@@ -68,7 +68,7 @@ def _number(node: ast.Node) -> Fraction | None:
 
 
 def _summands(node: ast.Node, text: str, sign: int = 1, operator: int | None = None) -> list[_Summand] | None:
-    """The summands of a side in the order :mod:`verifier.prove.suggest` numbers them."""
+    """The summands of a side in the order :mod:`verifier.claims.suggest` numbers them."""
     if isinstance(node, ast.BinOp) and node.op in "+-":
         left = _summands(node.left, text, sign, operator)
         gap = text.find(node.op, node.left.span[1], node.right.span[0])

@@ -2,7 +2,7 @@
 
 Each summand c_i T_i of both sides (c_i its leading rational coefficient, 1 when none is
 written) gets an unknown in place of c_i, the first one on the left kept fixed so that 0 is
-not a solution; the linear system of :mod:`verifier.prove.solve` then says whether some
+not a solution; the linear system of :mod:`verifier.claims.solve` then says whether some
 other coefficients make the identity true.  Only a unique solution is offered.
 """
 
@@ -11,9 +11,10 @@ from __future__ import annotations
 from collections.abc import Callable
 from fractions import Fraction
 
+from verifier.claims.sides import Build
+from verifier.claims.solve import decide_solve
 from verifier.parse import ast
 from verifier.prove.prover import Prover, _frac_str
-from verifier.prove.solve import Build, decide_solve
 
 PREFIX = "\u00a7coef"  # names of the unknowns; no LaTeX name can start with this character
 

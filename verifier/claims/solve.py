@@ -1,23 +1,67 @@
-"""Unknown coefficients: ``%@claim solve=a,b`` on ``E_{12} = a E_4^3 + b E_6^2``.
+"""Unknown coefficients: ``%@claim solve=a,b`` on ``E_{12} = a E_4^3 + b E_6^2`` (docs/method.md#claim-solve).
+
+Read: the tag's unknowns (:func:`verifier.options.parse_unknowns`) and the two sides, which are
+elaborated again for each trial value of the unknowns (:func:`verifier.claims.sides.side_builder`).
 
 The claim is affine in the unknowns: F(a) = F_0 + sum a_i F_i with F the cleared difference
 N_L D_R - N_R D_L.  Every piece of F lies in a space where coefficients 0..B determine the
 form (Sturm or valence bound), so the claim holds exactly for the rational solutions of the
 finite linear system "coefficients 0..B of F(a) vanish".  Linearity is checked (F(2 e_i)
-must equal F_0 + 2 F_i); an unknown in a denominator or a power is refused.
+must equal F_0 + 2 F_i); an unknown in a denominator or a power is refused.  The same
+system finds the suggested corrections of refuted identities (:mod:`verifier.claims.suggest`).
 """
 
 from __future__ import annotations
 
-from collections.abc import Callable
+from dataclasses import dataclass
 from fractions import Fraction
 from typing import Any
 
+from verifier.claims.kind import ParsedClaim, Reading, Unread, certified
+from verifier.claims.sides import Build, side_builder
 from verifier.elaborate import ir
 from verifier.forms import registry
+from verifier.options import parse_unknowns
 from verifier.prove.prover import Outcome, Prover, _frac_str
 
-Build = Callable[[dict[str, Fraction]], tuple[ir.Side, ir.Side] | str]
+KINDS = ("solve",)
+
+
+@dataclass
+class SolveReading(Reading):
+    """The unknowns, and the two sides built for given values of them."""
+
+    build: Build
+    unknowns: list[str]
+
+
+def read(claim: ParsedClaim, /) -> SolveReading | Unread | None:
+    """A tag with ``solve=``: an equality whose unknowns are to be found."""
+    if claim.space is not None or "solve" not in claim.options:
+        return None
+    unknowns = parse_unknowns(claim.options["solve"])
+    if claim.rel != "=" or not unknowns:
+        return Unread("solve", "bad-option", "solve= needs unknowns and an equality", "write solve=a,b")
+    left, right = claim.sides
+    build_sides = side_builder(claim.elaborator, claim.text, Fraction(1))(left, right, {})
+
+    def build(values: dict[str, Fraction]) -> tuple[ir.Side, ir.Side] | str:
+        sides: tuple[ir.Side, ir.Side] | str = build_sides(values)
+        if not isinstance(sides, str) and (sides[0].printed or sides[1].printed):
+            return "solve= works on identities between forms, not printed expansions"
+        return sides
+
+    return SolveReading(build, unknowns, kind="solve")
+
+
+def decide(reading: SolveReading, prover: Prover, /) -> Outcome:
+    """The unknowns found by a linear system and the identity proved with them."""
+    return decide_solve(prover, reading.build, reading.unknowns)
+
+
+def certify(outcome: Outcome, /) -> dict[str, Any] | None:
+    """The certificate of the identity with the values found."""
+    return certified(outcome)
 
 
 def _vector(prover: Prover, left: ir.Side, right: ir.Side, keys: list[tuple[Any, ...]] | None) -> dict[Any, Fraction]:

@@ -1,4 +1,8 @@
-"""Claims about spaces: ``f \\in M_k(\\Gamma_0(N), \\chi)``, ``f \\in S_k(...)``, ``\\dim M_k(...) = d``.
+"""Membership: ``f \\in M_k(\\Gamma_0(N), \\chi)``, ``f \\in S_k(...)`` (docs/method.md#claim-membership).
+
+The grammar reads the claim's shape (rule ``space_claim``) and :func:`verifier.parse.spaces.parse_space`
+the space; :func:`read_space` and :func:`read_form` are shared with the dimension and
+eigenform kinds.
 
 Membership is proved from the weight, the level and character of every atom, and the
 orders at the cusps (Ligozat's formula for eta quotients, docs/method.md#eta-modularity, #ligozat; Eisenstein
@@ -13,22 +17,75 @@ is ``unproven``: eta-quotient levels are sufficient, not necessary (docs/method.
 from __future__ import annotations
 
 import math
+from dataclasses import dataclass
 from fractions import Fraction
 from typing import Any
 
+from verifier.claims.kind import ParsedClaim, Reading, Unread, certified
 from verifier.elaborate import ir
+from verifier.elaborate.elaborator import Problem
 from verifier.elaborate.rescale import rescale_factor
 from verifier.forms import registry
 from verifier.numbers import QuadraticCharacter
-from verifier.parse.spaces import SpaceSpec
+from verifier.parse.spaces import SpaceSpec, parse_space
 from verifier.prove import certificate, groups, orders
 from verifier.prove.evaluate import graded_fraction, laurent_to
 from verifier.prove.prover import Outcome, Prover, Setup, _first_nonzero, _frac_str, space_of
 
 KIND = "membership"
+KINDS = (KIND,)
 
 
-def _space_dict(spec: SpaceSpec) -> dict[str, Any]:
+@dataclass
+class MembershipReading(Reading):
+    """``side \\in spec``."""
+
+    side: ir.Side
+    spec: SpaceSpec
+
+
+def read(claim: ParsedClaim, /) -> MembershipReading | Unread | None:
+    """``f \\in M_k(...)`` or ``f \\in S_k(...)``: the form elaborated, the space read."""
+    if claim.space is None or claim.space.kind != KIND:
+        return None
+    spec = read_space(claim)
+    if isinstance(spec, Unread) or spec is None:
+        return spec
+    side = read_form(claim)
+    if isinstance(side, Unread):
+        return side
+    return MembershipReading(side, spec, kind=KIND)
+
+
+def decide(reading: MembershipReading, prover: Prover, /) -> Outcome:
+    """Proved from weight, level, character and cusp orders; refuted only for level-free reasons."""
+    return decide_membership(prover, reading.side, reading.spec)
+
+
+def certify(outcome: Outcome, /) -> dict[str, Any] | None:
+    """The space, the form and the cusp-order bounds the proof used."""
+    return certified(outcome)
+
+
+def read_space(claim: ParsedClaim) -> SpaceSpec | Unread | None:
+    """The space of a claim about a space, read by :func:`parse_space` (None: the claim names none)."""
+    assert claim.space is not None
+    spec = parse_space(claim.space.space) if claim.space.space is not None else None
+    if isinstance(spec, str):
+        return Unread(claim.space.kind, "syntax", spec, at=claim.space.space_at)
+    return spec
+
+
+def read_form(claim: ParsedClaim) -> ir.Side | Unread:
+    """The form of a claim about a space, elaborated."""
+    assert claim.space is not None and claim.space.form is not None
+    side = claim.elaborator.side(claim.space.form, claim.text.text)
+    if isinstance(side, Problem):
+        return Unread(claim.space.kind, side.code, side.message, side.hint, at=side.span[0])
+    return side
+
+
+def space_dict(spec: SpaceSpec) -> dict[str, Any]:
     chi = spec.character.name if spec.character is not None else "trivial"
     space = space_of(spec.weight, spec.level, 0, chi)
     if spec.group_kind == "Gamma1":
@@ -43,7 +100,7 @@ def _space_dict(spec: SpaceSpec) -> dict[str, Any]:
 
 def decide_membership(prover: Prover, side: ir.Side, spec: SpaceSpec) -> Outcome:
     """Decide ``side \\in spec``."""
-    space = _space_dict(spec)
+    space = space_dict(spec)
     if side.printed:
         return Outcome("error", KIND, "a printed expansion is not a form; name the form", space, code="bad-expansion")
     expr = side.expr
@@ -217,98 +274,3 @@ def _single_eta(expr: ir.Expr) -> tuple[Any, ...] | None:
     if isinstance(expr, ir.Product) and isinstance(expr.left, ir.Const) and isinstance(expr.right, ir.Atom):
         return expr.right.params if expr.right.key == "eta" and expr.left.value != 0 else None
     return None
-
-
-def decide_dimension(spec: SpaceSpec, stated: int) -> Outcome:
-    """Decide ``\\dim spec = stated`` by the dimension formula (docs/method.md#dimension-gamma0)."""
-    space = _space_dict(spec)
-    k = spec.weight
-    if spec.group_kind != "Gamma0" or (spec.character is not None and not spec.character.is_trivial):
-        return Outcome(
-            "error",
-            "dimension",
-            "dimensions are known here only for Gamma_0(N) with the trivial character",
-            space,
-            code="unsupported",
-        )
-    if k.denominator != 1 or k < 0:
-        return Outcome(
-            "error", "dimension", "dimensions are known here only for integral weight k >= 0", space, code="unsupported"
-        )
-    kk = int(k)
-    dim = groups.dim_cusp(kk, spec.level) if spec.cusp else groups.dim_modular(kk, spec.level)
-    what = f"dim {spec.text()}"
-    verdict = "proved" if dim == stated else "refuted"
-    g = groups.genus(spec.level)
-    e2, e3 = groups.elliptic_points(spec.level)
-    einf = groups.cusp_count(spec.level)
-    msg = f"{what} = {dim} (genus {g}, {e2} and {e3} elliptic points of order 2 and 3, {einf} cusps)"
-    if verdict == "refuted":
-        msg = f"{what} is {dim}, not {stated} (genus {g}, elliptic points {e2}, {e3}, {einf} cusps)"
-    cert = certificate.dimension(
-        space,
-        {"weight": kk, "level": spec.level, "cusp_forms": spec.cusp},
-        dim,
-        {"index": groups.index_gamma0(spec.level), "elliptic_points": [e2, e3], "cusps": einf, "genus": g},
-    )
-    return Outcome(verdict, "dimension", msg, space, "dimension-formula", None, 0, certificate=cert)
-
-
-def decide_eigenform(prover: Prover, side: ir.Side) -> Outcome:
-    """``f \\text{ is a normalised eigenform}``: a_1 = 1 and T_n f = a_n f for all n (docs/method.md#hecke)."""
-    from verifier.prove.hecke import decide_normalised_eigenform, normalised_eigenform_input_precision
-
-    kind = "eigenform"
-    expr = side.expr
-    t = expr.typ
-    if side.printed or t.depth or t.den_weight or t.mixed or t.weight is None or t.weight.denominator != 1:
-        return Outcome(
-            "error",
-            kind,
-            "eigenform claims need one modular form of integral weight (no E_2, quotients or expansions)",
-            code="unsupported",
-        )
-    if rescale_factor(side) != 1:
-        return Outcome(
-            "refuted",
-            kind,
-            "the q-expansion has non-integral exponents; it is not a form on Gamma_0(N)",
-            method="hecke",
-        )
-    try:
-        level = 1
-        for atom in ir.atoms_of(expr):
-            n = registry.level(atom.key, int(atom.scale), atom.params)
-            level = level * n // math.gcd(level, n)
-
-        def chars(atom: ir.Atom) -> int:
-            return int(registry.character(atom.key, int(atom.scale), atom.params, level).kernel)
-
-        need = normalised_eigenform_input_precision(t.weight, level)
-        num, _ = graded_fraction(expr, need, prover.table, chars)
-    except registry.NotModular as exc:
-        return Outcome("error", kind, f"not modular: {exc}", code="not-modular")
-    if len(num) != 1:
-        return Outcome("unproven", kind, "the form has pieces of several characters or weights", method="hecke")
-    (w, _, kernel) = next(iter(num))
-    # The series of f itself (num is the numerator of f; a constant denominator divides it).
-    series = laurent_to(expr, need, prover.table, prover.max_terms * 2)
-    decision = decide_normalised_eigenform(series, w, kernel, level)
-    space = space_of(w, level, 0, QuadraticCharacter(kernel).name)
-    if decision.proved:
-        return Outcome(
-            "proved",
-            kind,
-            f"a normalised eigenform of all T_n on {space['group']}: {decision.reason}",
-            space,
-            "hecke",
-            decision.bound,
-        )
-    fd = None
-    if decision.index is not None and decision.left is not None and decision.right is not None:
-        fd = {
-            "n": decision.index,
-            "left": _frac_str(Fraction(decision.left)),
-            "right": _frac_str(Fraction(decision.right)),
-        }
-    return Outcome("refuted", kind, decision.reason, space, "hecke", decision.bound, first_difference=fd)

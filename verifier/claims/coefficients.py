@@ -1,14 +1,18 @@
-"""Deciding claims about arithmetic functions: for all n, at a given n, and modulo M.
+"""Coefficient identities for all n (docs/method.md#claim-arithmetic), and the reading of
+every claim about arithmetic functions (``\\sigma_3(n)``, ``a_n(f)``, ``\\tau(5)``).
 
-* At a given n (``\\tau(5) = 4830``): both sides are computed exactly; proved or refuted.
+The reading is shared with the value kind (:mod:`verifier.claims.value`, no free variable)
+and the congruence kind (:mod:`verifier.claims.congruence`, a modulus); this module decides
+the claims for all n, and is the comparison the congruence kind builds on.
+
 * For all n >= n0: both sides are first compared directly for n0 <= n <= CHECK (a
   difference refutes, with n and both values).  Then each side is translated into its
   generating function (:mod:`verifier.arith.genfun`), the constant terms are removed
   when n0 >= 1, and the identity of generating functions is proved like any identity of
   forms (split by weight and E_2-power, Sturm bound per piece).  A side without a known
   modular generating function leaves the claim ``unproven`` with the range checked.
-* Congruences: refuted by a direct difference mod M; proved by Sturm's theorem for
-  congruences when the pieces allow it (:mod:`verifier.prove.congruence`).
+* Congruences: refuted by a direct difference mod M; the proof step is the congruence
+  kind's (``prove_modulo``).
 
 Every proof is cross-checked against the direct values; a disagreement is reported as an
 internal inconsistency, never as a proof.
@@ -17,20 +21,25 @@ internal inconsistency, never as a proof.
 from __future__ import annotations
 
 import dataclasses
+from collections.abc import Callable
 from dataclasses import dataclass
 from fractions import Fraction
 from typing import Any
 
 from verifier.arith import terms as t
+from verifier.arith.elaborate import ArithmeticError_, to_arith, uses_arithmetic
 from verifier.arith.genfun import Untranslatable, add, const, generating_function
 from verifier.arith.values import NotEvaluable, Values
+from verifier.claims.kind import ParsedClaim, Reading, Unread, certified
 from verifier.elaborate import ir
+from verifier.elaborate.elaborator import Problem
+from verifier.elaborate.rescale import rescale_factor
 from verifier.numbers import prime_factors
-from verifier.prove import certificate, groups
 from verifier.prove.evaluate import laurent_to
 from verifier.prove.outcome import Witness, differ_modulo
 from verifier.prove.prover import Outcome, Prover, _frac_str
 
+KINDS = ("arithmetic",)
 CHECK = 60  # n checked directly before any proof is attempted
 EXTENDED = 400  # n checked directly before a claim is left unproven
 
@@ -47,6 +56,95 @@ class ArithmeticClaim:
     modulus: int | None = None
 
 
+@dataclass
+class SequenceReading(Reading):
+    """A claim about arithmetic functions: its kind is ``value``, ``arithmetic`` or ``congruence``."""
+
+    claim: ArithmeticClaim
+
+
+def read(claim: ParsedClaim, /) -> SequenceReading | Unread | None:
+    """A claim about arithmetic functions with a free variable (and no modulus)."""
+    found = read_sequences(claim)
+    return found if found is not None and found.kind in KINDS else None
+
+
+def decide(reading: SequenceReading, prover: Prover, /) -> Outcome:
+    """Compared directly, then proved by the generating functions (see the module docstring)."""
+    return decide_arithmetic(prover, reading.claim, values_for(prover))
+
+
+def certify(outcome: Outcome, /) -> dict[str, Any] | None:
+    """The certificate of the identity of generating functions."""
+    return certified(outcome)
+
+
+def read_sequences(claim: ParsedClaim) -> SequenceReading | Unread | None:
+    """Any claim about arithmetic functions (or a congruence), read once; None when it is none."""
+    if "sequences" not in claim.memo:
+        claim.memo["sequences"] = _read_sequences(claim)
+    found: SequenceReading | Unread | None = claim.memo["sequences"]
+    return found
+
+
+def _read_sequences(claim: ParsedClaim) -> SequenceReading | Unread | None:
+    if claim.space is not None:
+        return None
+    left_node, right_node = claim.sides
+    rel, text, elaborator = claim.rel, claim.text, claim.elaborator
+    forms, matrices = elaborator.definitions, elaborator.matrices
+    if not (rel == "≡" or any(uses_arithmetic(n, forms, matrices) for n in (left_node, right_node))):
+        return None
+    kind = "congruence" if claim.modulus is not None else "arithmetic"
+    sides: list[Any] = []
+    for node in (left_node, right_node):
+        if not uses_arithmetic(node, forms, matrices) and rel == "≡":
+            # A form in a congruence stands for its sequence of coefficients.
+            side = elaborator.side(node, text.text)
+            if isinstance(side, Problem):
+                return Unread(kind, side.code, side.message, side.hint, at=side.span[0])
+            if side.printed:
+                return Unread(kind, "unsupported", "congruences with printed expansions are not supported")
+            sides.append(coefficients_of(side.expr))
+            continue
+        try:
+            sides.append(to_arith(node, text.text, forms, matrices, lambda f: f))
+        except ArithmeticError_ as exc:
+            return Unread(kind, "unsupported", str(exc), exc.hint, at=exc.span[0])
+    free = set().union(*(t.free_variables(s) for s in sides))
+    if len(free) > 1:
+        return Unread(
+            kind,
+            "syntax",
+            f"the claim has several free variables ({', '.join(sorted(free))})",
+            "a claim for all n has one free variable",
+        )
+    var = next(iter(free)) if free else None
+    if var is None and any(isinstance(s, t.Fun) and s.name == "coef" and isinstance(s.arg, t.Var) for s in sides):
+        var = "n"
+    start = claim.start_n if claim.start_n is not None else (0 if rel == "≡" and not free else 1)
+    found = ArithmeticClaim(sides[0], sides[1], rel, var, start, claim.modulus)
+    if claim.modulus is None and var is None:
+        kind = "value"
+    return SequenceReading(found, kind=kind)
+
+
+def coefficients_of(form: ir.Expr) -> t.Fun:
+    """The coefficient sequence n -> a_n(form) as an arithmetic function of n."""
+    return t.Fun(f"a({form.text})", "coef", None, t.Var("n", "n"), form)
+
+
+def values_for(prover: Prover) -> Values:
+    """Exact values of arithmetic functions, with the coefficients of forms from the prover's table."""
+
+    def series_of(form: ir.Expr, prec: int) -> Any:
+        if rescale_factor(ir.Side(form, False)) != 1:
+            raise NotEvaluable("the form has fractional exponents (q^{1/24}, ...); its a(n) is not defined")
+        return laurent_to(form, prec, prover.table, prover.max_terms * 2)
+
+    return Values(series_of)
+
+
 def _fmt(x: Fraction) -> str:
     return _frac_str(x)
 
@@ -54,18 +152,23 @@ def _fmt(x: Fraction) -> str:
 _differs = differ_modulo
 
 
-def decide_arithmetic(prover: Prover, claim: ArithmeticClaim, values: Values) -> Outcome:
-    """Decide an arithmetic claim (see the module docstring).
+ProveModulo = Callable[[Prover, "ArithmeticClaim", tuple[ir.Side, ir.Side], Values, str], Outcome]
+
+
+def decide_arithmetic(
+    prover: Prover, claim: ArithmeticClaim, values: Values, prove_modulo: ProveModulo | None = None
+) -> Outcome:
+    """Decide a claim for all n (see the module docstring); ``prove_modulo`` proves a congruence's sides.
 
     When no proof applies, the direct comparison goes on to n = start + EXTENDED before the
     claim is called unproven, so that a counterexample a little further out still refutes it.
     """
-    outcome = _decide(prover, claim, values)
+    outcome = _decide(prover, claim, values, prove_modulo)
     if outcome.verdict == "unproven" and claim.var is not None and claim.rel != "!=":
-        further = _first_direct_difference(claim, values, claim.start + CHECK + 1, claim.start + EXTENDED)
+        further = first_direct_difference(claim, values, claim.start + CHECK + 1, claim.start + EXTENDED)
         if isinstance(further, tuple):
             kind = "congruence" if claim.modulus is not None else "arithmetic"
-            return _refuted(kind, claim, *further)
+            return refuted(kind, claim, *further)
         if further is None:
             outcome.message = outcome.message.replace(
                 f"{claim.start} <= n <= {claim.start + CHECK}", f"{claim.start} <= n <= {claim.start + EXTENDED}"
@@ -73,11 +176,11 @@ def decide_arithmetic(prover: Prover, claim: ArithmeticClaim, values: Values) ->
     return outcome
 
 
-def _decide(prover: Prover, claim: ArithmeticClaim, values: Values) -> Outcome:
-    kind = "congruence" if claim.modulus is not None else ("arithmetic" if claim.var else "value")
+def _decide(prover: Prover, claim: ArithmeticClaim, values: Values, prove_modulo: ProveModulo | None) -> Outcome:
+    kind = "congruence" if claim.modulus is not None else "arithmetic"
     if claim.var is None:
-        return _at_a_value(claim, values, kind)
-    first = _first_direct_difference(claim, values, claim.start, claim.start + CHECK)
+        raise ValueError("a claim without a free variable is decided at its value (verifier.claims.value)")
+    first = first_direct_difference(claim, values, claim.start, claim.start + CHECK)
     if isinstance(first, Outcome):
         return first
     if first is not None:
@@ -88,13 +191,13 @@ def _decide(prover: Prover, claim: ArithmeticClaim, values: Values) -> Outcome:
                 kind,
                 f"the sides differ at n = {n}: left {_fmt(a)}, right {_fmt(b)}",
                 method="computation",
-                first_difference=_fd(n, a, b, claim.modulus),
+                first_difference=witness_dict(n, a, b, claim.modulus),
                 relation="!=",
             )
-        return _refuted(kind, claim, n, a, b)
+        return refuted(kind, claim, n, a, b)
     if claim.rel == "!=":
         # No n differs so far: the claim is refuted exactly when the equality can be proved.
-        equal = _decide(prover, dataclasses.replace(claim, rel="="), values)
+        equal = _decide(prover, dataclasses.replace(claim, rel="="), values, prove_modulo)
         if equal.verdict == "proved":
             return Outcome(
                 "refuted",
@@ -132,10 +235,12 @@ def _decide(prover: Prover, claim: ArithmeticClaim, values: Values) -> Outcome:
         left, right = _without_constant(prover, left), _without_constant(prover, right)
     sides = (ir.Side(left, False), ir.Side(right, False))
     if claim.modulus is not None:
-        return _congruence(prover, claim, sides, values, kind)
+        if prove_modulo is None:
+            raise ValueError("a congruence needs the congruence kind's proof step")
+        return prove_modulo(prover, claim, sides, values, kind)
     outcome = prover.decide(sides[0], sides[1], "=")
     if outcome.verdict == "proved":
-        check = _first_direct_difference(claim, values, lowest, max(lowest + CHECK, (outcome.bound or 0) + 2))
+        check = first_direct_difference(claim, values, lowest, max(lowest + CHECK, (outcome.bound or 0) + 2))
         if check is not None:
             return Outcome(
                 "error",
@@ -155,9 +260,9 @@ def _decide(prover: Prover, claim: ArithmeticClaim, values: Values) -> Outcome:
         fd = outcome.first_difference
         at = int(fd["n"]) if fd is not None and isinstance(fd["n"], int) else None
         if at is not None and at >= claim.start:
-            direct = _first_direct_difference(claim, values, claim.start, at + 1)
+            direct = first_direct_difference(claim, values, claim.start, at + 1)
             if isinstance(direct, tuple):
-                return _refuted(kind, claim, *direct)
+                return refuted(kind, claim, *direct)
             return Outcome(
                 "error",
                 kind,
@@ -180,11 +285,11 @@ def _without_constant(prover: Prover, g: ir.Expr) -> ir.Expr:
     return g if c0 == 0 else add(g, const(c0), -1)
 
 
-def _fd(n: int | None, a: Fraction, b: Fraction, modulus: int | None = None) -> dict[str, Any]:
+def witness_dict(n: int | None, a: Fraction, b: Fraction, modulus: int | None = None) -> dict[str, Any]:
     return Witness(n, a, b, modulus).to_dict()
 
 
-def _refuted(kind: str, claim: ArithmeticClaim, n: int, a: Fraction, b: Fraction) -> Outcome:
+def refuted(kind: str, claim: ArithmeticClaim, n: int, a: Fraction, b: Fraction) -> Outcome:
     if claim.modulus is not None:
         msg = (
             f"at n = {n}: left {_fmt(a)}, right {_fmt(b)}, which differ modulo {claim.modulus} "
@@ -197,7 +302,7 @@ def _refuted(kind: str, claim: ArithmeticClaim, n: int, a: Fraction, b: Fraction
         kind,
         msg,
         method="computation",
-        first_difference=_fd(n, a, b, claim.modulus),
+        first_difference=witness_dict(n, a, b, claim.modulus),
         terms_compared=n + 1,
         relation=claim.rel,
     )
@@ -209,7 +314,7 @@ def _residue(x: Fraction, m: int) -> str:
     return str(x.numerator * pow(x.denominator, -1, m) % m)
 
 
-def _first_direct_difference(
+def first_direct_difference(
     claim: ArithmeticClaim, values: Values, lo: int, hi: int
 ) -> tuple[int, Fraction, Fraction] | Outcome | None:
     assert claim.var is not None
@@ -222,98 +327,3 @@ def _first_direct_difference(
         if _differs(a, b, claim.modulus):
             return n, a, b
     return None
-
-
-def _at_a_value(claim: ArithmeticClaim, values: Values, kind: str) -> Outcome:
-    try:
-        a = values.value(claim.left, {})
-        b = values.value(claim.right, {})
-    except NotEvaluable as exc:
-        return Outcome("error", kind, f"cannot compute: {exc}", code=exc.code)
-    equal = not _differs(a, b, claim.modulus)
-    holds = equal if claim.rel != "!=" else not equal
-    what = f"left {_fmt(a)}, right {_fmt(b)}" + (f" (mod {claim.modulus})" if claim.modulus else "")
-    return Outcome(
-        "proved" if holds else "refuted",
-        kind,
-        f"computed exactly: {what}",
-        method="computation",
-        first_difference=None if equal else _fd(None, a, b, claim.modulus),
-        relation=claim.rel,
-    )
-
-
-def _congruence(
-    prover: Prover, claim: ArithmeticClaim, sides: tuple[ir.Side, ir.Side], values: Values, kind: str
-) -> Outcome:
-    try:
-        from verifier.prove.congruence import Piece, decide_congruence, needed_precision, scaled_precision
-    except ImportError:
-        return Outcome(
-            "unproven",
-            kind,
-            f"the sides agree modulo {claim.modulus} for {claim.start} <= n <= "
-            f"{claim.start + CHECK}; congruence proofs are not available",
-            method="computation",
-        )
-    from verifier.prove.evaluate import graded_add, graded_fraction
-    from verifier.prove.prover import claim_level
-
-    assert claim.modulus is not None
-    level = claim_level(*sides)
-    left, right = sides
-
-    def chars(atom: ir.Atom) -> int:
-        from verifier.forms import registry
-
-        return int(registry.character(atom.key, int(atom.scale), atom.params, level).kernel)
-
-    keys_probe_l, den_l = graded_fraction(left.expr, 1, prover.table, chars)
-    keys_probe_r, den_r = graded_fraction(right.expr, 1, prover.table, chars)
-    if len(den_l) != 1 or len(den_r) != 1:
-        return Outcome("unproven", kind, "congruences between quotients are not proved", method="computation")
-    weights = [(w, j) for (w, j, _) in {**keys_probe_l, **keys_probe_r}]
-    prec = max(needed_precision(weights, claim.modulus, level), 2)
-    for _attempt in range(2):
-        nl, _ = graded_fraction(left.expr, prec, prover.table, chars)
-        nr, _ = graded_fraction(right.expr, prec, prover.table, chars)
-        diff = graded_add(nl, nr, -1)
-        pieces = [Piece(w, j, k, s) for (w, j, k), s in diff.items()]
-        decision = decide_congruence(pieces, claim.modulus, level)
-        # A proof scaled by a denominator (docs/method.md#congruence-denominators) may need more terms.
-        wanted = scaled_precision(decision)
-        if decision.proved or wanted is None or wanted <= prec or wanted > prover.max_terms:
-            break
-        prec = wanted
-    if decision.proved:
-        check = _first_direct_difference(claim, values, max(claim.start, 1), claim.start + CHECK)
-        if check is not None:
-            return Outcome(
-                "error", kind, "internal inconsistency in a congruence proof; please report this claim", code="internal"
-            )
-        return Outcome(
-            "proved",
-            kind,
-            f"for all n >= {max(claim.start, 1)}, modulo {claim.modulus}: {decision.reason}",
-            method="sturm-congruence",
-            bound=decision.bound,
-            components=decision.details,
-            certificate=certificate.congruence(
-                left,
-                right,
-                claim.modulus,
-                level,
-                groups.index_gamma0(level),
-                decision.bound,
-                [(pc.weight, pc.e2_power, pc.kernel) for pc in pieces],
-                decision.details,
-            ),
-        )
-    return Outcome(
-        "unproven",
-        kind,
-        f"the sides agree modulo {claim.modulus} for {claim.start} <= n <= "
-        f"{claim.start + CHECK}, but no proof applies: {decision.reason}",
-        method="computation",
-        components=decision.details,
-    )

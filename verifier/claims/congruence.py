@@ -1,0 +1,129 @@
+"""Congruences: ``a(n) \\equiv b(n) \\pmod M`` for all n, and ``f \\equiv g \\pmod M`` between forms.
+
+Read with the other claims about arithmetic functions (:mod:`verifier.claims.coefficients`;
+a form in a congruence stands for its sequence of coefficients).  Decided
+(docs/method.md#claim-congruence): refuted by a direct difference modulo M (with both
+values); proved by Sturm's theorem for congruences (:mod:`verifier.prove.congruence`,
+docs/method.md#congruences-sturm) applied to the generating functions, and cross-checked
+against the direct values.  A congruence at one value is computed (:mod:`verifier.claims.value`).
+Congruences of progressions ``a(mn+t)`` are the progression kind's.
+"""
+
+from __future__ import annotations
+
+from typing import Any
+
+from verifier.arith.values import Values
+from verifier.claims.coefficients import (
+    CHECK,
+    ArithmeticClaim,
+    SequenceReading,
+    decide_arithmetic,
+    first_direct_difference,
+    read_sequences,
+    values_for,
+)
+from verifier.claims.kind import ParsedClaim, Unread, certified
+from verifier.claims.value import at_a_value
+from verifier.elaborate import ir
+from verifier.prove import certificate, groups
+from verifier.prove.outcome import Outcome
+from verifier.prove.prover import Prover
+
+KINDS = ("congruence",)
+
+
+def read(claim: ParsedClaim, /) -> SequenceReading | Unread | None:
+    """A congruence (a claim with a modulus) about arithmetic functions or coefficients of forms."""
+    found = read_sequences(claim)
+    return found if found is not None and found.kind in KINDS else None
+
+
+def decide(reading: SequenceReading, prover: Prover, /) -> Outcome:
+    """Computed at a value; for all n compared directly, then proved modulo M."""
+    values = values_for(prover)
+    if reading.claim.var is None:
+        return at_a_value(reading.claim, values, reading.kind)
+    return decide_arithmetic(prover, reading.claim, values, prove_modulo)
+
+
+def certify(outcome: Outcome, /) -> dict[str, Any] | None:
+    """The pieces of the difference, the modulus and the bound of Sturm's theorem for congruences."""
+    return certified(outcome)
+
+
+def prove_modulo(
+    prover: Prover, claim: ArithmeticClaim, sides: tuple[ir.Side, ir.Side], values: Values, kind: str
+) -> Outcome:
+    """The generating functions of the two sides congruent modulo M, by Sturm's theorem for congruences."""
+    try:
+        from verifier.prove.congruence import Piece, decide_congruence, needed_precision, scaled_precision
+    except ImportError:
+        return Outcome(
+            "unproven",
+            kind,
+            f"the sides agree modulo {claim.modulus} for {claim.start} <= n <= "
+            f"{claim.start + CHECK}; congruence proofs are not available",
+            method="computation",
+        )
+    from verifier.prove.evaluate import graded_add, graded_fraction
+    from verifier.prove.prover import claim_level
+
+    assert claim.modulus is not None
+    level = claim_level(*sides)
+    left, right = sides
+
+    def chars(atom: ir.Atom) -> int:
+        from verifier.forms import registry
+
+        return int(registry.character(atom.key, int(atom.scale), atom.params, level).kernel)
+
+    keys_probe_l, den_l = graded_fraction(left.expr, 1, prover.table, chars)
+    keys_probe_r, den_r = graded_fraction(right.expr, 1, prover.table, chars)
+    if len(den_l) != 1 or len(den_r) != 1:
+        return Outcome("unproven", kind, "congruences between quotients are not proved", method="computation")
+    weights = [(w, j) for (w, j, _) in {**keys_probe_l, **keys_probe_r}]
+    prec = max(needed_precision(weights, claim.modulus, level), 2)
+    for _attempt in range(2):
+        nl, _ = graded_fraction(left.expr, prec, prover.table, chars)
+        nr, _ = graded_fraction(right.expr, prec, prover.table, chars)
+        diff = graded_add(nl, nr, -1)
+        pieces = [Piece(w, j, k, s) for (w, j, k), s in diff.items()]
+        decision = decide_congruence(pieces, claim.modulus, level)
+        # A proof scaled by a denominator (docs/method.md#congruence-denominators) may need more terms.
+        wanted = scaled_precision(decision)
+        if decision.proved or wanted is None or wanted <= prec or wanted > prover.max_terms:
+            break
+        prec = wanted
+    if decision.proved:
+        check = first_direct_difference(claim, values, max(claim.start, 1), claim.start + CHECK)
+        if check is not None:
+            return Outcome(
+                "error", kind, "internal inconsistency in a congruence proof; please report this claim", code="internal"
+            )
+        return Outcome(
+            "proved",
+            kind,
+            f"for all n >= {max(claim.start, 1)}, modulo {claim.modulus}: {decision.reason}",
+            method="sturm-congruence",
+            bound=decision.bound,
+            components=decision.details,
+            certificate=certificate.congruence(
+                left,
+                right,
+                claim.modulus,
+                level,
+                groups.index_gamma0(level),
+                decision.bound,
+                [(pc.weight, pc.e2_power, pc.kernel) for pc in pieces],
+                decision.details,
+            ),
+        )
+    return Outcome(
+        "unproven",
+        kind,
+        f"the sides agree modulo {claim.modulus} for {claim.start} <= n <= "
+        f"{claim.start + CHECK}, but no proof applies: {decision.reason}",
+        method="computation",
+        components=decision.details,
+    )
