@@ -129,6 +129,8 @@ def test_editor_saves_are_rechecked(start: Callable[..., tuple[Watcher, Runs]], 
     assert second.stats.misses == 1 and second.stats.hits == 1  # only the edited claim is decided
     assert second.lines[0].endswith("(was proved)") and "refuted [b]" in second.lines[0]
     assert second.lines[-1].split("] ", 1)[1].startswith("qreferee: 2 claims: 1 proved, 1 refuted")
+    # The status line counts claims, not blocks (an inline definition is a block with no claim).
+    assert second.lines[-1].endswith("1 changed (1 decided, 1 reused)")
 
     write_and_rename(paper, MAIN.replace("E_8", "E_{10}"))
     third = runs.next()

@@ -75,6 +75,8 @@ class CacheStats:
     stored: int = 0  # blocks whose verdicts were written to the cache
     uncacheable: int = 0  # blocks decided that cannot be cached (no rows, clock-dependent outcome)
     recomputed: list[str] = field(default_factory=list)  # "file:line" of each block decided
+    claims_decided: int = 0  # claims of the blocks decided in this run
+    claims_reused: int = 0  # claims whose verdicts came from the cache
 
 
 def default_cache_dir(main: str | Path) -> Path:
@@ -475,10 +477,12 @@ class CachedChecker:
         for block, region, key, cached in plan:
             if cached is not None:
                 stats.hits += 1
+                stats.claims_reused += len(cached)
                 report.claims.extend(cached)
                 continue
             results = next(segments)
             stats.misses += 1
+            stats.claims_decided += len(results)
             stats.recomputed.append(f"{block.tag.file}:{block.tag.line}")
             report.claims.extend(results)
             entries = [_encode(r, region) for r in results] if region is not None else [None]

@@ -121,7 +121,7 @@ def _summary_line(report: Report, changed: int, stats: CacheStats) -> str:
     return (
         f"[{time.strftime('%H:%M:%S')}] qreferee: {total} claim{'s' if total != 1 else ''}: {s['proved']} proved, "
         f"{s['refuted']} refuted, {s['unproven']} unproven, {s['error']} error{'s' if s['error'] != 1 else ''}; "
-        f"{changed} changed ({stats.misses} block{'s' if stats.misses != 1 else ''} checked, {stats.hits} reused)"
+        f"{changed} changed ({stats.claims_decided} decided, {stats.claims_reused} reused)"
     )
 
 
