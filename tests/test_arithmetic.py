@@ -967,3 +967,39 @@ def test_generating_sums_in_q_to_a_multiple_of_n() -> None:
     assert [c.verdict for c in report.claims] == ["proved", "refuted", "refuted"]
     witness = report.claims[2].outcome.first_difference
     assert witness is not None and (witness["n"], witness["left"], witness["right"]) == (2, "1", "0")
+
+
+def test_generating_functions_of_partition_functions_are_products() -> None:
+    # Euler: sum p(n) q^n = prod (1 - q^n)^{-1} = q^{1/24}/eta (Andrews, The Theory of Partitions,
+    # Thm 1.1); the overpartitions: sum pbar(n) q^n = (-q;q)_inf/(q;q)_inf = eta(2tau)/eta(tau)^2
+    # (Corteel and Lovejoy, Trans. AMS 356 (2004), from memory). p(1), p(2), p(3) = 1, 2, 3 here.
+    assert [int(sympy.partition(n)) for n in range(4)] == [1, 1, 2, 3]
+    claims = [
+        "\\sum_{n\\ge0} p(n) q^n = \\prod_{n\\ge1}(1-q^n)^{-1}",
+        "\\sum_{n\\ge0} p(n) x^n = \\prod_{n\\ge1}\\frac{1}{1-x^n}",
+        "\\sum_{n\\ge0} p(n) q^{2n} = \\prod_{n\\ge1}\\frac{1}{1-q^{2n}}",
+        "\\sum_{n\\ge0} \\overline{p}(n) q^n = \\frac{\\eta(2\\tau)}{\\eta(\\tau)^2}",
+        # False: q^{1/12}/eta = q^{1/24} prod(1-q^n)^{-1} has no q^0 term, while p(0) = 1.
+        "\\sum_{n\\ge0} p(n) q^n = \\frac{q^{1/12}}{\\eta(\\tau)}",
+        # False: the product times (1 + q) has 1 + 1 = 2 at q^1, while p(1) = 1.
+        "\\sum_{n\\ge0} p(n) q^n = (1+q)\\prod_{n\\ge1}(1-q^n)^{-1}",
+        # True, but a claim about coefficients with p(n) is only compared directly (q^{1/24} in its
+        # generating function): n p(n) = sum sigma(k) p(n-k) (Andrews, Ch. 1, Ex. from memory).
+        "n\\,p(n) = \\sum_{k=1}^{n}\\sigma_1(k)p(n-k)",
+    ]
+    assert all(
+        n * int(sympy.partition(n))
+        == sum(int(sympy.divisor_sigma(k, 1)) * int(sympy.partition(n - k)) for k in range(1, n + 1))
+        for n in range(1, 40)
+    )
+    report = check_text("".join(f"%@claim\n\\[ {c} \\]\n" for c in claims))
+    got = [(c.verdict, c.outcome.first_difference and c.outcome.first_difference["n"]) for c in report.claims]
+    assert got == [
+        ("proved", None),
+        ("proved", None),
+        ("proved", None),
+        ("proved", None),
+        ("refuted", 0),
+        ("refuted", 1),
+        ("unproven", None),
+    ]

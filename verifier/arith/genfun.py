@@ -189,6 +189,30 @@ def generating_function(e: t.A, var: str, values: Values) -> ir.Expr:
     return add_all(pieces)
 
 
+# Partition functions whose generating function is a product prod f_delta^{r_delta}, f_k = (q^k;q^k)_inf:
+# p(n) (1/f_1, Euler) and the overpartitions (f_2/f_1^2, Corteel and Lovejoy, Trans. AMS 356 (2004)).
+_PRODUCTS: dict[str, dict[int, int]] = {"p": {1: -1}, "pbar": {1: -2, 2: 1}}
+
+
+def _product_generating_function(exps: dict[int, int], d: int) -> ir.Expr:
+    """sum_n a(n/d) q^n = prod f_{d delta}^{r_delta} = q^{-sum d delta r / 24} prod eta(d delta tau)^r."""
+    params = eta_params({Fraction(d * delta): r for delta, r in exps.items()})
+    weight = Fraction(sum(exps.values()), 2)
+    base = ir.Atom(ir.Typ(weight), "eta", "eta", Fraction(1), params)
+    shift = -Fraction(sum(d * delta * r for delta, r in exps.items()), 24)
+    return base if shift == 0 else ir.Shift(base.typ, "q-power", base, shift)
+
+
+def fractional_shift(expr: ir.Expr) -> bool:
+    """Whether ``expr`` contains q^c with c not an integer (it must be rescaled before evaluation)."""
+    if isinstance(expr, ir.Shift) and expr.exponent.denominator != 1:
+        return True
+    return any(
+        isinstance(child, ir.Expr) and fractional_shift(child)
+        for child in (getattr(expr, "left", None), getattr(expr, "right", None), getattr(expr, "base", None))
+    )
+
+
 def _scale_of(arg: t.A, var: str, values: Values) -> int:
     """d for an argument var / d (or var)."""
     if isinstance(arg, t.Var) and arg.name == var:
@@ -209,6 +233,8 @@ def _basic(e: t.A, var: str, values: Values) -> ir.Expr:
             return sigma_generating_function(e.index, d)
         if e.name == "tau":
             return atom("Delta", Fraction(12), d)
+        if e.name in _PRODUCTS:
+            return _product_generating_function(_PRODUCTS[e.name], d)
         if e.name == "r":
             assert e.index is not None
             theta = ir.Atom(

@@ -28,7 +28,7 @@ from typing import Any
 
 from verifier.arith import terms as t
 from verifier.arith.elaborate import ArithmeticError_, to_arith, uses_arithmetic
-from verifier.arith.genfun import Untranslatable, add, const, generating_function
+from verifier.arith.genfun import Untranslatable, add, const, fractional_shift, generating_function
 from verifier.arith.values import NotEvaluable, Values
 from verifier.claims.kind import ParsedClaim, Reading, Unread, certified
 from verifier.elaborate import ir
@@ -221,6 +221,9 @@ def _decide(prover: Prover, claim: ArithmeticClaim, values: Values, prove_modulo
     try:
         left = generating_function(claim.left, claim.var, values)
         right = generating_function(claim.right, claim.var, values)
+        if fractional_shift(left) or fractional_shift(right):
+            # p(n) gives q^{1/24}/eta: a claim about coefficients is compared directly only.
+            raise Untranslatable("a generating function with a fractional power of q (such as that of p(n))")
     except Untranslatable as exc:
         return Outcome(
             "unproven",

@@ -196,6 +196,10 @@ def read(
             rhs = reader.read(b)
         except NotProduct:
             return None
+        if any(mono.shift.denominator != 1 for mono in rhs):
+            # A fractional power of q is no part of a power series in q: the claim is compared
+            # (and refuted) as an identity of forms, with a witness at that exponent.
+            return None
         return Reading((Claim(what, dict(gen.exps), m, t, rhs, None),))
     found_dissection = _dissection(reader, left, right)
     if found_dissection is None or not dissection_ok():

@@ -1061,6 +1061,9 @@ def degree(expr: ir.Expr) -> Fraction:
     if isinstance(expr, ir.Power):
         assert expr.base is not None
         return degree(expr.base) * max(expr.exponent, 0)
+    if isinstance(expr, ir.Shift):
+        assert expr.base is not None
+        return degree(expr.base) + max(expr.exponent, Fraction(0))
     return Fraction(0)
 
 

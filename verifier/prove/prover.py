@@ -144,7 +144,7 @@ class Prover:
                 return 0
             left, right = strip_side(left), strip_side(right)
         if left.printed or right.printed:
-            need = _prefix_range(left, right)[1] + 2
+            need = _prefix_range(left, right, self.unit)[1] + 2
             weight = _heaviest(left, right)
         else:
             try:
@@ -497,7 +497,7 @@ class Prover:
         )
 
     def _prefix(self, left: ir.Side, right: ir.Side, rel: str) -> Outcome:
-        start_hint, stop, exact_range = _prefix_range(left, right)
+        start_hint, stop, exact_range = _prefix_range(left, right, self.unit)
         weight = claim_weight(left, right)
         space = self._prefix_space(left, right) if weight is not None else None
         heaviest = _heaviest(left, right)
@@ -583,8 +583,12 @@ def _proof_weight(left: ir.Side, right: ir.Side) -> Fraction:
     return max(ws, default=Fraction(0)) + left.expr.typ.den_weight + right.expr.typ.den_weight
 
 
-def _prefix_range(left: ir.Side, right: ir.Side) -> tuple[int, int, bool]:
-    """(lowest exponent to compare, stop, whether the range is what the claim states)."""
+def _prefix_range(left: ir.Side, right: ir.Side, unit: Fraction = Fraction(1)) -> tuple[int, int, bool]:
+    """(lowest exponent to compare, stop, whether the range is what the claim states).
+
+    ``unit`` is the claim's rescaling (exponents are those of q^{1/unit}): with no truncation,
+    at least the first ten powers of the author's q are compared.
+    """
     truncs = [s.truncation for s in (left, right) if s.truncation is not None]
     if truncs:
         return 0, min(truncs), True
@@ -596,7 +600,7 @@ def _prefix_range(left: ir.Side, right: ir.Side) -> tuple[int, int, bool]:
     except registry.NotModular:
         level = 1
     b = groups.sturm_bound(w + left.expr.typ.den_weight + right.expr.typ.den_weight, level)
-    return 0, max(deg + 2, b + 2, 10), False
+    return 0, max(deg + 2, b + 2, math.ceil(10 * unit)), False
 
 
 def _first_nonzero(series: QSeries, stop: int) -> int | None:
