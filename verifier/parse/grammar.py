@@ -109,7 +109,10 @@ def _reduction(
         if impl.failed is not None:
             return out
         if plain is not None:
-            items = [c.value if type(c) is _Reduced else c for c in (children[i] for i in plain)]
+            items = [children[i] for i in plain]
+            for k, c in enumerate(items):
+                if type(c) is _Reduced:
+                    items[k] = c.value
         else:
             items = []
             for i, expand in include:
@@ -203,7 +206,21 @@ def _modulus_value(text: str) -> int:
     return value
 
 
+MEMO_TEXT_LIMIT = 2000  # longer texts (machine-made claims) are parsed each time, not kept
+
+
 def _parse(text: str, start: str, exponentials: frozenset[str] = frozenset()) -> ast.Node | ParseFailure:
+    """The AST of ``text`` from rule ``start``; the same text is parsed once per process.
+
+    Rows repeat within a manuscript and across the checks of an editor session; the result
+    depends only on the arguments, and ASTs and failures are immutable, so they are shared.
+    """
+    if len(text) > MEMO_TEXT_LIMIT:
+        return _parse_text(text, start, exponentials)
+    return _parse_memo(text, start, exponentials)
+
+
+def _parse_text(text: str, start: str, exponentials: frozenset[str]) -> ast.Node | ParseFailure:
     from lark.exceptions import UnexpectedCharacters, UnexpectedEOF, UnexpectedToken
 
     if not text.strip():
@@ -236,6 +253,9 @@ def _parse(text: str, start: str, exponentials: frozenset[str] = frozenset()) ->
         return balance(node)
     except TooLarge as exc:
         return ParseFailure("too-large", str(exc), "split the claim into smaller ones", 0)
+
+
+_parse_memo = functools.lru_cache(maxsize=4096)(_parse_text)
 
 
 def _number_failure(bad: _BadNumber) -> ParseFailure:
