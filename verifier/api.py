@@ -17,7 +17,6 @@ from verifier.budget import DEFAULT_MAX_SECONDS, TimeExceeded, internal_error, t
 from verifier.claims import kinds
 from verifier.claims import products as progression_products
 from verifier.claims.kind import ClaimKind, ParsedClaim, Reading, Unread
-from verifier.claims.reading import prepare_row
 from verifier.config import DEFAULT_FAIL_ON
 from verifier.diagnostics import Diagnostic
 from verifier.elaborate.elaborator import Elaborator, is_builtin, normal_name
@@ -378,7 +377,7 @@ def _author_define(item: DefineTag, text: MappedText, elaborator: Elaborator) ->
         if not isinstance(parsed_one, ParseFailure):
             elaborator.mentions.setdefault(normal_name(parsed_one.name), where)
         return
-    parsed = parse_definitions(text.text)
+    parsed = parse_definitions(text.text, frozenset(elaborator.exponentials))
     if isinstance(parsed, ParseFailure):
         for name in defined_names(text.text):
             elaborator.unread_definition(
@@ -387,6 +386,9 @@ def _author_define(item: DefineTag, text: MappedText, elaborator: Elaborator) ->
         return
     for d in parsed:
         name = normal_name(d.name)
+        if d.exponential:  # e(x) := e^{2 pi i x}: e(n tau) is q^n from here on (parse/grammar.py)
+            elaborator.exponentials.add(name)
+            continue
         if name in NEVER_DEFINED or (is_builtin(name) and not _names_a_form(d.body, text.text)):
             continue  # the nome, or an index that shares a form's letter (j = 1)
         if d.arg not in (None, "tau", "z", "q"):
@@ -490,7 +492,7 @@ def _block(
     previous_side: MappedText | None = None
     chains: list[list[ClaimResult]] = []  # the claims of each chain A = B = C (rows continued by "&= D" too)
     for row in block.rows:
-        text, residues = prepare_row(row.text)
+        text = row.text
         row_modulus, row_start = None, parse_range(block.options.get("for", ""))
         stripped = text.text.lstrip()
         continuation = stripped.startswith(("=", "\\ne", "\\not="))
@@ -522,7 +524,7 @@ def _block(
             )
             previous_side = None
             continue
-        parsed_row = parse_row(text.text)
+        parsed_row = parse_row(text.text, frozenset(elaborator.exponentials))
         if isinstance(parsed_row, ParseFailure):
             report.claims.append(
                 _error(
@@ -573,7 +575,7 @@ def _block(
                     elaborator,
                     modulus,
                     start_n,
-                    residues,
+                    statement.residues,
                 )
                 result = pending_claim if isinstance(pending_claim, ClaimResult) else pending_claim.result
                 if statement.iff:

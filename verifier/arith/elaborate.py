@@ -213,6 +213,21 @@ def _desugar_range(node: ast.BigSum, forms: dict[str, Any], matrices: dict[str, 
         plain = ast.BigSum(sp, "divides", node.var, node.lower, None, body)
         signed = ast.BigSum(sp, "divides", node.var, node.lower, None, ast.BinOp(sp, "*", sign, body))
         return ast.BinOp(sp, "/", ast.BinOp(sp, op, plain, signed), ast.Number(sp, 2))
+    if node.kind == "divides_step":
+        # sum_{d | n, M | d} g(d) = sum_{e | n/M} g(M e) (empty unless M | n); M not dividing d: the rest.
+        assert node.lower is not None
+        var = ast.Name(sp, node.var)
+        multiples = ast.BigSum(
+            sp,
+            "divides",
+            node.var,
+            ast.BinOp(sp, "/", node.lower, ast.Number(sp, node.step)),
+            None,
+            substitute(body, {node.var: ast.BinOp(sp, "*", ast.Number(sp, node.step), var)}),
+        )
+        if node.parity != "not":
+            return multiples
+        return ast.BinOp(sp, "-", ast.BigSum(sp, "divides", node.var, node.lower, None, body), multiples)
     if node.kind == "split":
         assert node.lower is not None and node.upper is not None
         low = constant_lower(node.lower)

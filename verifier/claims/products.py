@@ -14,7 +14,6 @@ functions are eta-type products:
 
 from __future__ import annotations
 
-import re
 from collections.abc import Mapping
 from dataclasses import dataclass
 from fractions import Fraction
@@ -24,15 +23,14 @@ from verifier.elaborate import ir
 from verifier.elaborate.elaborator import ElaborationError
 from verifier.parse import ast
 
-_F = re.compile(r"^f_(?:\{\s*(\d+)\s*\}|(\d))$")
-_ETA_SUB = re.compile(r"^\\eta_(?:\{\s*(\d+)\s*\}|(\d))$")
-_B = re.compile(r"^b_(?:\{\s*(\d+)\s*\}|(\d))$")
-_COEF = re.compile(r"^a_(?:\{\s*(\\?\w+)\s*\}|(\w))$")
-_ARG = re.compile(r"^(\d*)tau$")
 MAX_TERMS = 64  # expanded products of sums beyond this are not read
-# Spellings of the overpartition function, rewritten to one control word before parsing.
-OVERLINE_P = re.compile(r"\\(?:overline|bar)\s*\{\s*p\s*\}|\\bar\s+p(?![A-Za-z])")
-PBAR = "\\pbar"
+PBAR = ast.PBAR  # the overpartition function, however the author spells it (the grammar's name)
+
+
+def _word(sub: str) -> bool:
+    """A subscript that can name a defined product: letters, digits, ``_``, or a control word."""
+    body = sub[1:] if sub.startswith("\\") else sub
+    return bool(body) and all(c.isalnum() or c == "_" for c in body)
 
 
 class NotProduct(Exception):
@@ -188,10 +186,11 @@ class Reader:
         text = text.replace(" ", "")
         scale = 1
         if arg is not None and arg != "q":
-            m = _ARG.match(arg)
-            if m is None:
+            # The parser normalises the argument: "tau", "2tau" (a multiple), "tau/2", "z".
+            factor = arg.removesuffix("tau")
+            if factor == arg or not (factor == "" or (factor.isdigit() and factor.isascii())):
                 raise NotProduct(f"cannot read the argument ({arg})", span)
-            scale = int(m.group(1) or 1)
+            scale = int(factor or 1)
         if text == "q":
             if scale != 1:
                 raise NotProduct("q takes no argument", span)
@@ -208,19 +207,18 @@ class Reader:
                     return from_ir(self.forms[key])
                 except ElaborationError as exc:
                     raise NotProduct(f"{text}: {exc.problem.message}", span) from exc
-        m = _F.match(text)
-        if m:
+        k = ast.integer_subscript(text, "f")
+        if k is not None:
             if arg not in (None, "q"):
                 raise NotProduct("f_k takes no argument", span)
-            k = int(m.group(1) or m.group(2))
             if k < 1:
                 raise NotProduct("f_k needs k >= 1", span)
             return (Mono.make(Fraction(1), Fraction(0), {k: 1}),)
         if text == "\\eta":
             return (eta_mono(Fraction(scale), 1),)
-        m = _ETA_SUB.match(text)
-        if m and arg is None:
-            return (eta_mono(Fraction(int(m.group(1) or m.group(2))), 1),)
+        k = ast.integer_subscript(text, "\\eta")
+        if k is not None and arg is None:
+            return (eta_mono(Fraction(k), 1),)
         raise NotProduct(f"{text} is not a product this claim can read", span)
 
     def read(self, node: ast.Node) -> ProductSum:
@@ -264,15 +262,14 @@ def partition_function(name: str, products: Mapping[str, ProductSum], forms: Map
         return Mono.make(Fraction(1), Fraction(0), {1: -1})
     if name == PBAR:
         return Mono.make(Fraction(1), Fraction(0), {1: -2, 2: 1})
-    m = _B.match(name)
-    if m:
-        ell = int(m.group(1) or m.group(2))
+    ell = ast.integer_subscript(name, "b")
+    if ell is not None:
         if ell < 1:
             return None
         return Mono.make(Fraction(1), Fraction(0), {1: -1, ell: 1})
-    m = _COEF.match(name)
-    if m:
-        sub = (m.group(1) or m.group(2)).lstrip("\\")
+    parts = ast.subscript(name)
+    if parts is not None and parts[0] == "a" and _word(parts[1]):
+        sub = parts[1].lstrip("\\")
         try:
             value = Reader(products, forms).name(sub, None, (0, 0))
         except NotProduct:

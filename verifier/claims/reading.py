@@ -5,7 +5,7 @@ Three shapes, each turned into :class:`verifier.claims.progression.Claim` object
 * ``\\sum_{n \\ge 0} a(mn+t) q^n = G`` (either side), a(n) a partition-type function;
 * ``a(mn+t) \\equiv 0 \\pmod M`` (with an optional range ``n \\ge s``), also for ``t`` in a listed
   set written after the claim, ``(t \\in \\{3, 5, 6\\})`` or ``\\text{for } t \\in \\{3, 5, 6\\}``
-  (:func:`residue_set` takes the qualifier out of the text before parsing);
+  (read by the grammar as a qualifier of the row, ``ast.Statement.residues``);
 * a dissection ``F = sum_i gamma_i q^{e_i} prod f_{delta}^{s}`` in which every delta of the
   right side is divisible by a prime p that does not divide every delta of F: one claim
   per residue class modulo p (classes without terms claim 0).
@@ -16,17 +16,15 @@ Anything else returns None, and the claim goes on to the other decision procedur
 from __future__ import annotations
 
 import math
-import re
 from collections.abc import Callable, Mapping
 from dataclasses import dataclass
 from fractions import Fraction
 from typing import Any
 
-from verifier.claims.products import OVERLINE_P, PBAR, Mono, NotProduct, ProductSum, Reader, partition_function
+from verifier.claims.products import Mono, NotProduct, ProductSum, Reader, partition_function
 from verifier.claims.progression import Claim
 from verifier.numbers import prime_factors
 from verifier.parse import ast
-from verifier.scan.text import MappedText
 
 
 @dataclass(frozen=True)
@@ -42,28 +40,6 @@ class Reading:
     left: Mono | None = None  # F, for a dissection
     right: ProductSum = ()  # the claimed sum, for a dissection
     residues: tuple[str, tuple[int, ...]] | None = None  # (t, listed values) of a residue set
-
-
-# A residue set after a claim: "(t \in \{3,5,6\})", "\text{for } t \in \{3, 5, 6\}", "for t \in \{...\}",
-# optionally after \quad, \qquad or a comma.
-RESIDUE_SET = re.compile(
-    r"(?:,|\\q?quad)?\s*(?P<open>\()?\s*(?:\\text\s*\{\s*for\s*\}|\\text\s*\{\s*for\s+all\s*\}|for)?\s*"
-    r"(?P<var>[a-z])\s*\\in\s*\\\{(?P<values>\s*\d+\s*(?:,\s*\d+\s*)*)\\\}\s*(?(open)\))\s*$"
-)
-
-
-def residue_set(text: str) -> tuple[str, tuple[str, tuple[int, ...]] | None]:
-    """The row text without a trailing residue set, and the set as (variable, values).
-
-    The qualifier is replaced by spaces, so every offset of the rest stays valid.  Values
-    are kept in the author's order, without repeats.
-    """
-    found = RESIDUE_SET.search(text)
-    if found is None:
-        return text, None
-    values = tuple(dict.fromkeys(int(v) for v in found.group("values").split(",")))
-    blank = text[: found.start()] + " " * (found.end() - found.start())
-    return blank, (found.group("var"), values)
 
 
 def _linear(node: ast.Node, var: str, fixed: Mapping[str, int] | None = None) -> tuple[int, int] | None:
@@ -274,15 +250,3 @@ def _dissection(reader: Reader, left: ast.Node, right: ast.Node) -> Reading | No
 def shift_text(x: Fraction) -> str:
     """A q-shift as text."""
     return str(x.numerator) if x.denominator == 1 else f"{x.numerator}/{x.denominator}"
-
-
-def prepare_row(text: MappedText) -> tuple[MappedText, tuple[str, tuple[int, ...]] | None]:
-    """A row made ready for the grammar: ``\\overline{p}`` as one control word, a trailing
-    residue set ``(t \\in \\{3, 5, 6\\})`` taken out.  Both are blanked in place, so every
-    offset (and so every file:line:column) of the rest stays valid.
-    """
-    out = OVERLINE_P.sub(lambda m: PBAR + " " * (len(m.group(0)) - len(PBAR)), text.text)
-    if out != text.text:
-        text = MappedText(out, text.origins, text.source)
-    out, residues = residue_set(text.text)
-    return (text if residues is None else MappedText(out, text.origins, text.source)), residues

@@ -82,6 +82,9 @@ class Elaborator:
         self.unread: dict[str, str] = {}
         self.authored: dict[str, str] = {}
         self.mentions: dict[str, str] = {}
+        # Names the author defines as e(x) = e^{2 pi i x}: the parser reads e(n tau) as q^n
+        # (docs/method.md#exponential-notation).
+        self.exponentials: set[str] = set()
 
     # -- public -------------------------------------------------------------------
     def side(self, node: ast.Node, text: str) -> ir.Side | Problem:
@@ -581,6 +584,8 @@ class Elaborator:
 
     def _name(self, node: ast.Name, src: str) -> ir.Expr:
         name = normal_name(node.text)
+        if node.arg == "tau+1/2":
+            return _half_shift(self, node, name, src)
         scale = _scale_of(node)
         if name in self.unknowns and node.arg is None:
             value = self.unknowns[name]
@@ -638,6 +643,64 @@ class Elaborator:
         elif len(name) > 1 and name[1:2] == "_" and not name.endswith("}"):
             hint += "; " + (self._digits_hint(name, node) or f"write {name[:2]}{{..}} for a longer index")
         raise _err("unknown-symbol", f"unknown symbol {name}", hint, node)
+
+
+def _half_shift(self: Elaborator, node: ast.Name, name: str, src: str) -> ir.Expr:
+    """``f(\\tau + 1/2)``: q -> -q (docs/method.md#half-period-shift).
+
+    Read for E_k (from sigma_{k-1}(2n) = (1 + 2^{k-1}) sigma_{k-1}(n) - 2^{k-1} sigma_{k-1}(n/2)) and
+    for eta quotients whose q-expansion has integral exponents (eta(tau + 1/2) =
+    e^{pi i/24} eta(2tau)^3 / (eta(tau) eta(4tau))); with exponents in (1/24)Z the shift multiplies
+    by a root of unity that is not rational, and the claim is refused.
+    """
+    construct = f"{node.text}(\\tau+1/2)"
+    nearest = "nearest forms read: \\theta(\\tau+1/2), \\Delta(\\tau+1/2), E_k(\\tau+1/2), eta quotients at \\tau+1/2"
+    found = lookup(name, self.nome, self.matrices)
+    if self.nome != 1 or name in self.definitions or name in self.unread or not isinstance(found, AtomInfo):
+        raise _err(
+            "unsupported-notation",
+            f"{construct}: the shift tau -> tau + 1/2 is read only for built-in forms in q = e^{{2 pi i tau}}",
+            nearest + "; or write the shifted series out",
+            node,
+        )
+    key = found.key
+    if key[:1] == "E" and key[1:].isdigit():
+        k = int(key[1:])
+        total: ir.Expr | None = None
+        for c, d in ((-1, 1), (2 + 2**k, 2), (-(2**k), 4)):
+            const = ir.Const(ir.Typ(Fraction(0)), str(c), Fraction(c))
+            term = _mul(const, _atom(found, Fraction(d), src, node), src, node)
+            total = term if total is None else _add(total, term, 1, node)
+        assert total is not None
+        return total
+    if key == "Delta":
+        exps: dict[Fraction, int] = {Fraction(1): 24}
+    elif key == "eta":
+        exps = {Fraction(d): int(r) for d, r in found.params}
+    else:
+        raise _err(
+            "unsupported-notation", f"{construct}: the shift tau -> tau + 1/2 of {name} is not read", nearest, node
+        )
+    s = sum((delta * power for delta, power in exps.items()), Fraction(0))
+    if any(delta.denominator != 1 for delta in exps) or s % 24:
+        raise _err(
+            "unsupported-notation",
+            f"{construct}: {name} has q-exponents in {number_text(s / 24 % 1)} + Z, so tau -> tau + 1/2 multiplies "
+            f"it by e^{{{number_text(s / 24 % 2)} pi i}}, a root of unity that is not rational",
+            nearest + " (with integral exponents of q)",
+            node,
+        )
+    shifted: dict[Fraction, int] = {}
+    for delta, power in exps.items():
+        odd = delta.numerator % 2
+        moved = {delta * 2: 3 * power, delta: -power, delta * 4: -power} if odd else {delta: power}
+        for dd, rr in moved.items():
+            shifted[dd] = shifted.get(dd, 0) + rr
+    value = found.factor * (-1 if (s // 24) % 2 else 1)
+    atom = _atom(AtomInfo("eta", found.weight, params=eta_params(shifted)), Fraction(1), src, node)
+    if value == 1:
+        return atom
+    return ir.Product(atom.typ, src, ir.Const(ir.Typ(Fraction(0)), number_text(value), value), atom)
 
 
 def _arith_mul(a: Any, b: Any) -> Any:

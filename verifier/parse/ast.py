@@ -15,6 +15,10 @@ from verifier.limits import MAX_CONSTANT_BITS, TooLarge, check_bits, number_text
 Span = tuple[int, int]
 
 
+# The overpartition function, written \overline{p}, \bar{p} or \bar p (grammar terminal OVERPARTITION).
+PBAR = "\\pbar"
+
+
 @dataclass(frozen=True)
 class Node:
     """Base of every AST node."""
@@ -113,9 +117,10 @@ class BigSum(Node):
     ``"lattice"`` (var, var2, *more in Z: a theta series of a quadratic form),
     ``"pair"`` (var, var2 >= lower), ``"between"`` (lower < var < upper, written with <),
     ``"between_closed"`` (lower <= var <= upper), ``"below"`` (var < upper),
-    ``"divides_parity"`` (var | lower with var odd or even: ``parity``), ``"split"``
-    (var + var2 = upper with var, var2 >= lower) and ``"linear"`` (c1 var + c2 var2 = upper,
-    ``coefficients``)."""
+    ``"divides_parity"`` (var | lower with var odd or even: ``parity``), ``"divides_step"``
+    (var | lower with ``step`` | var, or with step not dividing var when ``parity`` is ``"not"``),
+    ``"split"`` (var + var2 = upper with var, var2 >= lower) and ``"linear"`` (c1 var + c2 var2 =
+    upper, ``coefficients``)."""
 
     kind: str
     var: str
@@ -126,6 +131,7 @@ class BigSum(Node):
     parity: str = ""
     coefficients: tuple[int, int] = (1, 1)
     more: tuple[str, ...] = ()  # the third and further variables of a lattice sum
+    step: int = 0  # the M of a condition M | var or M does not divide var ("divides_step")
 
 
 @dataclass(frozen=True)
@@ -191,12 +197,15 @@ class Statement(Node):
 
     ``modulus`` comes from ``\\pmod{M}``; ``start`` is ``(variable, n0)`` from ``(n \\ge n0)``;
     ``iff`` is set on both halves of ``A = B \\iff C = D``: the equivalence itself is the author's.
+    ``residues`` is ``(t, values)`` from a residue set ``(t \\in \\{3, 5, 6\\})`` after a
+    progression congruence (docs/method.md#progressions), values in the author's order.
     """
 
     relation: Relation | SpaceClaim
     modulus: int | None = None
     start: tuple[str, int] | None = None
     iff: bool = False
+    residues: tuple[str, tuple[int, ...]] | None = None
 
 
 @dataclass(frozen=True)
@@ -208,12 +217,17 @@ class Row(Node):
 
 @dataclass(frozen=True)
 class Definition(Node):
-    """``NAME = expr`` or ``NAME(\\tau) = expr`` from a define tag."""
+    """``NAME = expr`` or ``NAME(\\tau) = expr`` from a define tag.
+
+    ``NAME(x) = expr`` defines a function of a variable: ``arg`` is then the variable, and
+    ``exponential`` says that the body is ``e^{2\\pi i x}`` (docs/method.md#exponential-notation).
+    """
 
     name: str
     name_span: Span
     body: Node
     arg: str | None = None
+    exponential: bool = False
 
 
 def factors(node: Node) -> list[Node]:
@@ -227,6 +241,31 @@ def factors(node: Node) -> list[Node]:
         else:
             out.append(n)
     return out
+
+
+def subscript(name: str) -> tuple[str, str] | None:
+    """A subscripted name as ``(head, subscript)``, or None without a subscript.
+
+    The NAME terminal of ``grammar/claim.lark`` is a letter or a control word, then ``_`` and
+    one character or a braced word: ``f_{12}`` -> ``("f", "12")``, ``\\eta_3`` ->
+    ``("\\eta", "3")``, ``a_{C}`` -> ``("a", "C")``.
+    """
+    head, underscore, sub = name.replace(" ", "").partition("_")
+    if not underscore or not head:
+        return None
+    if sub.startswith("{") and sub.endswith("}"):
+        sub = sub[1:-1]
+    elif len(sub) != 1:
+        return None
+    return (head, sub) if sub else None
+
+
+def integer_subscript(name: str, head: str) -> int | None:
+    """``k`` of ``head_k`` / ``head_{k}`` with k written in digits (``f_{12}`` -> 12), else None."""
+    parts = subscript(name)
+    if parts is None or parts[0] != head or not parts[1].isdigit() or not parts[1].isascii():
+        return None
+    return int(parts[1])
 
 
 def walk(node: Node) -> list[Node]:

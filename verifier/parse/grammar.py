@@ -10,6 +10,7 @@ from __future__ import annotations
 import functools
 import math
 import re
+import threading
 from dataclasses import dataclass
 from fractions import Fraction
 from pathlib import Path
@@ -37,16 +38,102 @@ def grammar_path() -> Path:
 
 @functools.lru_cache(maxsize=1)
 def _parser() -> Any:
+    """The LALR parser, with :class:`_ToAst` run by the parser itself as it reduces (no parse tree)."""
     from lark import Lark
 
-    return Lark(
+    parser = Lark(
         grammar_path().read_text(encoding="utf-8"),
         parser="lalr",
         lexer="contextual",
         start=["relation", "row", "definition", "definitions"],
-        propagate_positions=True,
         maybe_placeholders=False,
     )
+    _install_reductions(parser, _TRANSFORMER)
+    return parser
+
+
+class _Reduced:
+    """The value of one reduction and the text it covers (what a parse-tree node's meta gives).
+
+    ``start_pos`` and ``end_pos`` include the brackets and keywords the grammar filters out,
+    as lark's ``propagate_positions`` does; the transformer's methods read them as ``meta``.
+    """
+
+    __slots__ = ("end_pos", "start_pos", "value")
+
+    def __init__(self, start_pos: int, end_pos: int) -> None:
+        self.value: Any = None
+        self.start_pos = start_pos
+        self.end_pos = end_pos
+
+
+def _install_reductions(parser: Any, impl: _ToAst) -> None:
+    """Make every reduction of ``parser`` call the transformer's method for its rule.
+
+    Lark builds a parse tree with one callback per grammar rule (filter the anonymous tokens,
+    inline a ``?rule`` with one child, propagate positions).  These callbacks do the same and
+    call :class:`_ToAst` at once, so no tree is built and walked a second time.  A method that
+    raises :class:`_BadNumber` stops the transformation; the parse goes on, so that a syntax
+    error later in the text is still reported first, as when the tree was transformed after
+    parsing.
+    """
+    from lark import Tree
+
+    table = parser._callbacks  # the dict the LALR parser reads its callbacks from
+    replaced: dict[Any, Any] = {}
+    for rule in parser.rules:
+        if not rule.expansion:
+            raise AssertionError(f"the grammar rule {rule} is empty: the reducer needs a position")
+        name = rule.alias or rule.options.template_source or rule.origin.name
+        keep = rule.options.keep_all_tokens
+        # (index, whether the child is a rule lark inlines, such as the repetition in x (sep x)*)
+        include = tuple(
+            (i, not sym.is_term and sym.name.startswith("_"))
+            for i, sym in enumerate(rule.expansion)
+            if keep or not (sym.is_term and sym.filter_out)
+        )
+        inline = bool(rule.options.expand1 and not rule.alias)
+        method = getattr(impl, str(name), None)
+        replaced[rule] = _reduction(str(name), include, inline, method, impl, Tree)
+    table.clear()
+    table.update(replaced)
+
+
+def _reduction(
+    name: str, include: tuple[tuple[int, bool], ...], inline: bool, method: Any, impl: _ToAst, tree: Any
+) -> Any:
+    plain = tuple(i for i, _ in include) if not any(expand for _, expand in include) else None
+
+    def reduce(children: list[Any]) -> _Reduced:
+        out = _Reduced(children[0].start_pos, children[-1].end_pos)
+        if impl.failed is not None:
+            return out
+        if plain is not None:
+            items = [children[i] for i in plain]
+            for k, c in enumerate(items):
+                if type(c) is _Reduced:
+                    items[k] = c.value
+        else:
+            items = []
+            for i, expand in include:
+                c = children[i]
+                value = c.value if type(c) is _Reduced else c
+                if expand:
+                    items.extend(value.children)
+                else:
+                    items.append(value)
+        if inline and len(items) == 1:
+            out.value = items[0]
+        elif method is None:
+            out.value = tree(name, items)
+        else:
+            try:
+                out.value = method(out, items)
+            except _BadNumber as exc:
+                impl.failed = exc
+        return out
+
+    return reduce
 
 
 class _BadNumber(ValueError):
@@ -69,30 +156,32 @@ class ParseFailure:
     offset: int
 
 
-def parse_claim(text: str) -> ast.Relation | ParseFailure:
+def parse_claim(text: str, exponentials: frozenset[str] = frozenset()) -> ast.Relation | ParseFailure:
     """Parse the body of a claim (``A = B``, ``A \\neq B``, chains)."""
-    result = _parse(text, "relation")
+    result = _parse(text, "relation", exponentials)
     assert isinstance(result, ast.Relation | ParseFailure)
     return result
 
 
-def parse_row(text: str) -> ast.Row | ParseFailure:
+def parse_row(text: str, exponentials: frozenset[str] = frozenset()) -> ast.Row | ParseFailure:
     """Parse one row of a display: statements, separators and qualifiers (docs/method.md#layout)."""
-    result = _parse(text, "row")
+    result = _parse(text, "row", exponentials)
     assert isinstance(result, ast.Row | ParseFailure)
     return result
 
 
-def parse_definition(text: str) -> ast.Definition | ParseFailure:
+def parse_definition(text: str, exponentials: frozenset[str] = frozenset()) -> ast.Definition | ParseFailure:
     """Parse the body of a define tag (``NAME = expr`` or ``NAME(\\tau) = expr``)."""
-    result = _parse(text, "definition")
+    result = _parse(text, "definition", exponentials)
     assert isinstance(result, ast.Definition | ParseFailure)
     return result
 
 
-def parse_definitions(text: str) -> tuple[ast.Definition, ...] | ParseFailure:
+def parse_definitions(
+    text: str, exponentials: frozenset[str] = frozenset()
+) -> tuple[ast.Definition, ...] | ParseFailure:
     """Parse the author's definitions of one row (``X = a, \\quad Y(\\tau) = b``)."""
-    result = _parse(text, "definitions")
+    result = _parse(text, "definitions", exponentials)
     if isinstance(result, ParseFailure):
         return result
     assert isinstance(result, ast.Definitions)
@@ -117,7 +206,21 @@ def _modulus_value(text: str) -> int:
     return value
 
 
-def _parse(text: str, start: str) -> ast.Node | ParseFailure:
+MEMO_TEXT_LIMIT = 2000  # longer texts (machine-made claims) are parsed each time, not kept
+
+
+def _parse(text: str, start: str, exponentials: frozenset[str] = frozenset()) -> ast.Node | ParseFailure:
+    """The AST of ``text`` from rule ``start``; the same text is parsed once per process.
+
+    Rows repeat within a manuscript and across the checks of an editor session; the result
+    depends only on the arguments, and ASTs and failures are immutable, so they are shared.
+    """
+    if len(text) > MEMO_TEXT_LIMIT:
+        return _parse_text(text, start, exponentials)
+    return _parse_memo(text, start, exponentials)
+
+
+def _parse_text(text: str, start: str, exponentials: frozenset[str]) -> ast.Node | ParseFailure:
     from lark.exceptions import UnexpectedCharacters, UnexpectedEOF, UnexpectedToken
 
     if not text.strip():
@@ -125,34 +228,34 @@ def _parse(text: str, start: str) -> ast.Node | ParseFailure:
     bad = _check_brackets(text)
     if bad is not None:
         return bad
-    try:
-        tree = _parser().parse(text, start=start)
-    except UnexpectedCharacters as exc:
-        pos = int(exc.pos_in_stream or 0)
-        ch = text[pos] if pos < len(text) else ""
-        return ParseFailure("syntax", f"unexpected character {ch!r}", _hint_for_char(ch), pos)
-    except UnexpectedEOF:
-        return _eof_failure(text, start)
-    except UnexpectedToken as exc:
-        if exc.token.type == "$END":
+    parser = _parser()
+    with _LOCK:
+        _TRANSFORMER.reset(text, exponentials)
+        try:
+            reduced = parser.parse(text, start=start)
+        except UnexpectedCharacters as exc:
+            pos = int(exc.pos_in_stream or 0)
+            ch = text[pos] if pos < len(text) else ""
+            return ParseFailure("syntax", f"unexpected character {ch!r}", _hint_for_char(ch), pos)
+        except UnexpectedEOF:
             return _eof_failure(text, start)
-        pos = exc.token.start_pos if exc.token.start_pos is not None else 0
-        return ParseFailure("syntax", f"unexpected {exc.token.value!r}", _hint_for_token(exc), pos)
-    from lark.exceptions import VisitError
-
-    try:
-        node = _ToAst(text).transform(tree)
-    except VisitError as exc:
-        if isinstance(exc.orig_exc, _BadNumber):
-            return _number_failure(exc.orig_exc)
-        raise
-    except _BadNumber as direct:
-        return _number_failure(direct)
+        except UnexpectedToken as exc:
+            if exc.token.type == "$END":
+                return _eof_failure(text, start)
+            pos = exc.token.start_pos if exc.token.start_pos is not None else 0
+            return ParseFailure("syntax", f"unexpected {exc.token.value!r}", _hint_for_token(exc), pos)
+        failed = _TRANSFORMER.failed
+    if failed is not None:
+        return _number_failure(failed)
+    node = reduced.value
     assert isinstance(node, ast.Node)
     try:
         return balance(node)
     except TooLarge as exc:
         return ParseFailure("too-large", str(exc), "split the claim into smaller ones", 0)
+
+
+_parse_memo = functools.lru_cache(maxsize=4096)(_parse_text)
 
 
 def _number_failure(bad: _BadNumber) -> ParseFailure:
@@ -246,6 +349,11 @@ def _literal(digits: str, offset: int) -> int:
     return int(digits)
 
 
+def _symbol(tok: Any) -> str:
+    """The name a NAME-like token stands for (the overpartition function in any spelling is ``\\pbar``)."""
+    return ast.PBAR if tok.type == "OVERPARTITION" else str(tok)
+
+
 def _span(meta: Any) -> ast.Span:
     return (meta.start_pos, meta.end_pos)
 
@@ -260,6 +368,8 @@ def _normal_arg(arg: str) -> str:
     inner = arg.strip()[1:-1].replace(" ", "").replace("\\tau", "tau")
     if inner in ("z", "w"):
         return "z"
+    if "+" in inner:  # (\tau + 1/2), (z + \frac{1}{2}): the grammar's ARG admits only a half
+        return "tau+1/2"
     m = re.fullmatch(r"q\^\{?(\d+)\}?", inner)
     if m:
         return f"{m.group(1)}tau"
@@ -272,6 +382,32 @@ def _normal_arg(arg: str) -> str:
 _TAU_NAMES = frozenset({"\\tau", "z", "w"})
 
 
+def _letter(node: ast.Node) -> bool:
+    return isinstance(node, ast.Name) and node.arg is None and len(node.text) == 1
+
+
+def _arg_multiple(arg: str) -> Fraction | None:
+    """The d of a normalised argument ``tau``, ``2tau``, ``tau/2`` (``z`` is tau); None otherwise."""
+    top, _, bottom = ("tau" if arg == "z" else arg).partition("/")
+    factor = top.removesuffix("tau")
+    if factor == top or not (factor == "" or factor.isdigit()) or not (bottom == "" or bottom.isdigit()):
+        return None
+    if int(factor or 1) == 0 or int(bottom or 1) == 0:
+        return None
+    return Fraction(int(factor or 1), int(bottom or 1))
+
+
+def _is_exponential(body: ast.Node, var: str) -> bool:
+    """Whether ``body`` is ``e^{2 pi i var}`` or ``\\exp(2 pi i var)`` (the definition of e(x))."""
+    if isinstance(body, ast.Power) and isinstance(body.base, ast.Name) and body.base.text == "e":
+        inner = body.exponent
+    elif isinstance(body, ast.Call) and body.name == "\\exp":
+        inner = body.argument
+    else:
+        return False
+    return isinstance(inner, ast.Node) and _multiple_of(inner, frozenset({var}), ("\\pi", "i"), Fraction(1, 2)) == 1
+
+
 def _nome_exponent(node: ast.Node) -> ast.Node | Fraction | None:
     """The exponent of q in ``e^{2 pi i X tau}`` (``\\exp(...)``): X, or None if ``node`` is not of that form.
 
@@ -279,10 +415,21 @@ def _nome_exponent(node: ast.Node) -> ast.Node | Fraction | None:
     \\tau, z, w, and optionally other letters (a summation variable), possibly divided by a
     constant and negated: e^{2 pi i n z} is q^n, e^{pi i tau/12} is q^{1/24}.
     """
+    return _multiple_of(node, _TAU_NAMES, ("\\pi", "i"), Fraction(1, 2))
+
+
+def _multiple_of(
+    node: ast.Node, variables: frozenset[str], constants: tuple[str, ...], scale: Fraction
+) -> ast.Node | Fraction | None:
+    """X in ``node = X * v * constants`` (v one of ``variables``, each constant once), times ``scale``.
+
+    X is a rational number, or a product of letters and their numeric powers times a rational;
+    None when ``node`` is not of that form.
+    """
     sign = 1
     while isinstance(node, ast.Neg):
         sign, node = -sign, node.operand
-    scale = Fraction(sign)
+    scale *= sign
     if isinstance(node, ast.BinOp) and node.op == "/":
         den = ast.constant_value(node.right) if not isinstance(node.right, ast.Name) else None
         if not den:
@@ -291,20 +438,19 @@ def _nome_exponent(node: ast.Node) -> ast.Node | Fraction | None:
         node = node.left
     factors = ast.factors(node)
     names = [f.text for f in factors if isinstance(f, ast.Name)]
-    if names.count("\\pi") != 1 or names.count("i") != 1 or sum(names.count(t) for t in _TAU_NAMES) != 1:
+    if any(names.count(c) != 1 for c in constants) or sum(names.count(t) for t in variables) != 1:
         return None
     rest: list[ast.Node] = []
     for f in factors:
-        if isinstance(f, ast.Name) and (f.text in ("\\pi", "i") or f.text in _TAU_NAMES) and f.arg is None:
+        if isinstance(f, ast.Name) and (f.text in constants or f.text in variables) and f.arg is None:
             continue
         value = ast.constant_value(f)
         if value is not None:
             scale *= value
-        elif isinstance(f, ast.Name) and f.arg is None and len(f.text) == 1:
-            rest.append(f)
+        elif _letter(f) or (isinstance(f, ast.Power) and _letter(f.base) and isinstance(f.exponent, Fraction)):
+            rest.append(f)  # a summation variable, or a power of one: e^{2 pi i n^2 tau} is q^{n^2}
         else:
             return None
-    scale /= 2  # e^{2 pi i tau} = q
     if not rest:
         return scale
     out: ast.Node = rest[0]
@@ -320,342 +466,412 @@ def _nome_exponent(node: ast.Node) -> ast.Node | Fraction | None:
     return out
 
 
-def _make_transformer() -> Any:
-    from lark import Transformer_NonRecursive, v_args
+class _ToAst:
+    """One method per grammar rule; each returns an AST node with its span."""
 
-    # Not recursive: a machine-made sum of 10,000 terms is 10,000 levels deep here.
-    @v_args(meta=True)
-    class ToAst(Transformer_NonRecursive):  # type: ignore[type-arg]
-        """One method per grammar rule; each returns an AST node with its span."""
+    def relation(self, meta: Any, items: list[Any]) -> ast.Relation:
+        domain = None
+        if items and getattr(items[-1], "type", "") == "DOMAIN":
+            domain = " ".join(re.sub(r"^(,|\s|\\q?quad(?![A-Za-z]))*", "", str(items.pop())).split())
+        sides = tuple(items[0::2])
+        rels = tuple({"=": "=", "\\equiv": "≡"}.get(str(r), "!=") for r in items[1::2])
+        return ast.Relation(_span(meta), sides, rels, domain)
 
-        def relation(self, meta: Any, items: list[Any]) -> ast.Relation:
-            domain = None
-            if items and getattr(items[-1], "type", "") == "DOMAIN":
-                domain = " ".join(re.sub(r"^(,|\s|\\q?quad(?![A-Za-z]))*", "", str(items.pop())).split())
-            sides = tuple(items[0::2])
-            rels = tuple({"=": "=", "\\equiv": "≡"}.get(str(r), "!=") for r in items[1::2])
-            return ast.Relation(_span(meta), sides, rels, domain)
+    # -- claims about a space of forms ------------------------------------------
+    def membership(self, meta: Any, items: list[Any]) -> ast.SpaceClaim:
+        form, _, space = items
+        return ast.SpaceClaim(_span(meta), "membership", form, str(space), space.start_pos)
 
-        # -- claims about a space of forms ------------------------------------------
-        def membership(self, meta: Any, items: list[Any]) -> ast.SpaceClaim:
-            form, _, space = items
-            return ast.SpaceClaim(_span(meta), "membership", form, str(space), space.start_pos)
+    def dimension(self, meta: Any, items: list[Any]) -> ast.SpaceClaim:
+        _, space, value = items
+        return ast.SpaceClaim(_span(meta), "dimension", None, str(space), space.start_pos, int(str(value)))
 
-        def dimension(self, meta: Any, items: list[Any]) -> ast.SpaceClaim:
-            _, space, value = items
-            return ast.SpaceClaim(_span(meta), "dimension", None, str(space), space.start_pos, int(str(value)))
+    def eigenform(self, meta: Any, items: list[Any]) -> ast.SpaceClaim:
+        return ast.SpaceClaim(_span(meta), "eigenform", items[0])
 
-        def eigenform(self, meta: Any, items: list[Any]) -> ast.SpaceClaim:
-            return ast.SpaceClaim(_span(meta), "eigenform", items[0])
+    # -- the layout of a row (docs/method.md#layout) -----------------------------
+    def row(self, meta: Any, items: list[Any]) -> ast.Row:
+        return _group_row(_span(meta), items)
 
-        # -- the layout of a row (docs/method.md#layout) -----------------------------
-        def row(self, meta: Any, items: list[Any]) -> ast.Row:
-            return _group_row(_span(meta), items)
+    def row_next(self, meta: Any, items: list[Any]) -> tuple[str, Any]:
+        return ("next", items[-1])
 
-        def row_next(self, meta: Any, items: list[Any]) -> tuple[str, Any]:
-            return ("next", items[-1])
+    def row_iff(self, meta: Any, items: list[Any]) -> tuple[str, Any]:
+        return ("iff", items[-1])
 
-        def row_iff(self, meta: Any, items: list[Any]) -> tuple[str, Any]:
-            return ("iff", items[-1])
+    def row_qualifier(self, meta: Any, items: list[Any]) -> tuple[str, Any]:
+        return ("qualifier", items[-1])
 
-        def row_qualifier(self, meta: Any, items: list[Any]) -> tuple[str, Any]:
-            return ("qualifier", items[-1])
+    def q_modulus(self, meta: Any, items: list[Any]) -> tuple[str, int]:
+        # -1 stands for a modulus too large to check; 0 is reported as such (api._claim).
+        return ("modulus", _modulus_value(str(items[0])))
 
-        def q_modulus(self, meta: Any, items: list[Any]) -> tuple[str, int]:
-            # -1 stands for a modulus too large to check; 0 is reported as such (api._claim).
-            return ("modulus", _modulus_value(str(items[0])))
+    def q_range(self, meta: Any, items: list[Any]) -> tuple[str, tuple[str, int]]:
+        m = _RANGE_PARTS.search(str(items[0]))
+        assert m is not None
+        return ("start", (m.group(1), int(m.group(2))))
 
-        def q_range(self, meta: Any, items: list[Any]) -> tuple[str, tuple[str, int]]:
-            m = _RANGE_PARTS.search(str(items[0]))
-            assert m is not None
-            return ("start", (m.group(1), int(m.group(2))))
+    def q_range_bare(self, meta: Any, items: list[Any]) -> tuple[str, tuple[str, int]]:
+        name = next(t for t in items if getattr(t, "type", "") == "NAME")
+        return ("start", (str(name), items[-1]))
 
-        def q_range_bare(self, meta: Any, items: list[Any]) -> tuple[str, tuple[str, int]]:
-            name = next(t for t in items if getattr(t, "type", "") == "NAME")
-            return ("start", (str(name), items[-1]))
+    def q_residues(self, meta: Any, items: list[Any]) -> tuple[str, tuple[str, tuple[int, ...]]]:
+        name = next(t for t in items if getattr(t, "type", "") == "NAME")
+        return ("residues", (str(name), items[-1]))
 
-        def signed_int(self, meta: Any, items: list[Any]) -> int:
-            value = int(str(items[-1]))
-            return -value if self.text[meta.start_pos : meta.end_pos].lstrip().startswith("-") else value
+    def residue_values(self, meta: Any, items: list[Any]) -> tuple[int, ...]:
+        # In the author's order, without repeats.
+        return tuple(dict.fromkeys(_literal(str(t), t.start_pos) for t in items))
 
-        def rel(self, meta: Any, items: list[Any]) -> str:
-            return str(items[0])
+    def signed_int(self, meta: Any, items: list[Any]) -> int:
+        value = int(str(items[-1]))
+        return -value if self.text[meta.start_pos : meta.end_pos].lstrip().startswith("-") else value
 
-        def expression(self, meta: Any, items: list[Any]) -> ast.Node:
-            node: ast.Node = items[0]
-            return node
+    def rel(self, meta: Any, items: list[Any]) -> str:
+        return str(items[0])
 
-        def definition(self, meta: Any, items: list[Any]) -> ast.Definition:
-            name_tok = items[0]
-            arg = _normal_arg(str(items[1])) if len(items) == 3 else None
-            return ast.Definition(_span(meta), str(name_tok), _tok_span(name_tok), items[-1], arg)
+    def expression(self, meta: Any, items: list[Any]) -> ast.Node:
+        node: ast.Node = items[0]
+        return node
 
-        def definitions(self, meta: Any, items: list[Any]) -> ast.Definitions:
-            return ast.Definitions(_span(meta), tuple(i for i in items if isinstance(i, ast.Definition)))
+    def definition(self, meta: Any, items: list[Any]) -> ast.Definition:
+        name_tok = items[0]
+        arg = _normal_arg(str(items[1])) if len(items) == 3 else None
+        return ast.Definition(_span(meta), str(name_tok), _tok_span(name_tok), items[-1], arg)
 
-        def neg(self, meta: Any, items: list[Any]) -> ast.Neg:
-            return ast.Neg(_span(meta), items[0])
+    def definition_of_variable(self, meta: Any, items: list[Any]) -> ast.Definition:
+        name_tok, var_tok, body = items
+        var = str(var_tok)
+        return ast.Definition(_span(meta), str(name_tok), _tok_span(name_tok), body, var, _is_exponential(body, var))
 
-        def _bin(self, op: str, meta: Any, left: ast.Node, right: ast.Node) -> ast.BinOp:
-            return ast.BinOp(_span(meta), op, left, right)
+    def definitions(self, meta: Any, items: list[Any]) -> ast.Definitions:
+        return ast.Definitions(_span(meta), tuple(i for i in items if isinstance(i, ast.Definition)))
 
-        def add(self, meta: Any, items: list[Any]) -> ast.BinOp:
-            return self._bin("+", meta, items[0], items[1])
+    def neg(self, meta: Any, items: list[Any]) -> ast.Neg:
+        return ast.Neg(_span(meta), items[0])
 
-        def sub(self, meta: Any, items: list[Any]) -> ast.BinOp:
-            return self._bin("-", meta, items[0], items[1])
+    def _bin(self, op: str, meta: Any, left: ast.Node, right: ast.Node) -> ast.BinOp:
+        return ast.BinOp(_span(meta), op, left, right)
 
-        text: str = ""
+    def add(self, meta: Any, items: list[Any]) -> ast.BinOp:
+        return self._bin("+", meta, items[0], items[1])
 
-        def imul(self, meta: Any, items: list[Any]) -> ast.Node:
-            left, right = items
-            if (
-                isinstance(left, ast.Number)
-                and isinstance(right, ast.Number)
-                and not self.text[left.span[1] : right.span[0]].strip()
-            ):
-                # In math mode TeX ignores spaces: '196 884' and '196\,884' print one number.
-                digits = "".join(self.text[left.span[0] : right.span[1]].split())
-                return ast.Number((left.span[0], right.span[1]), _literal(digits, left.span[0]))
-            return self._bin("*", meta, left, right)
+    def sub(self, meta: Any, items: list[Any]) -> ast.BinOp:
+        return self._bin("-", meta, items[0], items[1])
 
-        def mul(self, meta: Any, items: list[Any]) -> ast.BinOp:
-            return self._bin("*", meta, items[0], items[-1])
+    text: str = ""
+    failed: _BadNumber | None = None
 
-        def div(self, meta: Any, items: list[Any]) -> ast.BinOp:
-            return self._bin("/", meta, items[0], items[1])
+    exponentials: frozenset[str] = frozenset()
 
-        def frac(self, meta: Any, items: list[Any]) -> ast.BinOp:
-            return self._bin("/", meta, items[-2], items[-1])
+    def reset(self, text: str, exponentials: frozenset[str]) -> None:
+        """Start on a new claim text; ``exponentials`` are the names the document defines as e(x) = e^{2 pi i x}."""
+        self.text = text
+        self.name_poch = set()
+        self.failed = None
+        self.exponentials = exponentials
 
-        def pow(self, meta: Any, items: list[Any]) -> ast.Node:
-            base = items[0]
-            if isinstance(base, ast.KroneckerSymbol):
-                raise _BadNumber(
-                    "a power of a bracketed fraction: a Kronecker symbol or a fraction?",
-                    base.span[0],
-                    "ambiguous-notation",
-                    "write \\chi_{D}(n) for the symbol (D/n), or the fraction without brackets",
-                )
-            if isinstance(base, ast.Name) and base.text == "e" and isinstance(items[1], ast.Node):
-                # e^{2\\pi i n z} is q^n (the author's variable; docs/method.md#products).
-                exponent = _nome_exponent(items[1])
-                if exponent is not None:
-                    return ast.Power(_span(meta), ast.Name(base.span, "q"), exponent)
-            if isinstance(base, ast.BinOp) and base.span in self.name_poch:
-                # q(q;q)_\infty^{24}: the power belongs to the symbol, as it is typeset.
-                return ast.BinOp(_span(meta), "*", base.left, ast.Power(_span(meta), base.right, items[1]))
-            return ast.Power(_span(meta), base, items[1])
+    def _exponential(self, name: str, argument: ast.Node | str, meta: Any) -> ast.Node | None:
+        """``e(n\\tau)`` as ``q^n`` where the document defines e(x) = e^{2 pi i x}; None for another name.
 
-        def pow_arg(self, meta: Any, items: list[Any]) -> ast.Node:
-            # E_4^2(\tau): the argument belongs to the base, the power to the value.
-            base = items[0]
-            if isinstance(base, ast.Name) and base.arg is None:
-                base = ast.Name(base.span, base.text, _normal_arg(str(items[2])))
-            return ast.Power(_span(meta), base, items[1])
-
-        def exp_digit(self, meta: Any, items: list[Any]) -> Fraction:
-            return Fraction(int(str(items[0])))
-
-        def paren(self, meta: Any, items: list[Any]) -> ast.Node:
-            """``( expr )``; a bracketed ``\\frac`` of a number and a letter is a Kronecker symbol."""
-            inner: ast.Node = items[0]
-            symbol = _kronecker_symbol(self.text[meta.start_pos : meta.end_pos], _span(meta), meta.start_pos)
-            return inner if symbol is None else symbol
-
-        def call(self, meta: Any, items: list[Any]) -> ast.Node:
-            if str(items[0]) == "\\exp":
-                exponent = _nome_exponent(items[1])
-                if exponent is not None:
-                    # \\exp(2\\pi i n\\tau) is q^n.
-                    return ast.Power(_span(meta), ast.Name(_tok_span(items[0]), "q"), exponent)
-            return ast.Call(_span(meta), str(items[0]), _tok_span(items[0]), items[1])
-
-        def big_sum(self, meta: Any, items: list[Any]) -> ast.BigSum:
-            index, upper = items[0]
-            kind, var, lower = index[:3]
-            extra = index[3:]
-            if len(extra) >= 1 and extra[0] is not None:
-                upper = extra[0]
-            var2 = extra[1] if len(extra) > 1 else ""
-            parity = extra[2] if len(extra) > 2 else ""
-            coefficients = extra[3] if len(extra) > 3 else (1, 1)
-            more = extra[4] if len(extra) > 4 else ()
-            if kind == "from" and upper is None:
-                kind = "at_least"  # \sum_{n=1}^{\infty}
-            return ast.BigSum(_span(meta), kind, var, lower, upper, items[1], var2, parity, coefficients, more)
-
-        def sum_op(self, meta: Any, items: list[Any]) -> tuple[tuple[Any, ...], ast.Node | None]:
-            return tuple(items[0]), (items[1] if len(items) > 1 else None)
-
-        def index_from(self, meta: Any, items: list[Any]) -> tuple[str, str, ast.Node]:
-            return "from", str(items[0]), items[-1]
-
-        def index_divides(self, meta: Any, items: list[Any]) -> tuple[str, str, ast.Node]:
-            return "divides", str(items[0]), items[-1]
-
-        def index_at_least(self, meta: Any, items: list[Any]) -> tuple[str, str, ast.Node]:
-            return "at_least", str(items[0]), items[-1]
-
-        # -- the q-series idiom (docs/method.md#products, #sums-over-z) -----------------
-        def big_prod(self, meta: Any, items: list[Any]) -> ast.BigProd:
-            index, upper = items[0]
-            if index[0] not in ("from", "at_least"):
-                raise _BadNumber(
-                    "a product runs over n >= a or n = a .. b", meta.start_pos, hint="write \\prod_{n \\ge 1}"
-                )
-            _, var, lower = index[:3]
-            kind = "at_least" if upper is None else index[0]
-            return ast.BigProd(_span(meta), kind, var, lower, upper, items[1])
-
-        def prod_op(self, meta: Any, items: list[Any]) -> tuple[Any, ast.Node | None]:
-            return items[0], (items[1] if len(items) > 1 else None)
-
-        def pochhammer(self, meta: Any, items: list[Any]) -> ast.Pochhammer:
-            sep = next(i for i, x in enumerate(items) if getattr(x, "type", "") == "SEP")
-            if str(items[sep]).strip() != ";":
-                raise _BadNumber(
-                    "a q-Pochhammer symbol is written (a;q)_n", items[sep].start_pos, hint="write (a;q)_\\infty"
-                )
-            bases, nome, length = items[:sep], items[sep + 1], items[sep + 2]
-            return ast.Pochhammer(_span(meta), tuple(bases), nome, length)
-
-        def name_pochhammer(self, meta: Any, items: list[Any]) -> ast.BinOp:
-            # q(q;q)_\infty: a name before a q-Pochhammer symbol multiplies it.
-            node = ast.BinOp(_span(meta), "*", ast.Name(_tok_span(items[0]), str(items[0])), items[1])
-            self.name_poch.add(node.span)
-            return node
-
-        name_poch: set[ast.Span]
-
-        def poch_infinite(self, meta: Any, items: list[Any]) -> None:
+        Without that definition, ``e(...)`` of a multiple of tau is an error that asks for it
+        (docs/method.md#exponential-notation): qreferee does not guess what e means.
+        """
+        if name not in self.exponentials and name != "e":
             return None
-
-        def poch_digit(self, meta: Any, items: list[Any]) -> ast.Node:
-            return ast.Number(_tok_span(items[0]), int(str(items[0])))
-
-        def poch_name(self, meta: Any, items: list[Any]) -> ast.Node:
-            return ast.Name(_tok_span(items[0]), str(items[0]))
-
-        def poch_expr(self, meta: Any, items: list[Any]) -> ast.Node:
-            node: ast.Node = items[0]
-            return node
-
-        def index_pass(self, meta: Any, items: list[Any]) -> tuple[Any, ...]:
-            return tuple(items[0])
-
-        def index_integers(self, meta: Any, items: list[Any]) -> tuple[Any, ...]:
-            return ("integers", str(items[0]), None)
-
-        def index_lattice(self, meta: Any, items: list[Any]) -> tuple[Any, ...]:
-            """``x, y, z \\in \\mathbb Z`` (optionally ``\\mathbb Z^3``): a lattice sum in every variable."""
-            names = [str(t) for t in items if getattr(t, "type", "") == "NAME"]
-            power = [t for t in items if isinstance(t, int)]
-            if power and power[0] != len(names):
-                raise _BadNumber(
-                    f"{len(names)} variables summed over Z^{power[0]}",
-                    meta.start_pos,
-                    hint="write as many variables as the power of Z",
-                )
-            if len(set(names)) != len(names):
-                raise _BadNumber("a variable is named twice in a lattice sum", meta.start_pos, hint="")
-            return ("lattice", names[0], None, None, names[1], "", (1, 1), tuple(names[2:]))
-
-        def index_pair_at_least(self, meta: Any, items: list[Any]) -> tuple[Any, ...]:
-            return ("pair", str(items[0]), items[-1], None, str(items[1]))
-
-        def index_between(self, meta: Any, items: list[Any]) -> tuple[Any, ...]:
-            low = ast.Number(_tok_span(items[0]), int(str(items[0])))
-            return ("between", str(items[2]), low, items[-1])
-
-        def index_between_closed(self, meta: Any, items: list[Any]) -> tuple[Any, ...]:
-            low = ast.Number(_tok_span(items[0]), int(str(items[0])))
-            return ("between_closed", str(items[2]), low, items[-1])
-
-        def index_below(self, meta: Any, items: list[Any]) -> tuple[Any, ...]:
-            return ("below", str(items[0]), None, items[-1])
-
-        def index_divides_parity(self, meta: Any, items: list[Any]) -> tuple[Any, ...]:
-            var, _, target, var2, parity = items
-            if str(var2) != str(var):
-                raise _BadNumber(
-                    f"the condition names {var2}, not the summation variable {var}",
-                    meta.start_pos,
-                    hint=f"write \\sum_{{{var} \\mid n, {var} \\text{{ odd}}}}",
-                )
-            word = "odd" if "odd" in str(parity) else "even"
-            return ("divides_parity", str(var), target, None, "", word)
-
-        def index_split(self, meta: Any, items: list[Any]) -> tuple[Any, ...]:
-            a, b, total, c, d = (t for t in items if getattr(t, "type", "") == "NAME")
-            low = items[-1]
-            if {str(a), str(b)} != {str(c), str(d)}:
-                raise _BadNumber(
-                    "the range must name the two summation variables",
-                    meta.start_pos,
-                    hint="write \\sum_{\\substack{a+b=n \\\\ a,b \\ge 1}}",
-                )
-            return ("split", str(a), low, ast.Name(_tok_span(total), str(total)), str(b))
-
-        def index_linear(self, meta: Any, items: list[Any]) -> tuple[Any, ...]:
-            (c1, v1), (c2, v2), total = items
-            name = ast.Name(_tok_span(total), str(total))
-            return ("linear", v1, None, name, v2, "", (c1, c2))
-
-        def lin_var(self, meta: Any, items: list[Any]) -> tuple[int, str]:
-            return (int(str(items[0])) if len(items) == 2 else 1), str(items[-1])
-
-        def sum_upper(self, meta: Any, items: list[Any]) -> ast.Node | None:
-            item = items[0]
-            if getattr(item, "type", "") == "INFTY":
+        if isinstance(argument, str):  # (\tau), (2\tau), (\tau/2), (q^2): the normalised ARG
+            exponent: ast.Node | Fraction | None = _arg_multiple(argument)
+        else:
+            exponent = _multiple_of(argument, _TAU_NAMES, (), Fraction(1))
+        if name not in self.exponentials:
+            if exponent is None:
                 return None
-            if getattr(item, "type", "") == "DIGIT":
-                return ast.Number(_tok_span(item), int(str(item)))
-            if getattr(item, "type", "") == "NAME":
-                return ast.Name(_tok_span(item), str(item))
-            node: ast.Node = item
-            return node
+            raise _BadNumber(
+                f"{name}(...) of a multiple of \\tau: the document does not say what {name} means",
+                meta.start_pos,
+                "unknown-symbol",
+                f"define it before the claim, e.g. $\\mathbf{{{name}}}(x) := e^{{2\\pi i x}}$, or write q^n",
+            )
+        if exponent is None:
+            raise _BadNumber(
+                f"{name}(...) is read only at a multiple of \\tau ({name}(n\\tau) = q^n)",
+                meta.start_pos,
+                "unsupported-notation",
+                f"write {name}(n\\tau), or the power of q it stands for",
+            )
+        return ast.Power(_span(meta), ast.Name(_span(meta), "q"), exponent)
 
-        def exp_name(self, meta: Any, items: list[Any]) -> ast.Node:
-            return ast.Name(_tok_span(items[0]), str(items[0]))
+    def imul(self, meta: Any, items: list[Any]) -> ast.Node:
+        left, right = items
+        if (
+            isinstance(left, ast.Number)
+            and isinstance(right, ast.Number)
+            and not self.text[left.span[1] : right.span[0]].strip()
+        ):
+            # In math mode TeX ignores spaces: '196 884' and '196\,884' print one number.
+            digits = "".join(self.text[left.span[0] : right.span[1]].split())
+            return ast.Number((left.span[0], right.span[1]), _literal(digits, left.span[0]))
+        return self._bin("*", meta, left, right)
 
-        def exp_expr(self, meta: Any, items: list[Any]) -> Fraction | ast.Node:
-            value = _constant(items[0])
-            return value if value is not None else items[0]
+    def mul(self, meta: Any, items: list[Any]) -> ast.BinOp:
+        return self._bin("*", meta, items[0], items[-1])
 
-        def integer(self, meta: Any, items: list[Any]) -> ast.Number:
-            return ast.Number(_tok_span(items[0]), _literal(str(items[0]), items[0].start_pos))
+    def div(self, meta: Any, items: list[Any]) -> ast.BinOp:
+        return self._bin("/", meta, items[0], items[1])
 
-        def decimal(self, meta: Any, items: list[Any]) -> ast.Decimal:
-            return ast.Decimal(_tok_span(items[0]), str(items[0]))
+    def frac(self, meta: Any, items: list[Any]) -> ast.BinOp:
+        return self._bin("/", meta, items[-2], items[-1])
 
-        def name(self, meta: Any, items: list[Any]) -> ast.Name:
-            return ast.Name(_tok_span(items[0]), str(items[0]))
+    def pow(self, meta: Any, items: list[Any]) -> ast.Node:
+        base = items[0]
+        if isinstance(base, ast.KroneckerSymbol):
+            raise _BadNumber(
+                "a power of a bracketed fraction: a Kronecker symbol or a fraction?",
+                base.span[0],
+                "ambiguous-notation",
+                "write \\chi_{D}(n) for the symbol (D/n), or the fraction without brackets",
+            )
+        if isinstance(base, ast.Name) and base.text == "e" and isinstance(items[1], ast.Node):
+            # e^{2\\pi i n z} is q^n (the author's variable; docs/method.md#products).
+            exponent = _nome_exponent(items[1])
+            if exponent is not None:
+                return ast.Power(_span(meta), ast.Name(base.span, "q"), exponent)
+        if isinstance(base, ast.BinOp) and base.span in self.name_poch:
+            # q(q;q)_\infty^{24}: the power belongs to the symbol, as it is typeset.
+            return ast.BinOp(_span(meta), "*", base.left, ast.Power(_span(meta), base.right, items[1]))
+        return ast.Power(_span(meta), base, items[1])
 
-        def name_arg(self, meta: Any, items: list[Any]) -> ast.Name:
-            return ast.Name(_span(meta), str(items[0]), _normal_arg(str(items[1])))
+    def pow_arg(self, meta: Any, items: list[Any]) -> ast.Node:
+        # E_4^2(\tau): the argument belongs to the base, the power to the value.
+        base = items[0]
+        if isinstance(base, ast.Name) and base.arg is None:
+            base = ast.Name(base.span, base.text, _normal_arg(str(items[2])))
+        return ast.Power(_span(meta), base, items[1])
 
-        def prime(self, meta: Any, items: list[Any]) -> ast.Prime:
-            return ast.Prime(_span(meta), items[0])
+    def exp_digit(self, meta: Any, items: list[Any]) -> Fraction:
+        return Fraction(int(str(items[0])))
 
-        def bracket(self, meta: Any, items: list[Any]) -> ast.Bracket:
-            return ast.Bracket(_span(meta), items[0], items[1], items[2])
+    def paren(self, meta: Any, items: list[Any]) -> ast.Node:
+        """``( expr )``; a bracketed ``\\frac`` of a number and a letter is a Kronecker symbol."""
+        inner: ast.Node = items[0]
+        symbol = _kronecker_symbol(self.text[meta.start_pos : meta.end_pos], _span(meta), meta.start_pos)
+        return inner if symbol is None else symbol
 
-        def bracket_index(self, meta: Any, items: list[Any]) -> int:
-            n = _literal(str(items[0]), items[0].start_pos)
-            if n > MAX_BRACKET_INDEX:
-                raise _BadNumber(
-                    f"a bracket of order {n} (the limit is {MAX_BRACKET_INDEX})", items[0].start_pos, "too-large", ""
-                )
-            return n
+    def call(self, meta: Any, items: list[Any]) -> ast.Node:
+        if str(items[0]) == "\\exp":
+            exponent = _nome_exponent(items[1])
+            if exponent is not None:
+                # \\exp(2\\pi i n\\tau) is q^n.
+                return ast.Power(_span(meta), ast.Name(_tok_span(items[0]), "q"), exponent)
+        name = _symbol(items[0])
+        power = self._exponential(name, items[1], meta)
+        if power is not None:
+            return power
+        return ast.Call(_span(meta), name, _tok_span(items[0]), items[1])
 
-        def dots(self, meta: Any, items: list[Any]) -> ast.Dots:
-            return ast.Dots(_span(meta))
+    def big_sum(self, meta: Any, items: list[Any]) -> ast.BigSum:
+        index, upper = items[0]
+        kind, var, lower = index[:3]
+        extra = index[3:]
+        if len(extra) >= 1 and extra[0] is not None:
+            upper = extra[0]
+        var2 = extra[1] if len(extra) > 1 else ""
+        parity = extra[2] if len(extra) > 2 else ""
+        coefficients = extra[3] if len(extra) > 3 else (1, 1)
+        more = extra[4] if len(extra) > 4 else ()
+        step = extra[5] if len(extra) > 5 else 0
+        if kind == "from" and upper is None:
+            kind = "at_least"  # \sum_{n=1}^{\infty}
+        return ast.BigSum(_span(meta), kind, var, lower, upper, items[1], var2, parity, coefficients, more, step)
 
-        def big_o(self, meta: Any, items: list[Any]) -> ast.BigO:
-            return ast.BigO(_span(meta), items[-1])
+    def sum_op(self, meta: Any, items: list[Any]) -> tuple[tuple[Any, ...], ast.Node | None]:
+        return tuple(items[0]), (items[1] if len(items) > 1 else None)
 
-    return ToAst
+    def index_from(self, meta: Any, items: list[Any]) -> tuple[str, str, ast.Node]:
+        return "from", str(items[0]), items[-1]
+
+    def index_divides(self, meta: Any, items: list[Any]) -> tuple[str, str, ast.Node]:
+        return "divides", str(items[0]), items[-1]
+
+    def index_at_least(self, meta: Any, items: list[Any]) -> tuple[str, str, ast.Node]:
+        return "at_least", str(items[0]), items[-1]
+
+    # -- the q-series idiom (docs/method.md#products, #sums-over-z) -----------------
+    def big_prod(self, meta: Any, items: list[Any]) -> ast.BigProd:
+        index, upper = items[0]
+        if index[0] not in ("from", "at_least"):
+            raise _BadNumber("a product runs over n >= a or n = a .. b", meta.start_pos, hint="write \\prod_{n \\ge 1}")
+        _, var, lower = index[:3]
+        kind = "at_least" if upper is None else index[0]
+        return ast.BigProd(_span(meta), kind, var, lower, upper, items[1])
+
+    def prod_op(self, meta: Any, items: list[Any]) -> tuple[Any, ast.Node | None]:
+        return items[0], (items[1] if len(items) > 1 else None)
+
+    def pochhammer(self, meta: Any, items: list[Any]) -> ast.Pochhammer:
+        sep = next(i for i, x in enumerate(items) if getattr(x, "type", "") == "SEP")
+        if str(items[sep]).strip() != ";":
+            raise _BadNumber(
+                "a q-Pochhammer symbol is written (a;q)_n", items[sep].start_pos, hint="write (a;q)_\\infty"
+            )
+        bases, nome, length = items[:sep], items[sep + 1], items[sep + 2]
+        return ast.Pochhammer(_span(meta), tuple(bases), nome, length)
+
+    def name_pochhammer(self, meta: Any, items: list[Any]) -> ast.BinOp:
+        # q(q;q)_\infty: a name before a q-Pochhammer symbol multiplies it.
+        node = ast.BinOp(_span(meta), "*", ast.Name(_tok_span(items[0]), str(items[0])), items[1])
+        self.name_poch.add(node.span)
+        return node
+
+    name_poch: set[ast.Span]
+
+    def poch_infinite(self, meta: Any, items: list[Any]) -> None:
+        return None
+
+    def poch_digit(self, meta: Any, items: list[Any]) -> ast.Node:
+        return ast.Number(_tok_span(items[0]), int(str(items[0])))
+
+    def poch_name(self, meta: Any, items: list[Any]) -> ast.Node:
+        return ast.Name(_tok_span(items[0]), str(items[0]))
+
+    def poch_expr(self, meta: Any, items: list[Any]) -> ast.Node:
+        node: ast.Node = items[0]
+        return node
+
+    def index_pass(self, meta: Any, items: list[Any]) -> tuple[Any, ...]:
+        return tuple(items[0])
+
+    def index_integers(self, meta: Any, items: list[Any]) -> tuple[Any, ...]:
+        return ("integers", str(items[0]), None)
+
+    def index_lattice(self, meta: Any, items: list[Any]) -> tuple[Any, ...]:
+        """``x, y, z \\in \\mathbb Z`` (optionally ``\\mathbb Z^3``): a lattice sum in every variable."""
+        names = [str(t) for t in items if getattr(t, "type", "") == "NAME"]
+        power = [t for t in items if isinstance(t, int)]
+        if power and power[0] != len(names):
+            raise _BadNumber(
+                f"{len(names)} variables summed over Z^{power[0]}",
+                meta.start_pos,
+                hint="write as many variables as the power of Z",
+            )
+        if len(set(names)) != len(names):
+            raise _BadNumber("a variable is named twice in a lattice sum", meta.start_pos, hint="")
+        return ("lattice", names[0], None, None, names[1], "", (1, 1), tuple(names[2:]))
+
+    def index_pair_at_least(self, meta: Any, items: list[Any]) -> tuple[Any, ...]:
+        return ("pair", str(items[0]), items[-1], None, str(items[1]))
+
+    def index_between(self, meta: Any, items: list[Any]) -> tuple[Any, ...]:
+        low = ast.Number(_tok_span(items[0]), int(str(items[0])))
+        return ("between", str(items[2]), low, items[-1])
+
+    def index_between_closed(self, meta: Any, items: list[Any]) -> tuple[Any, ...]:
+        low = ast.Number(_tok_span(items[0]), int(str(items[0])))
+        return ("between_closed", str(items[2]), low, items[-1])
+
+    def index_below(self, meta: Any, items: list[Any]) -> tuple[Any, ...]:
+        return ("below", str(items[0]), None, items[-1])
+
+    def index_divides_parity(self, meta: Any, items: list[Any]) -> tuple[Any, ...]:
+        var, _, target, var2, parity = items
+        if str(var2) != str(var):
+            raise _BadNumber(
+                f"the condition names {var2}, not the summation variable {var}",
+                meta.start_pos,
+                hint=f"write \\sum_{{{var} \\mid n, {var} \\text{{ odd}}}}",
+            )
+        word = "odd" if "odd" in str(parity) else "even"
+        return ("divides_parity", str(var), target, None, "", word)
+
+    def index_divides_step(self, meta: Any, items: list[Any]) -> tuple[Any, ...]:
+        """``d | n, M | d`` and ``d | n, M \\nmid d``; M = 2 is the parity condition (d even, d odd)."""
+        var, _, target, step_tok, relation, var2 = items
+        if str(var2) != str(var):
+            raise _BadNumber(
+                f"the condition names {var2}, not the summation variable {var}",
+                meta.start_pos,
+                hint=f"write \\sum_{{{var} \\mid n,\\ 4 \\nmid {var}}}",
+            )
+        step = _literal(str(step_tok), step_tok.start_pos)
+        negated = relation.type == "NMID"
+        if step < 1:
+            raise _BadNumber("a divisibility condition needs a positive modulus", step_tok.start_pos)
+        if step == 2:
+            return ("divides_parity", str(var), target, None, "", "odd" if negated else "even")
+        return ("divides_step", str(var), target, None, "", "not" if negated else "", (1, 1), (), step)
+
+    def index_split(self, meta: Any, items: list[Any]) -> tuple[Any, ...]:
+        a, b, total, c, d = (t for t in items if getattr(t, "type", "") == "NAME")
+        low = items[-1]
+        if {str(a), str(b)} != {str(c), str(d)}:
+            raise _BadNumber(
+                "the range must name the two summation variables",
+                meta.start_pos,
+                hint="write \\sum_{\\substack{a+b=n \\\\ a,b \\ge 1}}",
+            )
+        return ("split", str(a), low, ast.Name(_tok_span(total), str(total)), str(b))
+
+    def index_linear(self, meta: Any, items: list[Any]) -> tuple[Any, ...]:
+        (c1, v1), (c2, v2), total = items
+        name = ast.Name(_tok_span(total), str(total))
+        return ("linear", v1, None, name, v2, "", (c1, c2))
+
+    def lin_var(self, meta: Any, items: list[Any]) -> tuple[int, str]:
+        return (int(str(items[0])) if len(items) == 2 else 1), str(items[-1])
+
+    def sum_upper(self, meta: Any, items: list[Any]) -> ast.Node | None:
+        item = items[0]
+        if getattr(item, "type", "") == "INFTY":
+            return None
+        if getattr(item, "type", "") == "DIGIT":
+            return ast.Number(_tok_span(item), int(str(item)))
+        if getattr(item, "type", "") == "NAME":
+            return ast.Name(_tok_span(item), str(item))
+        node: ast.Node = item
+        return node
+
+    def exp_name(self, meta: Any, items: list[Any]) -> ast.Node:
+        return ast.Name(_tok_span(items[0]), str(items[0]))
+
+    def exp_expr(self, meta: Any, items: list[Any]) -> Fraction | ast.Node:
+        value = _constant(items[0])
+        return value if value is not None else items[0]
+
+    def integer(self, meta: Any, items: list[Any]) -> ast.Number:
+        return ast.Number(_tok_span(items[0]), _literal(str(items[0]), items[0].start_pos))
+
+    def decimal(self, meta: Any, items: list[Any]) -> ast.Decimal:
+        return ast.Decimal(_tok_span(items[0]), str(items[0]))
+
+    def name(self, meta: Any, items: list[Any]) -> ast.Name:
+        return ast.Name(_tok_span(items[0]), _symbol(items[0]))
+
+    def name_arg(self, meta: Any, items: list[Any]) -> ast.Node:
+        arg = _normal_arg(str(items[1]))
+        power = self._exponential(str(items[0]), arg, meta)
+        if power is not None:
+            return power
+        return ast.Name(_span(meta), str(items[0]), arg)
+
+    def prime(self, meta: Any, items: list[Any]) -> ast.Prime:
+        return ast.Prime(_span(meta), items[0])
+
+    def bracket(self, meta: Any, items: list[Any]) -> ast.Bracket:
+        return ast.Bracket(_span(meta), items[0], items[1], items[2])
+
+    def bracket_index(self, meta: Any, items: list[Any]) -> int:
+        n = _literal(str(items[0]), items[0].start_pos)
+        if n > MAX_BRACKET_INDEX:
+            raise _BadNumber(
+                f"a bracket of order {n} (the limit is {MAX_BRACKET_INDEX})", items[0].start_pos, "too-large", ""
+            )
+        return n
+
+    def dots(self, meta: Any, items: list[Any]) -> ast.Dots:
+        return ast.Dots(_span(meta))
+
+    def big_o(self, meta: Any, items: list[Any]) -> ast.BigO:
+        return ast.BigO(_span(meta), items[-1])
 
 
 _RANGE_PARTS = re.compile(r"([a-z])\s*(?:\\geq?|>=|\\geqslant)\s*(-?\d+)\s*\)$")
@@ -714,7 +930,7 @@ def _group_row(span: ast.Span, items: list[Any]) -> ast.Row:
 
     A qualifier belongs to the relation before it.  Qualifiers after the last relation of a
     row also apply to the earlier relations that have none of their own: a modulus only to
-    congruences (it would weaken an equation), a range to every relation.
+    congruences (it would weaken an equation), a range and a residue set to every relation.
     """
     relations: list[ast.Relation | ast.SpaceClaim] = [items[0]]
     quals: list[dict[str, Any]] = [{}]
@@ -735,23 +951,14 @@ def _group_row(span: ast.Span, items: list[Any]) -> ast.Row:
             q["modulus"] = trailing["modulus"]
         if "start" in trailing and "start" not in q:
             q["start"] = trailing["start"]
+        if "residues" in trailing and "residues" not in q:
+            q["residues"] = trailing["residues"]
     statements = tuple(
-        ast.Statement(r.span, r, q.get("modulus"), q.get("start"), f)
+        ast.Statement(r.span, r, q.get("modulus"), q.get("start"), f, q.get("residues"))
         for r, q, f in zip(relations, quals, iff, strict=True)
     )
     return ast.Row(span, statements)
 
 
-class _ToAst:
-    def __init__(self, text: str) -> None:
-        self._impl = _transformer_class()()
-        self._impl.text = text
-        self._impl.name_poch = set()
-
-    def transform(self, tree: Any) -> Any:
-        return self._impl.transform(tree)
-
-
-@functools.lru_cache(maxsize=1)
-def _transformer_class() -> Any:
-    return _make_transformer()
+_TRANSFORMER = _ToAst()
+_LOCK = threading.Lock()  # the transformer holds the text of the claim being parsed

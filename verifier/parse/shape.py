@@ -30,15 +30,31 @@ def _chain_op(node: ast.Node) -> str | None:
 
 def nesting(node: ast.Node) -> int:
     """Depth of ``node``'s tree where a chain of sums (or of products) counts as one level."""
-    deepest = 0
-    stack: list[tuple[ast.Node, int]] = [(node, 1)]
+    return _measure(node)[0]
+
+
+def _measure(node: ast.Node) -> tuple[int, int]:
+    """(nesting depth, number of terms of the longest chain of sums or of products), in one walk."""
+    deepest = longest = 0
+    # (node, depth, the running count of operators of the chain the node belongs to)
+    stack: list[tuple[ast.Node, int, list[int] | None]] = [(node, 1, None)]
     while stack:
-        n, depth = stack.pop()
-        deepest = max(deepest, depth)
+        n, depth, chain = stack.pop()
+        if depth > deepest:
+            deepest = depth
         op = _chain_op(n)
+        if op is not None:
+            if chain is None:
+                chain = [0]
+            chain[0] += 1
+            if chain[0] + 1 > longest:
+                longest = chain[0] + 1
         for child in _all_children(n):
-            stack.append((child, depth if op is not None and _chain_op(child) == op else depth + 1))
-    return deepest
+            if op is not None and _chain_op(child) == op:
+                stack.append((child, depth, chain))
+            else:
+                stack.append((child, depth + 1, None))
+    return deepest, longest
 
 
 def _all_children(node: ast.Node) -> tuple[ast.Node, ...]:
@@ -66,10 +82,11 @@ def _terms(node: ast.Node) -> list[tuple[int, ast.Node]]:
 
 def balance(node: ast.Node) -> ast.Node:
     """``node`` with every chain longer than :data:`BALANCE_FROM` balanced (raises TooLarge if too deep)."""
-    depth = nesting(node)
+    depth, longest = _measure(node)
     if depth > MAX_NESTING:
         raise TooLarge(f"the claim is nested {depth} levels deep (the limit is {MAX_NESTING})")
-    return _rebuild(node)
+    # Without a chain longer than BALANCE_FROM, _rebuild gives back the very same tree.
+    return _rebuild(node) if longest > BALANCE_FROM else node
 
 
 def _rebuild(node: ast.Node) -> ast.Node:

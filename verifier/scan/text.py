@@ -112,6 +112,8 @@ class MappedText:
         A replacement as long as the match keeps the positions one for one; otherwise
         every new character maps to the start of the match.
         """
+        if pattern.search(self.text) is None:
+            return self  # most patterns do not occur in a row; a text is never changed in place
         out: list[str] = []
         origins: list[int] = []
         pos = 0
