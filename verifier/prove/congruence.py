@@ -787,7 +787,7 @@ def _plan(active: list[_Item], p: int, level: int, tolerance: dict[int, int]) ->
         where = " and ".join(sorted({s.name for s in subs.values()})) or "no substitution"
         reasons.append(
             f"with {where} the pieces have weights {ws}, and no product of the multipliers = 1 modulo the precision "
-            "each piece needs joins them (docs/method.md#congruence-weights)"
+            "each piece needs joins them, so no common weight is reachable (docs/method.md#congruence-weights)"
         )
     return None, "; ".join(reasons) + " (docs/method.md#congruence-e2)"
 
