@@ -37,12 +37,13 @@ def lift_eta(params: EtaParams, p: int, e: int) -> EtaParams:
     """
     exps: dict[Fraction, int] = dict(params)
     step = p ** (e - 1)
-    for delta in sorted(exps, reverse=True):
-        r = exps.get(delta, 0)
-        if r == 0 or delta.denominator != 1 or int(delta) % p or r % step:
-            continue
+    while True:
+        movable = [d for d, r in exps.items() if r and d.denominator == 1 and int(d) % p == 0 and r % step == 0]
+        if not movable:
+            break
+        delta = max(movable)
         lower = delta / p
-        exps[lower] = exps.get(lower, 0) + p * r
+        exps[lower] = exps.get(lower, 0) + p * exps[delta]
         exps[delta] = 0
     return registry.eta_params(exps)
 
