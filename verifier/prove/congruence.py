@@ -15,27 +15,28 @@ For each prime power ``p^e || M`` separately (a congruence mod M holds iff it ho
    weight is 0 mod ``p^e`` for every n (docs/method.md#congruences-sturm; ``E_2`` has integer coefficients), so it is
    set aside.  This is how ``691 E_4^3 = 691`` (mod 691) enters the worked example of
    docs/method.md#congruences-sturm.
-2. The remaining pieces are made modular: ``E_2`` becomes ``E_{p+1}`` (p >= 5, e = 1) or 1
-   (mod 8 and mod 3); for any other prime power with ``E_2`` left there is no substitution
-   (docs/method.md#congruence-e2) and nothing is proved.
-3. They must share one character, and their weights must be joined by multipliers
-   ``H = 1 (mod p^e)`` of level one (docs/method.md#congruence-weights): ``E_{p-1}^{p^{e-1}}`` for p >= 5,
-   powers of ``E_4`` and ``E_6`` for p = 2, 3.  Each piece is multiplied up to the least common
-   weight ``K`` reachable that way.
-4. Denominators (docs/method.md#congruence-denominators): with ``p^a`` the largest power of p in a
-   denominator of any ``f_i`` (read through each piece's own Sturm bound, which suffices: if
-   ``p^c f`` (c least) is integral, it is not 0 mod p, so some ``n <= B`` shows ``p^c`` in a
-   denominator), the claim is scaled: ``p^a F = 0 (mod p^(a+e))`` iff ``F = 0 (mod p^e)``.
-   Multipliers are taken = 1 mod ``p^(a+e)``, and E_2 is replaced by a substitute S with
-   ``E_2 = S (mod p^s)`` only in pieces whose own denominator exponent is at most ``s - e``.
-5. ``G = sum_i p^a f_i S^{j_i} H_i`` lies in ``M_K(Gamma_0(N), chi)``, is p-integral, and
-   ``G = p^a F (mod p^(a+e))`` coefficientwise.  ``G = 0 (mod p^e)`` everywhere iff it is so for
-   ``n <= B = floor(K m_0(N) / 12)`` (docs/method.md#congruences-sturm, prime powers in the same space).
+2. Valuations (docs/method.md#congruence-denominators): ``v_i`` is the least p-adic valuation of a
+   coefficient of ``f_i`` (read through each piece's own Sturm bound, which suffices: if
+   ``p^(-v) f`` is p-integral, it is not 0 mod p, so some ``n <= B`` shows valuation v), and
+   ``v_i < e`` for a piece not set aside.  With ``a = max(0, -v_i)`` the claim is scaled:
+   ``p^a F = 0 (mod p^(a+e))`` iff ``F = 0 (mod p^e)``.  The scaled piece ``p^a f_i`` has
+   valuation ``a + v_i``, so its other factors need only be exact mod ``p^(t_i)``, ``t_i = e - v_i``.
+3. A plan (:func:`_plan`) makes the pieces one modular form: ``E_2`` becomes a substitute S with
+   ``E_2 = S (mod p^s)``, ``s >= t_i`` (docs/method.md#congruence-e2): first the level-one ones
+   (``E_{p+1}`` mod p, 1 mod 8 and mod 3, ``E_8`` mod 9, ``E_6`` mod 16), else
+   ``E_2(tau) - p^s E_2(p^s tau)`` of weight 2 on ``Gamma_0(p^s)``, which raises the level to
+   ``lcm(N, p^s)``.  The pieces must share one character, and each is multiplied by a level-one
+   ``H_i = 1 (mod p^(t_i))`` (docs/method.md#congruence-weights): ``E_{p-1}^{p^(t-1)}`` for p >= 5,
+   powers of ``E_4`` and ``E_6`` for p = 2, 3, up to the least common weight ``K`` so reachable.
+4. ``G = sum_i p^a f_i S^{j_i} H_i`` lies in ``M_K(Gamma_0(N'), chi)``, is p-integral, and
+   ``G = p^a F (mod p^(a+e))`` coefficientwise.  ``G = 0 (mod p^(a+e))`` everywhere iff it is so for
+   ``n <= B = floor(K m_0(N') / 12)`` (docs/method.md#congruences-sturm, prime powers in the same space).
    A nonzero residue within ``B`` is therefore a true coefficient of ``F`` that is not 0 mod ``p^e``.
 
 Everything else (half-integral weight, poles, several characters, weights no multiplier
-joins, pieces with ``p`` in a denominator, ``E_2`` modulo higher prime powers) is reported
-as not proved, with the reason.  The known coefficients of ``F`` itself are always scanned:
+joins, an ``E_2`` substitute of too large a level) is reported as not proved, with the reason.
+Eta quotients lifted by Frobenius (docs/method.md#congruence-frobenius) are tried by the caller.
+The known coefficients of ``F`` itself are always scanned:
 a coefficient with a denominator not prime to M means the congruence is undefined, and a
 coefficient not 0 mod M is reported as a witness (a refutation if it lies in the claim's
 range).  As a guard against inconsistent input, ``G`` and ``F`` are also compared mod ``p^e``
@@ -536,7 +537,7 @@ def _scan(items: list[_Item], m: int) -> tuple[dict[str, Any] | None, dict[str, 
 def _decide_prime_power(
     items: list[_Item], p: int, e: int, level: int, f_res: list[int | None], f_prec: int
 ) -> _PrimePowerResult:
-    """Steps 1-5 of the module docstring for one prime power."""
+    """Steps 1-4 of the module docstring for one prime power."""
     q = p**e
     group = group_name(level)
     detail: dict[str, Any] = {"prime": p, "exponent": e, "modulus": q, "proved": False}
