@@ -218,3 +218,18 @@ def test_the_scaled_proof_says_how() -> None:
     c = claim(2, 7, 3)
     (detail,) = c["components"]  # type: ignore[misc]
     assert detail["scaled_by"] == 3 and detail["e2_replaced_by"] == "E_8"
+
+
+def test_proof_paragraphs_name_the_new_steps() -> None:
+    from verifier.report import proof_tex
+
+    doc = (
+        "%@claim\n\\[ \\tau(n) \\equiv n^2\\sigma_7(n) \\pmod{27} \\]\n"
+        "%@claim\n\\[ \\Delta \\equiv \\eta(\\tau)\\eta(23\\tau) \\pmod{23} \\]\n"
+    )
+    report = check_text(doc, "t.tex")
+    assert [c.verdict for c in report.claims] == ["proved", "proved"]
+    tex = proof_tex.render(report)
+    assert "$E_2(\\tau) - 81 E_2(81 \\tau)$" in tex and "\\Gamma_0(81)" in tex
+    assert "\\bibitem{diamond-shurman-e2}" in tex
+    assert "giving $\\Delta$ and $\\eta(\\tau)^{24}$" in tex

@@ -607,6 +607,7 @@ def _decide_prime_power(
         return fail(why_not)
     if plan.substitutes:
         detail["e2_replaced_by"] = plan.e2_name()
+        detail["e2_modulus"] = p ** min(sub.s for sub in plan.substitutes.values())
     k_common, proof_level = plan.weight, plan.level
     big_b = sturm_bound(k_common, proof_level)
     stop = big_b + 1

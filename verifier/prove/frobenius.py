@@ -109,3 +109,25 @@ def lift_side(expr: ir.Expr, p: int, e: int) -> ir.Expr | None:
         base = lift_side(expr.base, p, e)
         return None if base is None else dataclasses.replace(expr, base=base)
     return None
+
+
+def describe(expr: ir.Expr) -> str:
+    """A plain spelling of a (lifted) side for reports: eta quotients by their exponents, other atoms
+    and constants as written."""
+    if isinstance(expr, ir.Const):
+        return str(expr.value)
+    if isinstance(expr, ir.Atom):
+        if expr.key == "eta":
+            return str(registry.eta_quotient(expr.params).label())
+        return expr.text.lstrip("\\") if expr.key == "Delta" else expr.text
+    if isinstance(expr, ir.Sum) and expr.left is not None and expr.right is not None:
+        return f"{describe(expr.left)} {'+' if expr.sign > 0 else '-'} ({describe(expr.right)})"
+    if isinstance(expr, ir.Product) and expr.left is not None and expr.right is not None:
+        return f"({describe(expr.left)}) ({describe(expr.right)})"
+    if isinstance(expr, ir.Power) and expr.base is not None:
+        return f"({describe(expr.base)})^{expr.exponent}"
+    if isinstance(expr, ir.Deriv) and expr.base is not None:
+        return f"D({describe(expr.base)})"
+    if isinstance(expr, ir.Shift) and expr.base is not None:
+        return f"q^{expr.exponent} ({describe(expr.base)})"
+    return expr.text
