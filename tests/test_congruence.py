@@ -459,3 +459,50 @@ def test_details_are_plain_data() -> None:
         d = decide(spec, m)
         json.dumps({"proved": d.proved, "reason": d.reason, "bound": d.bound, "details": d.details})
         assert all({"prime", "exponent", "modulus", "proved", "reason"} <= set(x) for x in d.details)
+
+
+# ---------------------------------------------------------------------------
+# E_2 to higher 2-adic precision: E_2(tau) - 2^s E_2(2^s tau) on Gamma_0(2^s)
+# ---------------------------------------------------------------------------
+
+
+def _e2_power_minus(count: int, power: int, other: int, c_other: int) -> list[int]:
+    """Coefficients of E_2^power - (1 + c_other sum sigma_{other-1}(n) q^n) with plain integers."""
+    e2 = [1] + [-24 * int(sympy.divisor_sigma(n, 1)) for n in range(1, count)]
+    acc = [1] + [0] * (count - 1)
+    for _ in range(power):
+        acc = [sum(acc[i] * e2[n - i] for i in range(n + 1)) for n in range(count)]
+    ek = [1] + [c_other * int(sympy.divisor_sigma(n, other - 1)) for n in range(1, count)]
+    return [x - y for x, y in zip(acc, ek, strict=True)]
+
+
+@pytest.mark.parametrize(
+    ("power", "k", "c_k", "modulus", "verdict"),
+    [
+        # E_2^2 - E_4 = 12 D E_2 = -288 sum n sigma(n) q^n (Ramanujan 1916, docs/method.md#derivatives):
+        # true mod 288 = 2^5 * 3^2, where the 2-part needs E_2 mod 32 (E_2(tau) - 32 E_2(32 tau)).
+        (2, 4, 240, 288, "proved"),
+        (2, 4, 240, 576, "refuted"),
+        (2, 4, 240, 864, "refuted"),
+        # E_2^3 = E_6 (mod 432 = 2^4 * 3^3): the q-coefficients are -72 and -504, and the brute force below
+        # finds every coefficient of the difference divisible by 432 (sympy); the 3-part needs E_2 mod 27.
+        (3, 6, -504, 72, "proved"),
+        (3, 6, -504, 432, "proved"),
+        (3, 6, -504, 288, "refuted"),
+        (3, 6, -504, 864, "refuted"),
+    ],
+)
+def test_e2_powers_against_eisenstein(power: int, k: int, c_k: int, modulus: int, verdict: str) -> None:
+    from verifier.api import check_text
+
+    diff = _e2_power_minus(120, power, k, c_k)
+    first = next((n for n, x in enumerate(diff) if x % modulus), None)
+    assert (first is None) == (verdict == "proved")  # brute force with sympy
+    doc = f"%@claim\n\\[ E_2^{power} \\equiv E_{k} \\pmod{{{modulus}}} \\]\n"
+    (c,) = check_text(doc, "t.tex").to_dict()["claims"]
+    assert c["verdict"] == verdict, c["message"]
+    if verdict == "refuted":
+        assert c["first_difference"]["n"] == first
+    elif modulus == 288:
+        two = next(d for d in c["components"] if d["prime"] == 2)
+        assert two["e2_level"] == 32 and two["bound"] == 16  # weight 4, index 48 (docs/method.md#sturm-bound)

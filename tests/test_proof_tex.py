@@ -81,7 +81,7 @@ def test_paragraphs_for_progressions_congruences_membership_and_dimension() -> N
     assert "so the two forms are equal by Sturm's theorem \\cite{sturm}, which is \\eqref{eq:p5}" in tex
     assert "of $U_{11}h$ vanish modulo $11$" in tex
     assert "Modulo $7$: $E_2$ is replaced by $E_8$" in tex
-    assert "by the multipliers $E_6$, each congruent to $1$ modulo $7$" in tex
+    assert "by the multipliers $E_6$ (congruent to $1$ modulo $7$)" in tex
     assert "it lies in $S_{2}(\\Gamma_0(11))$ as claimed" in tex
     assert "genus 1, 2 cusps" in tex and "gives 10" in tex
     assert "docs/method.md" not in tex and "(u-operator)" not in tex

@@ -11,6 +11,7 @@ Congruences of progressions ``a(mn+t)`` are the progression kind's.
 
 from __future__ import annotations
 
+import dataclasses
 from typing import Any
 
 from verifier.arith.values import Values
@@ -70,31 +71,41 @@ def prove_modulo(
     from verifier.prove.prover import claim_level
 
     assert claim.modulus is not None
-    level = claim_level(*sides)
+
+    def attempt(left: ir.Side, right: ir.Side, modulus: int) -> tuple[Any, list[Piece], int] | Outcome:
+        level = claim_level(left, right)
+
+        def chars(atom: ir.Atom) -> int:
+            from verifier.forms import registry
+
+            return int(registry.character(atom.key, int(atom.scale), atom.params, level).kernel)
+
+        keys_probe_l, den_l = graded_fraction(left.expr, 1, prover.table, chars)
+        keys_probe_r, den_r = graded_fraction(right.expr, 1, prover.table, chars)
+        if len(den_l) != 1 or len(den_r) != 1:
+            return Outcome("unproven", kind, "congruences between quotients are not proved", method="computation")
+        weights = [(w, j) for (w, j, _) in {**keys_probe_l, **keys_probe_r}]
+        prec = max(needed_precision(weights, modulus, level), 2)
+        for _attempt in range(2):
+            nl, _ = graded_fraction(left.expr, prec, prover.table, chars)
+            nr, _ = graded_fraction(right.expr, prec, prover.table, chars)
+            diff = graded_add(nl, nr, -1)
+            pieces = [Piece(w, j, k, s) for (w, j, k), s in diff.items()]
+            decision = decide_congruence(pieces, modulus, level)
+            # A proof scaled by a denominator (docs/method.md#congruence-denominators) may need more terms.
+            wanted = scaled_precision(decision)
+            if decision.proved or wanted is None or wanted <= prec or wanted > prover.max_terms:
+                break
+            prec = wanted
+        return decision, pieces, level
+
     left, right = sides
-
-    def chars(atom: ir.Atom) -> int:
-        from verifier.forms import registry
-
-        return int(registry.character(atom.key, int(atom.scale), atom.params, level).kernel)
-
-    keys_probe_l, den_l = graded_fraction(left.expr, 1, prover.table, chars)
-    keys_probe_r, den_r = graded_fraction(right.expr, 1, prover.table, chars)
-    if len(den_l) != 1 or len(den_r) != 1:
-        return Outcome("unproven", kind, "congruences between quotients are not proved", method="computation")
-    weights = [(w, j) for (w, j, _) in {**keys_probe_l, **keys_probe_r}]
-    prec = max(needed_precision(weights, claim.modulus, level), 2)
-    for _attempt in range(2):
-        nl, _ = graded_fraction(left.expr, prec, prover.table, chars)
-        nr, _ = graded_fraction(right.expr, prec, prover.table, chars)
-        diff = graded_add(nl, nr, -1)
-        pieces = [Piece(w, j, k, s) for (w, j, k), s in diff.items()]
-        decision = decide_congruence(pieces, claim.modulus, level)
-        # A proof scaled by a denominator (docs/method.md#congruence-denominators) may need more terms.
-        wanted = scaled_precision(decision)
-        if decision.proved or wanted is None or wanted <= prec or wanted > prover.max_terms:
-            break
-        prec = wanted
+    first = attempt(left, right, claim.modulus)
+    if isinstance(first, Outcome):
+        return first
+    decision, pieces, level = first
+    if not decision.proved and decision.witness is None and decision.undefined is None:
+        decision = _frobenius(decision, sides, attempt)
     if decision.proved:
         check = first_direct_difference(claim, values, max(claim.start, 1), claim.start + CHECK)
         if check is not None:
@@ -126,4 +137,59 @@ def prove_modulo(
         f"{claim.start + CHECK}, but no proof applies: {decision.reason}",
         method="computation",
         components=decision.details,
+    )
+
+
+def _frobenius(decision: Any, sides: tuple[ir.Side, ir.Side], attempt: Any) -> Any:
+    """Retry each unproved prime power p^e with the eta quotients of both sides lifted by Frobenius
+    (docs/method.md#congruence-frobenius): the lifted sides are congruent to the author's modulo p^e
+    coefficientwise, so a proof for them modulo p^e is one for the claim.  Returns ``decision``, with
+    the prime powers proved this way replaced, and proved when every prime power is."""
+    from verifier.forms.registry import NotModular
+    from verifier.prove.frobenius import describe, lift_side
+
+    details = list(decision.details)
+    changed = False
+    for i, detail in enumerate(details):
+        if detail.get("proved"):
+            continue
+        p, e = int(detail["prime"]), int(detail["exponent"])
+        maybe = [lift_side(s.expr, p, e) for s in sides]
+        lifted = [x for x in maybe if x is not None]
+        if len(lifted) != 2 or all(x == s.expr for x, s in zip(lifted, sides, strict=True)):
+            continue
+        new_sides = [dataclasses.replace(s, expr=x) for x, s in zip(lifted, sides, strict=True)]
+        try:
+            result = attempt(new_sides[0], new_sides[1], p**e)
+        except NotModular:  # a lifted side on no known space proves nothing
+            continue
+        if isinstance(result, Outcome):
+            continue
+        sub, _pieces, level = result
+        if not sub.proved:
+            continue
+        (sub_detail,) = sub.details
+        texts = [describe(x) for x in lifted]
+        details[i] = {
+            **sub_detail,
+            "frobenius": {"left": texts[0], "right": texts[1], "level": level},
+            "reason": f"eta quotients lifted by Frobenius (left {texts[0]}, right {texts[1]}, "
+            f"docs/method.md#congruence-frobenius); {sub_detail.get('reason', '')}",
+        }
+        changed = True
+    if not changed:
+        return decision
+    failing = [d for d in details if not d.get("proved")]
+    if failing:
+        reason = "; ".join(f"mod {d['modulus']}: {d.get('reason', 'not proved')}" for d in failing)
+        return dataclasses.replace(decision, reason=reason, details=details)
+    parts = " * ".join(str(d["modulus"]) for d in details)
+    head = f"proved mod {parts}, one prime power at a time (Chinese remainder theorem): "
+    bounds = [int(d["bound"]) for d in details if d.get("bound") is not None]
+    return dataclasses.replace(
+        decision,
+        proved=True,
+        reason=head + "; ".join(f"mod {d['modulus']}: {d['reason']}" for d in details),
+        details=details,
+        bound=max(bounds) if bounds else decision.bound,
     )

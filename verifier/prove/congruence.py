@@ -15,27 +15,28 @@ For each prime power ``p^e || M`` separately (a congruence mod M holds iff it ho
    weight is 0 mod ``p^e`` for every n (docs/method.md#congruences-sturm; ``E_2`` has integer coefficients), so it is
    set aside.  This is how ``691 E_4^3 = 691`` (mod 691) enters the worked example of
    docs/method.md#congruences-sturm.
-2. The remaining pieces are made modular: ``E_2`` becomes ``E_{p+1}`` (p >= 5, e = 1) or 1
-   (mod 8 and mod 3); for any other prime power with ``E_2`` left there is no substitution
-   (docs/method.md#congruence-e2) and nothing is proved.
-3. They must share one character, and their weights must be joined by multipliers
-   ``H = 1 (mod p^e)`` of level one (docs/method.md#congruence-weights): ``E_{p-1}^{p^{e-1}}`` for p >= 5,
-   powers of ``E_4`` and ``E_6`` for p = 2, 3.  Each piece is multiplied up to the least common
-   weight ``K`` reachable that way.
-4. Denominators (docs/method.md#congruence-denominators): with ``p^a`` the largest power of p in a
-   denominator of any ``f_i`` (read through each piece's own Sturm bound, which suffices: if
-   ``p^c f`` (c least) is integral, it is not 0 mod p, so some ``n <= B`` shows ``p^c`` in a
-   denominator), the claim is scaled: ``p^a F = 0 (mod p^(a+e))`` iff ``F = 0 (mod p^e)``.
-   Multipliers are taken = 1 mod ``p^(a+e)``, and E_2 is replaced by a substitute S with
-   ``E_2 = S (mod p^s)`` only in pieces whose own denominator exponent is at most ``s - e``.
-5. ``G = sum_i p^a f_i S^{j_i} H_i`` lies in ``M_K(Gamma_0(N), chi)``, is p-integral, and
-   ``G = p^a F (mod p^(a+e))`` coefficientwise.  ``G = 0 (mod p^e)`` everywhere iff it is so for
-   ``n <= B = floor(K m_0(N) / 12)`` (docs/method.md#congruences-sturm, prime powers in the same space).
+2. Valuations (docs/method.md#congruence-denominators): ``v_i`` is the least p-adic valuation of a
+   coefficient of ``f_i`` (read through each piece's own Sturm bound, which suffices: if
+   ``p^(-v) f`` is p-integral, it is not 0 mod p, so some ``n <= B`` shows valuation v), and
+   ``v_i < e`` for a piece not set aside.  With ``a = max(0, -v_i)`` the claim is scaled:
+   ``p^a F = 0 (mod p^(a+e))`` iff ``F = 0 (mod p^e)``.  The scaled piece ``p^a f_i`` has
+   valuation ``a + v_i``, so its other factors need only be exact mod ``p^(t_i)``, ``t_i = e - v_i``.
+3. A plan (:func:`_plan`) makes the pieces one modular form: ``E_2`` becomes a substitute S with
+   ``E_2 = S (mod p^s)``, ``s >= t_i`` (docs/method.md#congruence-e2): first the level-one ones
+   (``E_{p+1}`` mod p, 1 mod 8 and mod 3, ``E_8`` mod 9, ``E_6`` mod 16), else
+   ``E_2(tau) - p^s E_2(p^s tau)`` of weight 2 on ``Gamma_0(p^s)``, which raises the level to
+   ``lcm(N, p^s)``.  The pieces must share one character, and each is multiplied by a level-one
+   ``H_i = 1 (mod p^(t_i))`` (docs/method.md#congruence-weights): ``E_{p-1}^{p^(t-1)}`` for p >= 5,
+   powers of ``E_4`` and ``E_6`` for p = 2, 3, up to the least common weight ``K`` so reachable.
+4. ``G = sum_i p^a f_i S^{j_i} H_i`` lies in ``M_K(Gamma_0(N'), chi)``, is p-integral, and
+   ``G = p^a F (mod p^(a+e))`` coefficientwise.  ``G = 0 (mod p^(a+e))`` everywhere iff it is so for
+   ``n <= B = floor(K m_0(N') / 12)`` (docs/method.md#congruences-sturm, prime powers in the same space).
    A nonzero residue within ``B`` is therefore a true coefficient of ``F`` that is not 0 mod ``p^e``.
 
 Everything else (half-integral weight, poles, several characters, weights no multiplier
-joins, pieces with ``p`` in a denominator, ``E_2`` modulo higher prime powers) is reported
-as not proved, with the reason.  The known coefficients of ``F`` itself are always scanned:
+joins, an ``E_2`` substitute of too large a level) is reported as not proved, with the reason.
+Eta quotients lifted by Frobenius (docs/method.md#congruence-frobenius) are tried by the caller.
+The known coefficients of ``F`` itself are always scanned:
 a coefficient with a denominator not prime to M means the congruence is undefined, and a
 coefficient not 0 mod M is reported as a witness (a refutation if it lies in the claim's
 range).  As a guard against inconsistent input, ``G`` and ``F`` are also compared mod ``p^e``
@@ -56,6 +57,8 @@ from verifier.forms.eisenstein import eisenstein_constant, eisenstein_series
 from verifier.numbers import QuadraticCharacter
 from verifier.prove.groups import group_name, sturm_bound
 from verifier.series.qseries import QSeries
+
+MAX_E2_LEVEL = 10_000  # the largest p^s for the substitute E_2(tau) - p^s E_2(p^s tau)
 
 
 @dataclass(frozen=True)
@@ -218,19 +221,25 @@ def _substitution(p: int, e: int) -> str | None:
 
 @dataclass(frozen=True)
 class _Substitute:
-    """A level-one form S with ``E_2 = S (mod p^s)``: ``E_k`` (k) or the constant 1 (k = 0).
+    """A modular form S with ``E_2 = S (mod p^s)``: ``E_k`` (k), the constant 1 (k = 0), or
+    ``E_2(tau) - N E_2(N tau)`` (k = 2, ``shift`` = N = p^s, a form on Gamma_0(N)).
 
     docs/method.md#congruence-e2: ``E_{p+1}`` mod p (p >= 5, Kummer); 1 mod 3 and mod 8
     (``E_2 = 1 - 24 sum sigma(n) q^n``); ``E_8`` mod 9 and ``E_6`` mod 16, because
     ``-24 = 480 = 3 (mod 9)`` with ``sigma_7(n) = sigma_1(n) (mod 3)``, and ``-24 = -504 = 8 (mod 16)``
-    with ``sigma_5(n) = sigma_1(n) (mod 2)`` (Fermat's little theorem, divisor by divisor).
+    with ``sigma_5(n) = sigma_1(n) (mod 2)`` (Fermat's little theorem, divisor by divisor).  For every
+    p^s, ``E_2(tau) - p^s E_2(p^s tau)`` differs from E_2 by p^s times a series with integer
+    coefficients, and it lies in M_2(Gamma_0(p^s)) (docs/method.md#e2).
     """
 
     k: int
     s: int
+    shift: int = 1
 
     @property
     def name(self) -> str:
+        if self.shift > 1:
+            return f"E_2(tau) - {self.shift} E_2({self.shift} tau)"
         return "1" if self.k == 0 else f"E_{self.k}"
 
 
@@ -528,7 +537,7 @@ def _scan(items: list[_Item], m: int) -> tuple[dict[str, Any] | None, dict[str, 
 def _decide_prime_power(
     items: list[_Item], p: int, e: int, level: int, f_res: list[int | None], f_prec: int
 ) -> _PrimePowerResult:
-    """Steps 1-5 of the module docstring for one prime power."""
+    """Steps 1-4 of the module docstring for one prime power."""
     q = p**e
     group = group_name(level)
     detail: dict[str, Any] = {"prime": p, "exponent": e, "modulus": q, "proved": False}
@@ -566,37 +575,26 @@ def _decide_prime_power(
         detail["reason"] = why
         return _PrimePowerResult(detail, True, f"mod {q}: {why}", bound=own_bound)
 
-    # Step 2: denominators and E_2 (docs/method.md#congruence-denominators).  a_i is the
-    # largest power of p in a denominator of f_i; it is reached within f_i's own Sturm bound
-    # (if p^c f_i is integral and not 0 mod p, Sturm's theorem gives an n <= B_i where it is
-    # not 0 mod p).  The claim is scaled by p^a (a = max a_i): p^a F = 0 (mod p^(a+e)) iff
-    # F = 0 (mod p^e) for p-integral F.  A piece f E_2^j may have E_2 replaced by S with
-    # E_2 = S (mod p^s) only if p^a f (E_2^j - S^j) = 0 (mod p^(a+e)), i.e. a_i <= s - e.
-    denominators: dict[int, int] = {}
+    # Step 2: valuations (docs/method.md#congruence-denominators).  v_i is the least p-adic
+    # valuation of a coefficient of f_i; it is reached within f_i's own Sturm bound (if
+    # p^(-v) f_i is p-integral and not 0 mod p, Sturm's theorem gives an n <= B_i where it is
+    # not 0 mod p), and v_i < e because the piece is not 0 mod p^e.  The claim is scaled by p^a,
+    # a = max(0, -v_i): p^a F = 0 (mod p^(a+e)) iff F = 0 (mod p^e) for p-integral F.  The
+    # scaled piece p^a f_i has valuation a + v_i, so it tolerates an error = 0 mod p^(t_i) in its
+    # other factors, t_i = e - v_i: E_2 may be replaced there by S with E_2 = S (mod p^s), s >= t_i,
+    # and its multiplier need only be = 1 (mod p^(t_i)).
+    valuations: dict[int, int] = {}
     for it in active:
         b = sturm_bound(it.wf, level)
         vals = [_valuation(it.series[n], p) for n in range(b + 1) if it.series[n] != 0]
-        denominators[it.index] = max(0, -min(vals)) if vals else 0
-    a = max(denominators.values())
-    with_e2 = [it for it in active if it.j > 0]
-    choice: _Substitute | None = None
-    if with_e2:
-        worst = max(denominators[it.index] for it in with_e2)
-        choice = next((c for c in _substitutes(p) if worst <= c.s - e), None)
-        if choice is None:
-            labels = ", ".join(it.label() for it in with_e2)
-            why = f"has {p}^{worst} in a denominator, " if worst else "contains E_2 and "
-            return fail(
-                f"{labels} {why}is not 0 mod {q} by itself; no modular form is known to be congruent to E_2 "
-                f"to the {p}-adic precision this needs (docs/method.md#congruence-e2: E_{{p+1}} mod p, 1 mod 3 and "
-                "mod 8, E_8 mod 9, E_6 mod 16)"
-            )
-        detail["e2_replaced_by"] = choice.name
+        valuations[it.index] = min(vals) if vals else e
+    a = max(0, max(-v for v in valuations.values()))
+    tolerance = {it.index: e - valuations[it.index] for it in active}
     if a:
         detail["scaled_by"] = p**a
     q_scaled = p ** (a + e)
 
-    # Step 3: one character, joinable weights.
+    # Step 3: one character, then a plan: the E_2 substitute and joinable weights.
     kernels = sorted({it.kernel for it in active})
     if len(kernels) > 1:
         names = ", ".join(QuadraticCharacter(k).name for k in kernels)
@@ -604,24 +602,20 @@ def _decide_prime_power(
             f"the pieces not 0 mod {q} carry different characters ({names}); no single space contains them, "
             "and a mismatch between components does not refute a congruence (docs/method.md#congruence-e2)"
         )
-    gens = _generators(p, a + e)
-    effective: list[int] = [it.wf + (it.j * choice.k if choice is not None else 0) for it in active]
-    k_common = _common_weight(effective, gens)
-    multipliers_text = " and ".join(f"{g.name()} (weight {g.weight})" for g in gens)
-    if k_common is None:
-        ws = ", ".join(str(k) for k in sorted(set(effective)))
-        gcd = math.gcd(*(g.weight for g in gens))
-        return fail(
-            f"the pieces not 0 mod {q} have weights {ws}, which differ by amounts not divisible by {gcd}; "
-            f"the multipliers congruent to 1 mod {q_scaled} are {multipliers_text} "
-            "(docs/method.md#congruence-weights), so no common weight is reachable"
-        )
-    big_b = sturm_bound(k_common, level)
+    plan, why_not = _plan(active, p, level, tolerance)
+    if plan is None:
+        return fail(why_not)
+    if plan.substitutes:
+        detail["e2_replaced_by"] = plan.e2_name()
+        detail["e2_modulus"] = p ** min(sub.s for sub in plan.substitutes.values())
+    k_common, proof_level = plan.weight, plan.level
+    big_b = sturm_bound(k_common, proof_level)
     stop = big_b + 1
     for it in active:
         if it.series.prec < stop:
             return fail(
-                f"{it.label()} is known only below q^{it.series.prec}; weight {k_common} needs a_0..a_{big_b}",
+                f"{it.label()} is known only below q^{it.series.prec}; weight {k_common} on "
+                f"{group_name(proof_level)} needs a_0..a_{big_b}",
                 needed_precision=stop,
                 weight=k_common,
                 bound=big_b,
@@ -641,37 +635,41 @@ def _decide_prime_power(
         residues.append([int(r) for r in res if r is not None])
     q_true, q = q, q_scaled  # from here on q is the scaled modulus p^(a+e)
 
-    # Step 5: G = sum f_i E_{p+1}^{j_i} H_i mod q, through q^B.
+    # Step 5: G = sum p^a f_i S_i^{j_i} H_i mod q, through q^B.
     ctx: Any = fmpz_mod_poly_ctx(q)
-    gen_series = [ctx(_eisenstein_mod(g.k, stop, q)).pow_trunc(g.power, stop) for g in gens]
-    for g, s in zip(gens, gen_series, strict=True):
-        # Defence in depth: the multipliers must be 1 mod q through B (they are, by docs/method.md#congruence-weights).
-        if any(int(c) != (1 if n == 0 else 0) for n, c in enumerate(_padded(s, stop))):
-            return _inconsistent(detail, q, f"the multiplier {g.name()} is not 1 mod {q}")
-    e2_sub = None
-    if choice is not None and choice.k:
-        # E_k is p-integral and = E_2 mod p^s (docs/method.md#congruence-e2); checked through B anyway.
-        ps = p**choice.s
-        try:
-            e2_sub = ctx(_eisenstein_mod(choice.k, stop, q))
-            check = _eisenstein_mod(choice.k, stop, ps)
-        except ArithmeticError:
-            return _inconsistent(detail, q, f"E_{choice.k} is not {p}-integral")
-        if check != _eisenstein_mod(2, stop, ps):
-            return _inconsistent(detail, q, f"E_{choice.k} is not congruent to E_2 mod {ps}")
+    gen_cache: dict[tuple[int, int], Any] = {}
+
+    def generator(g: _Generator) -> Any:
+        if (g.k, g.power) not in gen_cache:
+            gen_cache[(g.k, g.power)] = ctx(_eisenstein_mod(g.k, stop, q)).pow_trunc(g.power, stop)
+        return gen_cache[(g.k, g.power)]
+
     total = ctx([0])
     used: list[dict[str, Any]] = []
-    for it, k, coeffs in zip(active, effective, residues, strict=True):
+    for it, coeffs in zip(active, residues, strict=True):
+        t_i = tolerance[it.index]
         term = ctx(coeffs)
-        if it.j and e2_sub is not None:
-            term = term.mul_low(e2_sub.pow_trunc(it.j, stop), stop)
-        exps = _decompose(k_common - k, gens)
+        sub = plan.substitutes.get(it.index)
+        if it.j and sub is not None and sub.k:
+            s_series = _substitute_mod(sub, stop, q)
+            # Defence in depth: S = E_2 (mod p^s) through B (docs/method.md#congruence-e2).
+            ps = p**sub.s
+            if [c % ps for c in _padded(ctx(s_series), stop)] != _eisenstein_mod(2, stop, ps):
+                return _inconsistent(detail, q, f"{sub.name} is not congruent to E_2 mod {ps}")
+            term = term.mul_low(ctx(s_series).pow_trunc(it.j, stop), stop)
+        gens = plan.generators[it.index]
+        exps = _decompose(k_common - plan.weights[it.index], gens)
         assert exps is not None
         factors: list[str] = []
-        for g, s, a in zip(gens, gen_series, exps, strict=True):
-            if a:
-                term = term.mul_low(s.pow_trunc(a, stop), stop)
-                factors.append(g.name(a))
+        for g, n_g in zip(gens, exps, strict=True):
+            if n_g:
+                s = generator(g)
+                # Defence in depth: the multiplier is 1 mod p^(t_i) through B (docs/method.md#congruence-weights).
+                pt = p**t_i
+                if any(int(c) % pt != (1 % pt if n == 0 else 0) for n, c in enumerate(_padded(s, stop))):
+                    return _inconsistent(detail, q, f"the multiplier {g.name()} is not 1 mod {pt}")
+                term = term.mul_low(s.pow_trunc(n_g, stop), stop)
+                factors.append(g.name(n_g))
         total = total + term
         used.append(
             {
@@ -679,12 +677,16 @@ def _decide_prime_power(
                 "weight": _frac_str(it.weight),
                 "e2_power": it.j,
                 "modular_weight": it.wf,
-                "weight_after_substitution": k,
+                "valuation": valuations[it.index],
+                "weight_after_substitution": plan.weights[it.index],
                 "multiplier": " * ".join(factors) or "1",
+                "multiplier_modulus": p**t_i,
             }
         )
     g_res = _padded(total, stop)
-    detail.update(multipliers=used, weight=k_common, bound=big_b, coefficients_compared=stop, level=level)
+    detail.update(multipliers=used, weight=k_common, bound=big_b, coefficients_compared=stop, level=proof_level)
+    if proof_level != level:
+        detail["e2_level"] = proof_level
 
     # Guard: G = p^a F (mod p^(a+e)) coefficientwise; compare where F is known.
     scale = q // q_true
@@ -698,31 +700,138 @@ def _decide_prime_power(
             )
 
     sub_text = ""
-    if choice is not None and choice.k:
-        sub_text = f"E_2 -> E_{choice.k} (= E_2 mod {p**choice.s}, docs/method.md#congruence-e2); "
-    elif choice is not None:
-        sub_text = "E_2 -> 1 (E_2 = 1 mod 24, docs/method.md#congruence-e2); "
+    if plan.substitutes:
+        sub_text = f"E_2 -> {plan.e2_name()} (docs/method.md#congruence-e2); "
     if scale > 1:
         sub_text = f"scaled by {scale} and proved mod {q} (docs/method.md#congruence-denominators); " + sub_text
     mult = sorted({u["multiplier"] for u in used if u["multiplier"] != "1"})
-    mult_text = f"multipliers {', '.join(mult)} (= 1 mod {q}, docs/method.md#congruence-weights); " if mult else ""
-    vanish_text = f"{len(vanishing)} piece(s) 0 mod {q} by themselves; " if vanishing else ""
+    mult_text = (
+        f"multipliers {', '.join(mult)} (each = 1 modulo the precision its piece needs, "
+        "docs/method.md#congruence-weights); "
+        if mult
+        else ""
+    )
+    vanish_text = f"{len(vanishing)} piece(s) 0 mod {q_true} by themselves; " if vanishing else ""
     bad_n = next((n for n, r in enumerate(g_res) if r != 0), None)
     q_scaled, q = q, q_true  # messages speak of the claim's modulus
+    where = group_name(proof_level)
     if bad_n is not None:
         detail["first_nonzero"] = bad_n
         return fail(
-            f"{vanish_text}{sub_text}{mult_text}the weight-{k_common} form on {group} has coefficient of q^{bad_n} "
+            f"{vanish_text}{sub_text}{mult_text}the weight-{k_common} form on {where} has coefficient of q^{bad_n} "
             f"= {g_res[bad_n]} mod {q_scaled}, not 0 (so left - right is not 0 mod {q} there)",
             weight=k_common,
             bound=big_b,
         )
     why = (
-        f"{vanish_text}{sub_text}{mult_text}weight {k_common} on {group}: a_0..a_{big_b} = 0 mod {q_scaled} "
+        f"{vanish_text}{sub_text}{mult_text}weight {k_common} on {where}: a_0..a_{big_b} = 0 mod {q_scaled} "
         f"(Sturm bound B = {big_b}, docs/method.md#congruences-sturm)"
     )
     detail.update(proved=True, reason=why)
     return _PrimePowerResult(detail, True, f"mod {q}: {why}", bound=big_b)
+
+
+@dataclass
+class _Plan:
+    """How the pieces not 0 mod p^e are made into one modular form (step 3 of the module docstring).
+
+    ``substitutes`` maps a piece with E_2 to its substitute; ``weights`` the piece's weight after the
+    substitution; ``generators`` the multipliers allowed for the piece (= 1 modulo the precision it
+    needs); ``weight`` the common weight K and ``level`` the level of the resulting form.
+    """
+
+    substitutes: dict[int, _Substitute]
+    weights: dict[int, int]
+    generators: dict[int, list[_Generator]]
+    weight: int
+    level: int
+
+    def e2_name(self) -> str:
+        return ", ".join(sorted({s.name for s in self.substitutes.values()}))
+
+
+def _plan(active: list[_Item], p: int, level: int, tolerance: dict[int, int]) -> tuple[_Plan | None, str]:
+    """The first plan that joins the pieces: level-one substitutes for E_2, else ``E_2 - p^s E_2(p^s tau)``.
+
+    Returns (plan, "") or (None, why no plan exists).
+    """
+    gens = {it.index: _generators(p, tolerance[it.index]) for it in active}
+    with_e2 = [it for it in active if it.j > 0]
+    reasons: list[str] = []
+    options: list[tuple[dict[int, _Substitute], int]] = []
+    level_one: dict[int, _Substitute] = {}
+    for it in with_e2:
+        c = next((c for c in _substitutes(p) if c.s >= tolerance[it.index]), None)
+        if c is None:
+            break
+        level_one[it.index] = c
+    else:
+        options.append((level_one, level))
+    if with_e2:
+        if len(level_one) < len(with_e2):
+            reasons.append(
+                f"no level-one form is congruent to E_2 to the {p}-adic precision "
+                f"{p}^{max(tolerance[it.index] for it in with_e2)} some piece needs "
+                "(E_{p+1} mod p, 1 mod 3 and mod 8, E_8 mod 9, E_6 mod 16)"
+            )
+        s = max(tolerance[it.index] for it in with_e2)
+        if p**s <= MAX_E2_LEVEL:
+            sub = _Substitute(2, s, p**s)
+            options.append(({it.index: sub for it in with_e2}, math.lcm(level, p**s)))
+        else:
+            reasons.append(f"E_2 - {p**s} E_2({p**s} tau) would need level {p**s}, more than {MAX_E2_LEVEL}")
+    for subs, lev in options:
+        weights = {it.index: it.wf + (it.j * subs[it.index].k if it.j else 0) for it in active}
+        k_common = _common_weight_per_piece(weights, gens)
+        if k_common is not None:
+            return _Plan(subs, weights, gens, k_common, lev), ""
+        ws = ", ".join(str(k) for k in sorted(set(weights.values())))
+        where = " and ".join(sorted({s.name for s in subs.values()})) or "no substitution"
+        reasons.append(
+            f"with {where} the pieces have weights {ws}, and no product of the multipliers = 1 modulo the precision "
+            "each piece needs joins them, so no common weight is reachable (docs/method.md#congruence-weights)"
+        )
+    return None, "; ".join(reasons) + " (docs/method.md#congruence-e2)"
+
+
+def _common_weight_per_piece(weights: dict[int, int], gens: dict[int, list[_Generator]]) -> int | None:
+    """The least K >= every weight with each ``K - k_i`` a sum of the weights of piece i's multipliers."""
+    if not weights:
+        return None
+    steps = {i: math.gcd(*(g.weight for g in gens[i])) for i in weights}
+    if any((weights[i] - weights[j]) % math.gcd(steps[i], steps[j]) for i in weights for j in weights):
+        return None
+    top = max(weights.values())
+    # Beyond k_i + (product of piece i's multiplier weights) every multiple of its step is reachable,
+    # and the admissible K form one class modulo the lcm of the steps.
+    limit = max(weights[i] + math.prod(g.weight for g in gens[i]) for i in weights) + math.lcm(*steps.values())
+    start = next(
+        (
+            k
+            for k in range(top, top + math.lcm(*steps.values()) + 1)
+            if all((k - weights[i]) % steps[i] == 0 for i in weights)
+        ),
+        None,
+    )
+    if start is None:
+        return None
+    for cand in range(start, max(limit, start) + 1, math.lcm(*steps.values())):
+        if all(_decompose(cand - weights[i], gens[i]) is not None for i in weights):
+            return cand
+    return None  # pragma: no cover - the Frobenius bound guarantees a hit
+
+
+def _substitute_mod(sub: _Substitute, stop: int, m: int) -> list[int]:
+    """The substitute S mod m through ``q^(stop-1)``."""
+    if sub.shift == 1:
+        return _eisenstein_mod(sub.k, stop, m)
+    # E_2(tau) - N E_2(N tau), N = sub.shift (docs/method.md#e2: a form of weight 2 on Gamma_0(N)).
+    out = _eisenstein_mod(2, stop, m)
+    base = list(out)
+    n_shift = sub.shift
+    for n in range(0, stop, n_shift):
+        out[n] = (out[n] - n_shift * base[n // n_shift]) % m
+    return out
 
 
 def _padded(poly: Any, stop: int) -> list[int]:

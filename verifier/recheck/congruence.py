@@ -7,17 +7,21 @@ independently of the certificate's own arithmetic:
 1. a piece whose coefficients through the Sturm bound of its own weight are p-integral and
    0 mod p^e is 0 mod p^e everywhere (Sturm's theorem, J. Sturm, LNM 1240, 1987, which
    holds modulo prime powers; a p-adic denominator would show within that bound too);
-2. of the other pieces, p^a is the largest p-power in a denominator within each piece's own
-   bound; E_2 is replaced by E_{p+1} (p >= 5, E_2 = E_{p+1} mod p: J.-P. Serre, "Congruences
-   et formes modulaires", Sem. Bourbaki 416, 1972) or by 1 (E_2 = 1 - 24 sum sigma(n) q^n,
-   so E_2 = 1 mod 8 and mod 3), only where that substitution is exact enough;
-3. each piece is multiplied by a level-one form H = 1 (mod p^(a+e)) up to the certificate's
+2. of the other pieces, v_i is the least p-adic valuation of a coefficient of piece i within its
+   own bound, a = max(0, -v_i), and the scaled piece p^a f_i only needs its other factors exact
+   mod p^(e - v_i); E_2 is replaced by E_{p+1} (p >= 5, E_2 = E_{p+1} mod p: J.-P. Serre,
+   "Congruences et formes modulaires", Sem. Bourbaki 416, 1972) or by 1 (E_2 = 1 - 24 sum
+   sigma(n) q^n, so E_2 = 1 mod 8 and mod 3), only where that substitution is exact enough, or,
+   when the certificate names a proof level N p^s, by E_2(tau) - p^s E_2(p^s tau), a form of
+   weight 2 on Gamma_0(p^s) (Diamond-Shurman, GTM 228, Section 1.2) equal to E_2 mod p^s;
+3. each piece is multiplied by a level-one form H = 1 (mod p^(e - v_i)) up to the certificate's
    common weight K: powers of E_{p-1} (p >= 5; E_{p-1} = 1 mod p by von Staudt-Clausen), of
    E_4 = 1 + 240(...) and E_6 = 1 - 504(...) (p = 2, 3), and H = 1 (mod p^b) gives
    H^p = 1 (mod p^(b+1)) (common practice);
-4. G = sum p^a f_i S^j_i H_i lies in M_K(Gamma_0(N), chi), and it must be 0 mod p^(a+e)
-   through floor(K [SL_2(Z) : Gamma_0(N)] / 12).
+4. G = sum p^a f_i S^j_i H_i lies in M_K(Gamma_0(N'), chi) (N' the proof level), and it must be
+   0 mod p^(a+e) through floor(K [SL_2(Z) : Gamma_0(N')] / 12).
 
+A proof after lifting eta quotients by Frobenius is not re-checked here.
 Multipliers are this module's own choice; a common weight they cannot reach leaves the
 certificate not re-checked (never failed).
 """
@@ -130,7 +134,8 @@ def recheck_congruence(claim: Any, cert: dict[str, Any], reasons: list[str], not
         need = max(need, arith.sturm_bound(w, level) + 1)
     for d in stated.values():
         if d.get("weight") is not None:
-            need = max(need, arith.sturm_bound(Fraction(int(d["weight"])), level) + 1)
+            at = int(d.get("e2_level", level))
+            need = max(need, arith.sturm_bound(Fraction(int(d["weight"])), at) + 1)
     need = max(need, DIRECT_SCAN)
     ev = claim.evaluate(need)
     (nl, _), (nr, _) = (ev.side(t) for t in claim.trees)
@@ -181,44 +186,58 @@ def _prime_power(
         if detail.get("bound") is not None and int(detail["bound"]) != own:
             reasons.append(f"mod {q}: bound: certificate {detail['bound']}, recomputed {own}")
         return own
+    if detail.get("frobenius") is not None:
+        raise Unsupported(f"mod {q}: a proof after lifting eta quotients by Frobenius")
     if len({c for _, _, c, _, _ in active}) > 1:
         reasons.append(f"mod {q}: the pieces not 0 mod {q} by themselves carry different characters")
         return 0
-    dens = []
+    # v_i: the least p-adic valuation of a coefficient of piece i, read within its own bound.
+    vals_min = []
     for _, _, _, s, b in active:
         vals = [_valuation(s[n], p) for n in range(b + 1) if s[n] != 0]
-        dens.append(max(0, -min(vals)) if vals else 0)
-    a = max(dens)
-    t = a + e
-    mod = p**t
+        vals_min.append(min(vals) if vals else e)
+    a = max(0, max(-v for v in vals_min))
+    mod = p ** (a + e)
     if detail.get("weight") is None:
         reasons.append(f"mod {q}: the certificate gives no common weight for the pieces not 0 mod {q}")
         return 0
     big_k = int(detail["weight"])
-    big_b = arith.sturm_bound(Fraction(big_k), level)
+    # The level of the proof: the claim's, or a multiple p^s of it when E_2 was replaced by
+    # E_2(tau) - p^s E_2(p^s tau), a form of weight 2 on Gamma_0(p^s) (Diamond-Shurman, Section 1.2).
+    proof_level = int(detail.get("e2_level", level))
+    shift = proof_level // math.gcd(proof_level, level)
+    shift_exp = 0
+    while shift % p == 0:
+        shift //= p
+        shift_exp += 1
+    if shift != 1 or proof_level % level:
+        reasons.append(
+            f"mod {q}: the proof's level {proof_level} is not the claim's level {level} times a power of {p}"
+        )
+        return 0
+    big_b = arith.sturm_bound(Fraction(big_k), proof_level)
     if int(detail.get("bound", -1)) != big_b:
         reasons.append(f"mod {q}: bound of weight {big_k}: certificate {detail.get('bound')}, recomputed {big_b}")
     stop = big_b + 1
-    # E_2 substitutes S = E_2 (mod p^s): (weight of S, s).
-    sub = (p + 1, 1) if p >= 5 else ((0, 3) if p == 2 else (0, 1))
-    gens = _multipliers(p, t)
-    gen_res = []
-    for k, power in gens:
-        base = _residues(eisenstein(k, stop), stop, mod, f"E_{k}")
-        res = [1 % mod] + [0] * (stop - 1)
-        for _ in range(power if stop > 1 else 0):
-            res = _mul_mod(res, base, mod)
-        if res != [1 % mod] + [0] * (stop - 1):
-            reasons.append(f"mod {q}: E_{k}^{power} is not 1 mod {mod} through q^{big_b}")
-            return big_b
-        gen_res.append((base, power))
-    s_res = [1 % mod] + [0] * (stop - 1)
-    if sub[0]:
-        s_res = _residues(eisenstein(sub[0], stop), stop, mod, f"E_{sub[0]}")
+    # E_2 substitutes S = E_2 (mod p^s): (weight of S, s, series mod p^(a+e)).
+    if proof_level != level:
+        n_shift = p ** max(shift_exp, 0)
+        e2 = eisenstein(2, stop)
+        s_series = [e2[n] - (n_shift * e2[n // n_shift] if n % n_shift == 0 else 0) for n in range(stop)]
+        sub = (2, shift_exp, [_residue(x, mod) or 0 for x in s_series])
+    else:
+        k_s, s_exact = (p + 1, 1) if p >= 5 else ((0, 3) if p == 2 else (0, 1))
+        s_res = [1 % mod] + [0] * (stop - 1)
+        if k_s:
+            s_res = _residues(eisenstein(k_s, stop), stop, mod, f"E_{k_s}")
+        sub = (k_s, s_exact, s_res)
+    powers: dict[tuple[int, int, int], list[int]] = {}
     total = [0] * stop
-    for (w, j, _, s, _), a_i in zip(active, dens, strict=True):
-        if j and a_i > sub[1] - e:
+    for (w, j, _, s, _), v_i in zip(active, vals_min, strict=True):
+        t_i = e - v_i  # the precision the factors of the scaled piece p^a f_i need
+        if j and t_i > sub[1]:
             raise Unsupported(f"mod {q}: E_2 is known only mod {p}^{sub[1]} here, too little for this piece")
+        gens = _multipliers(p, t_i)
         k_i = int(w) + j * sub[0]
         exps = _combination(big_k - k_i, gens)
         if exps is None:
@@ -231,10 +250,22 @@ def _prime_power(
                 return big_b
             term.append(r)
         for _ in range(j):
-            term = _mul_mod(term, s_res, mod)
-        for (base, power), n_g in zip(gen_res, exps, strict=True):
-            for _ in range(n_g * power):
-                term = _mul_mod(term, base, mod)
+            term = _mul_mod(term, sub[2], mod)
+        for (k, power), n_g in zip(gens, exps, strict=True):
+            if not n_g:
+                continue
+            if (k, power, t_i) not in powers:
+                base = _residues(eisenstein(k, stop), stop, mod, f"E_{k}")
+                res = [1 % mod] + [0] * (stop - 1)
+                for _ in range(power if stop > 1 else 0):
+                    res = _mul_mod(res, base, mod)
+                pt = p**t_i
+                if [x % pt for x in res] != [1 % pt] + [0] * (stop - 1):
+                    reasons.append(f"mod {q}: E_{k}^{power} is not 1 mod {pt} through q^{big_b}")
+                    return big_b
+                powers[(k, power, t_i)] = res
+            for _ in range(n_g):
+                term = _mul_mod(term, powers[(k, power, t_i)], mod)
         total = [(x + y) % mod for x, y in zip(total, term, strict=True)]
     bad = next((n for n, r in enumerate(total) if r), None)
     if bad is not None:

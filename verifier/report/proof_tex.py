@@ -43,6 +43,8 @@ REFERENCES: dict[str, str] = {
     "Springer, 1973, 1--55.",
     "diamond-shurman": "F.~Diamond and J.~Shurman, \\emph{A First Course in Modular Forms}, Graduate Texts in "
     "Math.~228, Springer, 2005, Ch.~3.",
+    "diamond-shurman-e2": "F.~Diamond and J.~Shurman, \\emph{A First Course in Modular Forms}, Graduate Texts in "
+    "Math.~228, Springer, 2005, Section~1.2 ($E_2(\\tau) - NE_2(N\\tau) \\in M_2(\\Gamma_0(N))$).",
 }
 
 _SPECIAL = {
@@ -312,6 +314,24 @@ def _progression_paragraph(claim: ClaimResult, prog: dict[str, Any], cite: _Cite
     return text
 
 
+def _side_tex(text: str) -> str:
+    """A lifted side (``eta(tau)^24``, ``Delta``) in LaTeX; anything else as escaped text."""
+    if text == "Delta":
+        return "\\Delta"
+    if text and all(_ETA_FACTOR.fullmatch(t) for t in text.split(" ")):
+        return _eta_tex(text)
+    return _math(text)
+
+
+def _exponent(n: int, p: int) -> int:
+    """The exponent of the prime p in n."""
+    e = 0
+    while n % p == 0:
+        n //= p
+        e += 1
+    return e
+
+
 def _congruence_paragraph(claim: ClaimResult, cert: dict[str, Any], cite: _Cites) -> str:
     ref = _ref(claim)
     level = int(cert.get("level", 1))
@@ -322,26 +342,65 @@ def _congruence_paragraph(claim: ClaimResult, cert: dict[str, Any], cite: _Cites
         f"the modulus ${cert['modulus']}$ at a time, and the Chinese remainder theorem joins them."
     ]
     for pp in cert["prime_powers"]:
-        modulus = f"{pp['prime']}^{{{pp['exponent']}}}" if int(pp["exponent"]) > 1 else str(pp["prime"])
+        p = int(pp["prime"])
+        modulus = f"{p}^{{{pp['exponent']}}}" if int(pp["exponent"]) > 1 else str(p)
+        scale = int(pp.get("scaled_by", 1))
+        working = modulus if scale == 1 else f"{p}^{{{int(pp['exponent']) + _exponent(scale, p)}}}"
         steps = []
-        if pp.get("e2_replaced_by"):
+        lift = pp.get("frobenius")
+        if isinstance(lift, dict):
             steps.append(
-                f"$E_2$ is replaced by ${_math(str(pp['e2_replaced_by']))}$, which is congruent to it modulo "
-                f"${pp['prime']}$ {cite('serre-padic')}"
-            )
-        multipliers = sorted({str(x["multiplier"]) for x in pp.get("multipliers", []) if str(x["multiplier"]) != "1"})
-        if multipliers:
-            steps.append(
-                f"the pieces are brought to weight {pp.get('weight')} by the multipliers "
-                f"{', '.join('$' + _math(x) + '$' for x in multipliers)}, each congruent to $1$ modulo ${modulus}$ "
+                "the eta quotients of both sides are first replaced by the ones congruent to them modulo "
+                f"${modulus}$ coefficientwise, $\\eta({p}\\delta\\tau)^{{{p}^{{e-1}}u}} \\equiv "
+                f"\\eta(\\delta\\tau)^{{{p}^e u}}$ (as $(1-x)^{{{p}}} \\equiv 1-x^{{{p}}}$ modulo ${p}$), giving "
+                f"${_side_tex(str(lift.get('left', '')))}$ and ${_side_tex(str(lift.get('right', '')))}$ "
                 f"{cite('swinnerton-dyer')}"
             )
-        if pp.get("vanishing_pieces") and not multipliers:
+        if scale > 1:
+            steps.append(
+                f"the difference is multiplied by ${scale}$, the largest power of ${p}$ in a denominator of its "
+                f"pieces, and compared modulo ${working}$"
+            )
+        if pp.get("e2_replaced_by"):
+            e2_mod = pp.get("e2_modulus", p)
+            where = ""
+            if pp.get("e2_level") is not None:
+                where = (
+                    f" (it differs from $E_2$ by ${e2_mod}$ times a series with integer coefficients), a modular "
+                    f"form of weight $2$ on $\\Gamma_0({pp['e2_level']})$ {cite('diamond-shurman-e2')}"
+                )
+            name = _math(str(pp["e2_replaced_by"]))
+            if pp.get("e2_level") is not None:
+                name = name.replace("tau", "\\tau")
+            source = "" if where else f" {cite('serre-padic')}"
+            steps.append(
+                f"$E_2$ is replaced by ${name}$, which is congruent to it modulo ${e2_mod}${source}{where}; "
+                f"a piece of ${p}$-adic valuation $v$ needs this only modulo ${p}^{{{pp['exponent']}-v}}$"
+            )
+        multipliers = sorted(
+            {
+                (str(x["multiplier"]), int(x.get("multiplier_modulus", 0)))
+                for x in pp.get("multipliers", [])
+                if str(x["multiplier"]) != "1"
+            }
+        )
+        if multipliers:
+            listed = ", ".join(
+                f"${_math(m)}$" + (f" (congruent to $1$ modulo ${t}$)" if t else "") for m, t in multipliers
+            )
+            steps.append(
+                f"the pieces are brought to weight {pp.get('weight')} by the multipliers {listed}, each to the "
+                f"precision the piece it multiplies needs {cite('swinnerton-dyer')}"
+            )
+        if pp.get("vanishing_pieces") and not pp.get("multipliers"):
             steps.append("every piece is congruent to $0$ modulo $" + modulus + "$ through its own Sturm bound")
         else:
+            where = ""
+            if pp.get("level") is not None and int(pp["level"]) != level:
+                where = f" (a form on ${_group(int(pp['level']))}$)"
             steps.append(
-                f"the coefficients of $q^0,\\dots,q^{{{pp.get('bound')}}}$ of the result vanish modulo ${modulus}$ "
-                f"({pp.get('coefficients_compared')} compared exactly)"
+                f"the coefficients of $q^0,\\dots,q^{{{pp.get('bound')}}}$ of the result{where} vanish modulo "
+                f"${working}$ ({pp.get('coefficients_compared')} compared exactly)"
             )
         parts.append(f"Modulo ${modulus}$: " + "; ".join(steps) + ".")
     parts.append(f"By Sturm's theorem modulo prime powers {cite('sturm')}, {ref} holds for every $n$.")
