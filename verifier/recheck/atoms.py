@@ -6,6 +6,10 @@
   partition recurrence that theorem gives;
 * eta quotients prod eta(d tau)^r = q^(sum d r / 24) prod_d (prod_n (1 - q^(dn)))^r;
 * Delta = eta^24;
+* E_k^{psi,phi} = delta(psi) L(1-k, phi) [+ delta(phi) L(0, psi) for k = 1] + 2 sum
+  sigma^{psi,phi}_{k-1}(n) q^n with L(1-k, phi) = -B_{k,phi}/k from Bernoulli polynomials, and
+  the divisor sum over the divisors read off the factorisation of n (Diamond-Shurman, A First
+  Course in Modular Forms, §4.5-4.8);
 * theta series of an even lattice with Gram matrix A: sum_x q^(x^T A x / 2), counted over
   the integer points of a box that contains every x with x^T A x / 2 below the precision.
 """
@@ -15,7 +19,7 @@ from __future__ import annotations
 import math
 from fractions import Fraction
 
-from verifier.recheck.arith import bernoulli, inverse_and_det, sigma
+from verifier.recheck.arith import bernoulli, character_value, conductor, factor, generalised_bernoulli, inverse_and_det, sigma
 from verifier.recheck.series import Series
 
 MAX_LATTICE_POINTS = 2_000_000
@@ -30,6 +34,39 @@ def eisenstein(k: int, prec: int) -> Series:
     factor = Fraction(-2 * k) / bernoulli(k)
     coeffs = [Fraction(1)] + [factor * sigma(k - 1, n) for n in range(1, prec)]
     return Series(0, coeffs, prec)
+
+
+def character_parity_ok(k: int, psi: int, phi: int) -> bool:
+    """Whether E_k^{psi,phi} is a modular form: k >= 1, psi(-1) phi(-1) = (-1)^k (chi_D(-1) = sign D),
+    and not k = 2 with both characters trivial."""
+    sign = (1 if psi > 0 else -1) * (1 if phi > 0 else -1)
+    return k >= 1 and sign == (-1) ** k and not (k == 2 and psi == 1 and phi == 1)
+
+
+def _divisors_from_factors(n: int) -> list[int]:
+    out = [1]
+    for p, e in factor(n).items():
+        out = [d * p**i for d in out for i in range(e + 1)]
+    return out
+
+
+def eisenstein_character(k: int, psi: int, phi: int, prec: int) -> Series:
+    """E_k^{psi,phi} to precision ``prec`` (psi, phi given by their kernels)."""
+    c0 = Fraction(0)
+    if psi == 1:
+        c0 -= generalised_bernoulli(k, phi) / k
+    if k == 1 and phi == 1:
+        c0 -= generalised_bernoulli(1, psi)
+    fu, fv = conductor(psi), conductor(phi)
+    coeffs = [c0]
+    for n in range(1, prec):
+        s = 0
+        for d in _divisors_from_factors(n):
+            a = character_value(psi, n // d, fu) if fu > 1 else 1
+            b = character_value(phi, d, fv) if fv > 1 else 1
+            s += a * b * d ** (k - 1)
+        coeffs.append(Fraction(2 * s))
+    return Series(0, coeffs[: max(prec, 0)], prec)
 
 
 def euler(prec: int) -> Series:

@@ -206,7 +206,7 @@ def _orders(tree: Any, atoms: Atoms, level: int, c: int) -> tuple[Fraction, Frac
     if isinstance(tree, Fraction):
         return Fraction(0), Fraction(0)
     head, args = tree[0], tree[1:]
-    if head in ("E", "Delta", "eta", "theta"):
+    if head in ("E", "Delta", "eta", "theta", "Echar"):
         return atoms.order_at(tree, level, c), Fraction(0)
     if head in ("+", "-"):
         (na, da), (nb, db) = (_orders(a, atoms, level, c) for a in args)
