@@ -62,6 +62,8 @@ def recheck(cert: Any) -> Result:
             return _witness(cert)
         if method in _BY_PARTS:
             return _by_parts(cert, method)
+        if method in _REST:
+            return _rest(cert, method)
     except (Unsupported, TooLarge) as exc:
         return Result(NOT_RECHECKED, [str(exc)])
     except (Malformed, KeyError, TypeError, ValueError, ZeroDivisionError, Unknown) as exc:
@@ -71,11 +73,28 @@ def recheck(cert: Any) -> Result:
 
 
 _BY_PARTS = ("sturm-congruence", "cusp-orders", "dimension-formula")
-_NOT_COVERED = {
-    "computation": "values of arithmetic functions are not recomputed by this re-checker",
-    "linear-algebra": "solved unknowns are not re-derived by this re-checker",
-    "u-operator": "progressions (U_m and the eta-quotient multiplier) are not re-checked yet",
-}
+_REST = ("computation", "linear-algebra", "u-operator")
+_NOT_COVERED: dict[str, str] = {}
+_NEEDS = {"computation": "arithmetic", "linear-algebra": "instance", "u-operator": "progression"}
+
+
+def _rest(cert: dict[str, Any], method: str) -> Result:
+    """Values, solved unknowns and progressions (:mod:`.values`, :mod:`.solved`, :mod:`.progression`)."""
+    from verifier.recheck.progression import recheck_progression
+    from verifier.recheck.solved import recheck_solved
+    from verifier.recheck.values import recheck_values
+
+    if not isinstance(cert.get(_NEEDS[method]), dict):
+        return Result(NOT_RECHECKED, [f"the {method} certificate carries no {_NEEDS[method]!r} to re-check"])
+    reasons: list[str] = []
+    notes: list[str] = []
+    if method == "computation":
+        recheck_values(cert, reasons, notes)
+    elif method == "linear-algebra":
+        recheck_solved(cert, reasons, notes)
+    else:
+        recheck_progression(cert, reasons, notes)
+    return Result(FAILED, reasons, notes) if reasons else Result(CONFIRMED, notes=notes)
 
 
 def _by_parts(cert: dict[str, Any], method: str) -> Result:
@@ -103,8 +122,11 @@ def _by_parts(cert: dict[str, Any], method: str) -> Result:
 class _Claim:
     """The two sides of a certificate, their atoms and level."""
 
-    def __init__(self, cert: dict[str, Any]) -> None:
-        self.trees = [parse(str(cert[s]["expr"])) for s in ("left", "right")]
+    def __init__(self, cert: dict[str, Any] | None = None, trees: list[Any] | None = None) -> None:
+        if trees is None:
+            assert cert is not None
+            trees = [parse(str(cert[s]["expr"])) for s in ("left", "right")]
+        self.trees = trees
         self.atoms = Atoms()
         found: list[Any] = []
         for t in self.trees:
@@ -136,6 +158,11 @@ class _Claim:
                 return s
             work += stop - s.prec
         raise TooLarge(f"the expansion did not reach q^{stop - 1}")
+
+
+def side_series(tree: Any, stop: int) -> Series:
+    """The q-expansion of one expression tree, known below q^stop."""
+    return _Claim(trees=[tree]).laurent(0, stop)
 
 
 def _check_coefficients(claim: _Claim, cert: dict[str, Any], reasons: list[str], both: bool = True) -> None:
