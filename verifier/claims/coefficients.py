@@ -194,9 +194,7 @@ def _decide(prover: Prover, claim: ArithmeticClaim, values: Values, prove_modulo
                 method="computation",
                 first_difference=witness_dict(n, a, b, claim.modulus),
                 relation="!=",
-                certificate=certificate.values(
-                    claim.left, claim.right, "!=", claim.var, n, a, b, kind, claim.modulus
-                ),
+                certificate=certificate.values(claim.left, claim.right, "!=", claim.var, n, a, b, kind, claim.modulus),
             )
         return refuted(kind, claim, n, a, b)
     if claim.rel == "!=":

@@ -19,7 +19,15 @@ from __future__ import annotations
 import math
 from fractions import Fraction
 
-from verifier.recheck.arith import bernoulli, character_value, conductor, factor, generalised_bernoulli, inverse_and_det, sigma
+from verifier.recheck.arith import (
+    bernoulli,
+    character_value,
+    conductor,
+    factor,
+    generalised_bernoulli,
+    inverse_and_det,
+    sigma,
+)
 from verifier.recheck.series import Series
 
 MAX_LATTICE_POINTS = 2_000_000

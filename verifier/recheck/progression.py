@@ -157,7 +157,7 @@ def _one(rec: dict[str, Any], reasons: list[str], notes: list[str], where: str) 
     f_pairs = _pairs(rec["product"], "product")
     mult = _pairs(rec["multiplier_exponents"], "multiplier")
     m, t = int(rec["m"]), int(rec["t"])
-    claimed_t, start = int(rec.get("claimed_t", t)), int(rec.get("start", 0))
+    claimed_t = int(rec.get("claimed_t", t))
     modulus = None if rec.get("modulus") is None else int(rec["modulus"])
     terms = rec.get("terms")
     if m < 1 or not 0 <= t < m:
@@ -236,7 +236,8 @@ def _one(rec: dict[str, Any], reasons: list[str], notes: list[str], where: str) 
             poles[c] = low
     stated = {int(d): Fraction(str(v)) for d, v in (rec.get("poles") or {}).items()}
     if stated != poles:
-        bad(f"orders at cusps with poles: certificate {rec.get('poles')}, recomputed { {d: str(v) for d, v in poles.items()} }")
+        mine = {str(d): str(v) for d, v in poles.items()}
+        bad(f"orders at cusps with poles: certificate {rec.get('poles')}, recomputed {mine}")
     if poles and modulus is not None:
         bad("a congruence is proved with a term that has a pole at a cusp (Sturm's theorem needs forms)")
     total = Fraction(k * arith.index_gamma0(target), 12)
@@ -254,7 +255,11 @@ def _one(rec: dict[str, Any], reasons: list[str], notes: list[str], where: str) 
     exact = terms is not None and modulus is None
     coeffs = product_coefficients(f_pairs, need, None if exact else modulus)
     prog = coeffs[t:need:m]
-    claimed = _claimed(term_pairs, bound + 1, None if exact else modulus) if terms is not None else [0] * (bound + 1)
+    claimed = (
+        _claimed(term_pairs, bound + 1, None if exact else modulus)
+        if terms is not None
+        else [Fraction(0)] * (bound + 1)
+    )
     for n in range(bound + 1):
         a, b = Fraction(prog[n]), claimed[n]
         differs = a != b if exact else _differs_mod(a, b, modulus)

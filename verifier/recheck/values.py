@@ -87,9 +87,7 @@ class Values:
             lo, hi = self.value(args[1], env), self.value(args[2], env)
             if lo.denominator != 1 or hi.denominator != 1 or hi - lo > MAX_TERMS:
                 raise Unsupported("a finite sum with non-integral limits or too many terms")
-            return sum(
-                (self.value(args[3], {**env, args[0]: m}) for m in range(int(lo), int(hi) + 1)), Fraction(0)
-            )
+            return sum((self.value(args[3], {**env, args[0]: m}) for m in range(int(lo), int(hi) + 1)), Fraction(0))
         return self._function(head, args, env)
 
     def _function(self, head: str, args: list[Any], env: dict[str, int]) -> Fraction:
