@@ -360,3 +360,20 @@ def test_echar_certificate_alterations_are_caught(forms: list[dict[str, Any]]) -
     cert = _cert(forms, 0)
     cert["right"]["expr"] = cert["right"]["expr"].replace("(Echar 1 1 -1 1)", "(Echar 2 1 -1 1)")
     assert recheck(cert).status == FAILED  # no such form (parity)
+
+
+def test_lattice_points_of_e8_are_counted() -> None:
+    # A Gram matrix of the E_8 lattice (even unimodular of rank 8, as in level_n.tex): theta = E_4 = 1 + 240 sum
+    # sigma_3(n) q^n, so 1, 240, 2160, 6720 (Serre, A Course in Arithmetic, VII.6.6).
+    e8 = [
+        [2, -1, 0, 0, 0, 0, 0, 0],
+        [-1, 2, -1, 0, 0, 0, 0, 0],
+        [0, -1, 2, -1, 0, 0, 0, 0],
+        [0, 0, -1, 2, -1, 0, 0, 0],
+        [0, 0, 0, -1, 2, -1, 0, -1],
+        [0, 0, 0, 0, -1, 2, -1, 0],
+        [0, 0, 0, 0, 0, -1, 2, 0],
+        [0, 0, 0, 0, -1, 0, 0, 2],
+    ]
+    assert arith.gram_level(e8) == 1 and arith.gram_kernel(e8) == 1
+    assert atoms.theta(e8, 4).window(0, 4) == [1, 240, 2160, 6720]

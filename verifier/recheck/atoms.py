@@ -25,7 +25,6 @@ from verifier.recheck.arith import (
     conductor,
     factor,
     generalised_bernoulli,
-    inverse_and_det,
     sigma,
 )
 from verifier.recheck.series import Series
@@ -128,32 +127,55 @@ def eta_quotient(pairs: list[tuple[int, int]], prec: int) -> Series:
     return Series(out.lo + shift, list(out.coeffs), out.prec + shift)
 
 
-def theta(gram: list[list[int]], prec: int) -> Series:
-    """sum over x in Z^n of q^(x^T A x / 2), for an even positive-definite Gram matrix A."""
+def _square_completion(gram: list[list[int]]) -> list[list[Fraction]]:
+    """q with x^T A x = sum_i q_ii (x_i + sum_{j > i} q_ij x_j)^2 (completing squares, as in
+    H. Cohen, A Course in Computational Algebraic Number Theory, Alg. 2.7.5)."""
     n = len(gram)
-    inv, _ = inverse_and_det(gram)
-    top = 2 * max(prec - 1, 0)
-    # x^T A x <= c forces x_i^2 <= c (A^-1)_ii (Cauchy-Schwarz for the form A).
-    ranges = []
-    size = 1
+    q = [[Fraction(x) for x in row] for row in gram]
     for i in range(n):
-        r = math.isqrt(math.floor(top * inv[i][i]))
-        ranges.append(range(-r, r + 1))
-        size *= 2 * r + 1
-    if size > MAX_LATTICE_POINTS:
-        raise TooLarge(f"counting lattice points would visit {size} points")
-    counts = [0] * max(prec, 0)
+        if q[i][i] <= 0:
+            raise ValueError("the Gram matrix is not positive definite")
+        for j in range(i + 1, n):
+            q[j][i] = q[i][j]
+            q[i][j] = q[i][j] / q[i][i]
+        for k in range(i + 1, n):
+            for m in range(k, n):
+                q[k][m] -= q[k][i] * q[i][m]
+    return q
 
-    def walk(i: int, x: list[int]) -> None:
-        if i == n:
-            v = sum(gram[a][b] * x[a] * x[b] for a in range(n) for b in range(n)) // 2
+
+def theta(gram: list[list[int]], prec: int) -> Series:
+    """sum over x in Z^n of q^(x^T A x / 2), for an even positive-definite Gram matrix A.
+
+    Every x with x^T A x <= 2 (prec - 1) is visited once: the last coordinate first, each
+    coordinate limited by what the squares already chosen leave (the Fincke-Pohst bound).
+    """
+    n = len(gram)
+    q = _square_completion(gram)
+    top = Fraction(2 * max(prec - 1, 0))
+    counts = [0] * max(prec, 0)
+    visited = 0
+    x = [0] * n
+
+    def walk(i: int, left: Fraction) -> None:
+        nonlocal visited
+        if i < 0:
+            visited += 1
+            if visited > MAX_LATTICE_POINTS:
+                raise TooLarge(f"more than {MAX_LATTICE_POINTS} lattice points to count")
+            v = int(top - left) // 2
             if v < prec:
                 counts[v] += 1
             return
-        for xi in ranges[i]:
-            x.append(xi)
-            walk(i + 1, x)
-            x.pop()
+        centre = -sum((q[i][j] * x[j] for j in range(i + 1, n)), Fraction(0))
+        reach = math.isqrt(math.floor(left / q[i][i])) + 1
+        for xi in range(math.floor(centre) - reach, math.ceil(centre) + reach + 1):
+            used = q[i][i] * (xi - centre) ** 2
+            if used <= left:
+                x[i] = xi
+                walk(i - 1, left - used)
+        x[i] = 0
 
-    walk(0, [])
+    if prec > 0:
+        walk(n - 1, top)
     return Series(0, [Fraction(c) for c in counts], prec)
