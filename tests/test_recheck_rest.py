@@ -377,3 +377,10 @@ def test_lattice_points_of_e8_are_counted() -> None:
     ]
     assert arith.gram_level(e8) == 1 and arith.gram_kernel(e8) == 1
     assert atoms.theta(e8, 4).window(0, 4) == [1, 240, 2160, 6720]
+
+
+def test_a_denominator_that_starts_late_is_expanded_further() -> None:
+    # j = E_4^3 / Delta = q^-1 + 744 + ... (Serre, A Course in Arithmetic, VII.3.3): Delta starts
+    # at q^1, beyond the one coefficient the printed side asks for.
+    (claim,) = _report("%@claim\n\\[ j = q^{-1} + 744 + O(q) \\]\n")
+    assert recheck(claim["certificate"]).status == CONFIRMED

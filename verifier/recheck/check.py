@@ -153,7 +153,11 @@ class _Claim:
             n, d = ev.side(self.trees[which])
             s = plain(n, ev.e2, work)
             if d is not None:
-                s = s / plain(d, ev.e2, work)
+                den = plain(d, ev.e2, work)
+                if den.is_zero():  # its first nonzero term lies beyond the working precision
+                    work *= 2
+                    continue
+                s = s / den
             if s.prec >= stop:
                 return s
             work += stop - s.prec

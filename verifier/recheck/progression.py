@@ -34,7 +34,7 @@ from verifier.recheck import arith
 from verifier.recheck.atoms import TooLarge
 from verifier.recheck.graded import Unsupported
 
-MAX_COEFFICIENTS = 400_000  # coefficients of F the re-checker computes at most
+MAX_COEFFICIENTS = 100_000  # coefficients of F the re-checker computes at most
 
 Pairs = list[tuple[int, int]]
 

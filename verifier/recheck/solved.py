@@ -19,6 +19,7 @@ from __future__ import annotations
 from fractions import Fraction
 from typing import Any
 
+from verifier.recheck.graded import Unsupported
 from verifier.recheck.series import Series
 from verifier.recheck.sexpr import parse
 
@@ -55,8 +56,7 @@ def recheck_solved(cert: dict[str, Any], reasons: list[str], notes: list[str]) -
 
     instance = cert["instance"]
     if instance.get("method") not in ("sturm", "valence"):
-        reasons.append(f"the instance is proved by {instance.get('method')!r}, not by a Sturm or valence bound")
-        return
+        raise Unsupported(f"the claim at the solution is proved by {instance.get('method')!r}, not by a bound")
     done = recheck(instance)
     if done.status != CONFIRMED:
         reasons.extend(f"the claim at the solution: {r}" for r in done.reasons or [done.status])

@@ -25,6 +25,7 @@ from verifier.recheck.sexpr import parse
 
 MAX_N = 3000  # the largest argument whose value needs a series (tau, r_s, p, coefficients)
 MAX_TERMS = 100_000  # the most terms of a finite sum
+MAX_SQUARES = 20_000  # the largest n whose r_s(n) is counted
 
 
 def kronecker(a: int, n: int) -> int:
@@ -114,7 +115,7 @@ class Values:
             return Fraction(0 if any(e > 1 for e in f.values()) else (-1) ** len(f))
         if head == "r" and len(args) == 2:
             s = _int(args[0], "the number of squares")
-            if s < 0 or n > MAX_N * MAX_N:
+            if s < 0 or s > 64 or n > MAX_SQUARES:
                 raise Unsupported(f"r_{s}({n}) is too large for the re-checker")
             return Fraction(_squares(s, n))
         if n > MAX_N:
