@@ -35,6 +35,7 @@ from verifier.elaborate import ir
 from verifier.elaborate.elaborator import Problem
 from verifier.elaborate.rescale import rescale_factor
 from verifier.numbers import prime_factors
+from verifier.prove import certificate
 from verifier.prove.evaluate import laurent_to
 from verifier.prove.outcome import Witness, differ_modulo
 from verifier.prove.prover import Outcome, Prover, _frac_str
@@ -193,6 +194,7 @@ def _decide(prover: Prover, claim: ArithmeticClaim, values: Values, prove_modulo
                 method="computation",
                 first_difference=witness_dict(n, a, b, claim.modulus),
                 relation="!=",
+                certificate=certificate.values(claim.left, claim.right, "!=", claim.var, n, a, b, kind, claim.modulus),
             )
         return refuted(kind, claim, n, a, b)
     if claim.rel == "!=":

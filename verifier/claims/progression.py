@@ -607,6 +607,7 @@ def _proved(claim: Claim, p: Plan, count: int, t_proof: int) -> Outcome:
     record = p.record(m, count, claim.modulus)
     record["t"] = t_proof
     record["poles"] = {str(d): frac_str(v) for d, v in sorted(p.cusp_bounds.items())}
+    record.update(_recheck_fields(claim, p))
     bound_kind = "valence bound" if p.cusp_bounds else "Sturm bound"
     target = f"M_{p.weight}(Gamma0({p.target_level}), {p.character.name})"
     if claim.modulus is not None and claim.rhs is not None:
@@ -648,6 +649,26 @@ def _proved(claim: Claim, p: Plan, count: int, t_proof: int) -> Outcome:
         certificate=certificate,
         progression=record,
     )
+
+
+def _recheck_fields(claim: Claim, p: Plan) -> dict[str, Any]:
+    """What an independent re-checker needs to rebuild the proof (verifier/prove/certificate.py)."""
+    terms = None
+    if claim.rhs is not None:
+        terms = [
+            {"coeff": frac_str(mono.coeff), "shift": frac_str(mono.shift), "product": [list(x) for x in mono.exps]}
+            for mono in claim.rhs
+        ]
+    return {
+        "product": [[d, r] for d, r in sorted(claim.exps.items()) if r],
+        "multiplier_exponents": [list(x) for x in p.multiplier.exponents],
+        "form_exponents": [list(x) for x in p.h.exponents],
+        "character_kernel": p.character.kernel,
+        "e": p.e,
+        "claimed_t": claim.t,
+        "start": claim.start,
+        "terms": terms,
+    }
 
 
 def decide_dissection(p: int, claims: tuple[Claim, ...]) -> Outcome:

@@ -22,6 +22,7 @@ from verifier.claims.sides import Build, side_builder
 from verifier.elaborate import ir
 from verifier.forms import registry
 from verifier.options import parse_unknowns
+from verifier.prove import certificate
 from verifier.prove.prover import Outcome, Prover, _frac_str
 
 KINDS = ("solve",)
@@ -81,19 +82,24 @@ def _vector(prover: Prover, left: ir.Side, right: ir.Side, keys: list[tuple[Any,
     return out
 
 
-def decide_solve(prover: Prover, build: Build, unknowns: list[str]) -> Outcome:
-    """Solve for the unknowns exactly; proved (unique or a family), or refuted (no solution)."""
+def decide_solve(prover: Prover, build: Build, unknowns: list[str], with_certificate: bool = True) -> Outcome:
+    """Solve for the unknowns exactly; proved (unique or a family), or refuted (no solution).
+
+    With ``with_certificate``, a proved outcome carries a certificate (:func:`_certificate`).
+    """
     zero = dict.fromkeys(unknowns, Fraction(0))
     sides = build(zero)
     if isinstance(sides, str):
         return Outcome("error", "solve", sides, code="syntax")
     base = _vector(prover, *sides, None)
     columns: list[dict[Any, Fraction]] = []
+    units: list[tuple[ir.Side, ir.Side]] = []
     for u in unknowns:
         one = build({**zero, u: Fraction(1)})
         two = build({**zero, u: Fraction(2)})
         if isinstance(one, str) or isinstance(two, str):
             return Outcome("error", "solve", one if isinstance(one, str) else str(two), code="syntax")
+        units.append(one)
         v1, v2 = _vector(prover, *one, None), _vector(prover, *two, None)
         keys = set(base) | set(v1) | set(v2)
         col = {k: v1.get(k, Fraction(0)) - base.get(k, Fraction(0)) for k in keys}
@@ -119,6 +125,7 @@ def decide_solve(prover: Prover, build: Build, unknowns: list[str]) -> Outcome:
             terms_compared=len(rows),
         )
     assignment = ", ".join(f"{u} = {_frac_str(v)}" for u, v in zip(unknowns, solution, strict=True))
+    cert = _certificate(prover, build, unknowns, solution, not free, sides, units) if with_certificate else None
     if free:
         names = ", ".join(unknowns[i] for i in free)
         return Outcome(
@@ -128,6 +135,7 @@ def decide_solve(prover: Prover, build: Build, unknowns: list[str]) -> Outcome:
             method="linear-algebra",
             terms_compared=len(rows),
             components=[{"unknown": u, "value": _frac_str(v)} for u, v in zip(unknowns, solution, strict=True)],
+            certificate=cert,
         )
     return Outcome(
         "proved",
@@ -137,7 +145,42 @@ def decide_solve(prover: Prover, build: Build, unknowns: list[str]) -> Outcome:
         method="linear-algebra",
         terms_compared=len(rows),
         components=[{"unknown": u, "value": _frac_str(v)} for u, v in zip(unknowns, solution, strict=True)],
+        certificate=cert,
     )
+
+
+def _certificate(
+    prover: Prover,
+    build: Build,
+    unknowns: list[str],
+    solution: list[Fraction],
+    unique: bool,
+    zero: tuple[ir.Side, ir.Side],
+    units: list[tuple[ir.Side, ir.Side]],
+) -> dict[str, Any] | None:
+    """The claim at the solution, proved on its own (its Sturm or valence certificate), and the
+    sides at 0 and at each unit vector, from which a re-checker sees the solution is unique."""
+    sides = build(dict(zip(unknowns, solution, strict=True)))
+    if isinstance(sides, str):
+        return None
+    instance = prover.decide(sides[0], sides[1], "=")
+    if instance.verdict != "proved" or (instance.certificate or {}).get("method") not in ("sturm", "valence"):
+        return None  # the generic certificate of a method the re-checker does not cover
+    return {
+        "format": certificate.FORMAT,
+        "method": "linear-algebra",
+        "kind": "solve",
+        "space_used": instance.space,
+        "bound": instance.bound,
+        "unknowns": list(unknowns),
+        "solution": [_frac_str(v) for v in solution],
+        "unique": unique,
+        "instance": instance.certificate,
+        "family": {
+            "zero": {"left": certificate.side_record(zero[0]), "right": certificate.side_record(zero[1])},
+            "units": [{"left": certificate.side_record(a), "right": certificate.side_record(b)} for a, b in units],
+        },
+    }
 
 
 def _solve(matrix: list[list[Fraction]], n: int) -> tuple[list[Fraction] | None, list[int]]:

@@ -12,6 +12,7 @@ from typing import Any
 from verifier.arith.values import NotEvaluable, Values
 from verifier.claims.coefficients import ArithmeticClaim, SequenceReading, read_sequences, values_for, witness_dict
 from verifier.claims.kind import ParsedClaim, Unread, certified
+from verifier.prove import certificate
 from verifier.prove.outcome import Outcome, differ_modulo, frac_str
 from verifier.prove.prover import Prover
 
@@ -30,7 +31,7 @@ def decide(reading: SequenceReading, prover: Prover, /) -> Outcome:
 
 
 def certify(outcome: Outcome, /) -> dict[str, Any] | None:
-    """A computation: the minimal certificate."""
+    """A computation: both sides in the arithmetic language and their values (method ``computation``)."""
     return certified(outcome)
 
 
@@ -51,4 +52,7 @@ def at_a_value(claim: ArithmeticClaim, values: Values, kind: str) -> Outcome:
         method="computation",
         first_difference=None if equal else witness_dict(None, a, b, claim.modulus),
         relation=claim.rel,
+        certificate=certificate.values(claim.left, claim.right, claim.rel, None, None, a, b, kind, claim.modulus)
+        if holds
+        else None,
     )

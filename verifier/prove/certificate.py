@@ -41,6 +41,22 @@ Fields (``format`` 1):
 * ``dimension-formula``: ``space`` (``{"weight", "level", "cusp_forms"}``), the ``dimension``
   and the facts of the formula: ``index``, ``elliptic_points`` ([e_2, e_3]), ``cusps``,
   ``genus``;
+* ``computation`` (a value ``tau(5) = 4830``, a congruence at a value, or a ``!=`` for all n
+  shown by one n): ``relation`` (``=`` or ``!=``), ``modulus`` (congruences only) and
+  ``arithmetic``: ``{"left": T, "right": T, "variable", "n", "left_value", "right_value"}``,
+  T the sides in the arithmetic language below, ``variable`` the free variable (null: none) and
+  ``n`` its value, and the two exact values computed;
+* ``linear-algebra`` (``solve=``): ``unknowns``, ``solution`` (one value per unknown, as text),
+  ``unique``, ``instance`` (the certificate of the claim with the solution put in, method
+  ``sturm`` or ``valence``) and ``family``: ``{"zero": {"left", "right"}, "units": [...]}``, the
+  sides with every unknown 0 and with one unknown 1 and the others 0 (side records);
+* ``u-operator`` (progressions; docs/method.md#progressions): the ``progression`` object, each
+  class (the object itself, or every entry of its ``components`` for a dissection or a list
+  of residues) with, besides its documented fields, ``product`` (``[[delta, r], ...]``,
+  F = prod f_delta^r), ``multiplier_exponents`` and ``form_exponents`` (E and h as
+  ``[[delta, u], ...]`` of eta(delta tau)^u), ``character_kernel``, ``e`` (the order of h at
+  infinity), ``claimed_t`` (t as the author wrote it, before reduction mod m) and ``terms``
+  (the claimed side: ``[{"coeff", "shift", "product"}]``, or null for a congruence to 0);
 * ``sturm``/``valence`` certificates carry ``space``, ``pieces``, ``bound``, ``index`` (and
   ``cusp_order_bounds``) and ``coefficients``; ``expansion`` carries ``coefficients``;
   other methods (values, ``solve=``, progressions) carry only ``method``, ``kind``, ``space_used`` and ``bound``.
@@ -60,6 +76,21 @@ Expressions (S-expressions, written as text):
 ``(D a)``                             q d/dq
 ``(T n a)`` ``(U n a)``               Hecke operators
 ====================================  ==============================================
+
+Arithmetic expressions (``computation`` certificates) use the same syntax:
+
+====================================  ==============================================
+``7``, ``-3/5``; ``(var n)``          a constant; a variable
+``(+ a b)`` ``(- a b)`` ``(* a b)``   sum, difference, product
+``(/ a b)`` ``(^ a b)``               quotient, power (b an expression)
+``(sigma k x)`` ``(tau x)``           sigma_k(x), Ramanujan's tau(x)
+``(r s x)`` ``(rQ ((a b ..) ..) x)``  sums of s squares; representations by x^T A x / 2
+``(p x)`` ``(pbar x)``                partitions, overpartitions
+``(phi x)`` ``(mu x)`` ``(chi D x)``  Euler's phi, Moebius mu, the Kronecker symbol (D/x)
+``(coef F x)``                        the coefficient of q^x in F (a form expression above)
+``(sum-range v lo hi body)``          sum of body for v = lo .. hi
+``(sum-divisors v x body)``           sum of body over the positive divisors v of x
+====================================  ==============================================
 """
 
 from __future__ import annotations
@@ -69,6 +100,7 @@ from collections.abc import Iterable
 from fractions import Fraction
 from typing import Any
 
+from verifier.arith import terms as t
 from verifier.elaborate import ir
 from verifier.prove.outcome import frac_str
 
@@ -76,7 +108,18 @@ FORMAT = 1
 MAX_LISTED = 40
 # Methods whose certificates :mod:`verifier.recheck` re-verifies.
 CHECKABLE = frozenset(
-    {"sturm", "valence", "expansion", "witness", "sturm-congruence", "cusp-orders", "dimension-formula"}
+    {
+        "sturm",
+        "valence",
+        "expansion",
+        "witness",
+        "sturm-congruence",
+        "cusp-orders",
+        "dimension-formula",
+        "computation",
+        "linear-algebra",
+        "u-operator",
+    }
 )
 
 
@@ -131,6 +174,71 @@ def _atom(atom: ir.Atom) -> str:
         digest = hashlib.sha256(repr((atom.text, atom.params)).encode("utf-8")).hexdigest()[:12]
         return f"(series {digest} {scale})"
     raise TypeError(f"no certificate spelling for the atom {atom.key}")
+
+
+def arith_sexpr(e: t.A) -> str:
+    """An arithmetic expression in the certificate language (table above)."""
+    if isinstance(e, t.Num):
+        return frac_str(e.value)
+    if isinstance(e, t.Var):
+        return f"(var {e.name})"
+    if isinstance(e, t.Bin):
+        return f"({e.op} {arith_sexpr(e.left)} {arith_sexpr(e.right)})"
+    if isinstance(e, t.Pow):
+        return f"(^ {arith_sexpr(e.base)} {arith_sexpr(e.exponent)})"
+    if isinstance(e, t.Sum):
+        if e.kind == "divides":
+            return f"(sum-divisors {e.var} {arith_sexpr(e.lower)} {arith_sexpr(e.body)})"
+        assert e.upper is not None
+        return f"(sum-range {e.var} {arith_sexpr(e.lower)} {arith_sexpr(e.upper)} {arith_sexpr(e.body)})"
+    if isinstance(e, t.Fun):
+        arg = arith_sexpr(e.arg)
+        if e.name in ("sigma", "r", "chi"):
+            return f"({e.name} {e.index} {arg})"
+        if e.name == "rQ":
+            rows = " ".join("(" + " ".join(str(int(x)) for x in row) + ")" for row in e.form.gram)
+            return f"(rQ ({rows}) {arg})"
+        if e.name == "coef":
+            return f"(coef {sexpr(e.form)} {arg})"
+        return f"({e.name} {arg})"
+    raise TypeError(f"no certificate spelling for {type(e).__name__}")
+
+
+def values(
+    left: t.A,
+    right: t.A,
+    relation: str,
+    variable: str | None,
+    n: int | None,
+    left_value: Fraction,
+    right_value: Fraction,
+    kind: str,
+    modulus: int | None,
+) -> dict[str, Any]:
+    """The certificate of a claim decided by computing both sides at one n (method ``computation``)."""
+    try:
+        spelled = arith_sexpr(left), arith_sexpr(right)
+    except TypeError:  # a construct with no spelling: the re-checker will say it is not re-checked
+        return minimal("computation", kind, None, None)
+    cert: dict[str, Any] = {
+        "format": FORMAT,
+        "method": "computation",
+        "kind": kind,
+        "space_used": None,
+        "bound": None,
+        "relation": "!=" if relation == "!=" else "=",
+        "arithmetic": {
+            "left": spelled[0],
+            "right": spelled[1],
+            "variable": variable,
+            "n": n,
+            "left_value": frac_str(left_value),
+            "right_value": frac_str(right_value),
+        },
+    }
+    if modulus is not None:
+        cert["modulus"] = modulus
+    return cert
 
 
 def coefficient_lines(coefficients: Iterable[tuple[int, Fraction]]) -> str:

@@ -89,7 +89,7 @@ def eta_kernel(pairs: list[tuple[int, int]]) -> int:
     s = Fraction(1)
     for d, r in pairs:
         s *= Fraction(d) ** r
-    return squarefree_part(s * (-1) ** k)
+    return squarefree_part(s * (-1) ** (k % 2))
 
 
 def eta_least_level(pairs: list[tuple[int, int]]) -> int | None:
@@ -154,9 +154,38 @@ def gram_level(gram: list[list[int]]) -> int:
 
 
 def gram_kernel(gram: list[list[int]]) -> int:
-    """The character of the theta series of an even lattice of rank 2m: ((-1)^m det A / n)."""
+    """The character of the theta series of an even lattice of rank n.
+
+    Rank n = 2m: ((-1)^m det A / .) (Miyake, Modular Forms, §4.9; from memory).  Odd rank n: (2 det A / .)
+    relative to the multiplier of theta^n (Shimura, "On modular forms of half integral weight",
+    Ann. of Math. 97 (1973), §2; from memory); for A = (2), theta itself, it is trivial.
+    """
     _, det = inverse_and_det(gram)
+    if len(gram) % 2:
+        return squarefree_part(2 * det)
     return squarefree_part(det * (-1) ** (len(gram) // 2))
+
+
+def conductor(kernel: int) -> int:
+    """The conductor |D| of the primitive character of kernel D (D = kernel or 4 kernel)."""
+    return abs(kernel if kernel % 4 == 1 else 4 * kernel)
+
+
+def bernoulli_poly(k: int, x: Fraction) -> Fraction:
+    """B_k(x) = sum_j C(k, j) B_j x^(k-j) (B_1 = -1/2; common practice)."""
+    return sum((math.comb(k, j) * bernoulli(j) * x ** (k - j) for j in range(k + 1)), Fraction(0))
+
+
+def generalised_bernoulli(k: int, kernel: int) -> Fraction:
+    """B_{k,chi} = f^(k-1) sum_{a=1}^{f} chi(a) B_k(a/f) for the primitive chi of kernel D and
+    conductor f (B_{k,1} = B_k, except B_{1,1} = +1/2; Washington, Cyclotomic Fields, Prop. 4.1)."""
+    f = conductor(kernel)
+    total = Fraction(0)
+    for a in range(1, f + 1):
+        c = character_value(kernel, a, f) if f > 1 else 1
+        if c:
+            total += c * bernoulli_poly(k, Fraction(a, f))
+    return total * Fraction(f) ** (k - 1)
 
 
 def bernoulli(k: int) -> Fraction:

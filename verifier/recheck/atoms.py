@@ -6,6 +6,10 @@
   partition recurrence that theorem gives;
 * eta quotients prod eta(d tau)^r = q^(sum d r / 24) prod_d (prod_n (1 - q^(dn)))^r;
 * Delta = eta^24;
+* E_k^{psi,phi} = delta(psi) L(1-k, phi) [+ delta(phi) L(0, psi) for k = 1] + 2 sum
+  sigma^{psi,phi}_{k-1}(n) q^n with L(1-k, phi) = -B_{k,phi}/k from Bernoulli polynomials, and
+  the divisor sum over the divisors read off the factorisation of n (Diamond-Shurman, A First
+  Course in Modular Forms, §4.5-4.8);
 * theta series of an even lattice with Gram matrix A: sum_x q^(x^T A x / 2), counted over
   the integer points of a box that contains every x with x^T A x / 2 below the precision.
 """
@@ -15,7 +19,14 @@ from __future__ import annotations
 import math
 from fractions import Fraction
 
-from verifier.recheck.arith import bernoulli, inverse_and_det, sigma
+from verifier.recheck.arith import (
+    bernoulli,
+    character_value,
+    conductor,
+    factor,
+    generalised_bernoulli,
+    sigma,
+)
 from verifier.recheck.series import Series
 
 MAX_LATTICE_POINTS = 2_000_000
@@ -30,6 +41,39 @@ def eisenstein(k: int, prec: int) -> Series:
     factor = Fraction(-2 * k) / bernoulli(k)
     coeffs = [Fraction(1)] + [factor * sigma(k - 1, n) for n in range(1, prec)]
     return Series(0, coeffs, prec)
+
+
+def character_parity_ok(k: int, psi: int, phi: int) -> bool:
+    """Whether E_k^{psi,phi} is a modular form: k >= 1, psi(-1) phi(-1) = (-1)^k (chi_D(-1) = sign D),
+    and not k = 2 with both characters trivial."""
+    sign = (1 if psi > 0 else -1) * (1 if phi > 0 else -1)
+    return k >= 1 and sign == (-1) ** k and not (k == 2 and psi == 1 and phi == 1)
+
+
+def _divisors_from_factors(n: int) -> list[int]:
+    out = [1]
+    for p, e in factor(n).items():
+        out = [d * p**i for d in out for i in range(e + 1)]
+    return out
+
+
+def eisenstein_character(k: int, psi: int, phi: int, prec: int) -> Series:
+    """E_k^{psi,phi} to precision ``prec`` (psi, phi given by their kernels)."""
+    c0 = Fraction(0)
+    if psi == 1:
+        c0 -= generalised_bernoulli(k, phi) / k
+    if k == 1 and phi == 1:
+        c0 -= generalised_bernoulli(1, psi)
+    fu, fv = conductor(psi), conductor(phi)
+    coeffs = [c0]
+    for n in range(1, prec):
+        s = 0
+        for d in _divisors_from_factors(n):
+            a = character_value(psi, n // d, fu) if fu > 1 else 1
+            b = character_value(phi, d, fv) if fv > 1 else 1
+            s += a * b * d ** (k - 1)
+        coeffs.append(Fraction(2 * s))
+    return Series(0, coeffs[: max(prec, 0)], prec)
 
 
 def euler(prec: int) -> Series:
@@ -83,32 +127,55 @@ def eta_quotient(pairs: list[tuple[int, int]], prec: int) -> Series:
     return Series(out.lo + shift, list(out.coeffs), out.prec + shift)
 
 
-def theta(gram: list[list[int]], prec: int) -> Series:
-    """sum over x in Z^n of q^(x^T A x / 2), for an even positive-definite Gram matrix A."""
+def _square_completion(gram: list[list[int]]) -> list[list[Fraction]]:
+    """q with x^T A x = sum_i q_ii (x_i + sum_{j > i} q_ij x_j)^2 (completing squares, as in
+    H. Cohen, A Course in Computational Algebraic Number Theory, Alg. 2.7.5)."""
     n = len(gram)
-    inv, _ = inverse_and_det(gram)
-    top = 2 * max(prec - 1, 0)
-    # x^T A x <= c forces x_i^2 <= c (A^-1)_ii (Cauchy-Schwarz for the form A).
-    ranges = []
-    size = 1
+    q = [[Fraction(x) for x in row] for row in gram]
     for i in range(n):
-        r = math.isqrt(math.floor(top * inv[i][i]))
-        ranges.append(range(-r, r + 1))
-        size *= 2 * r + 1
-    if size > MAX_LATTICE_POINTS:
-        raise TooLarge(f"counting lattice points would visit {size} points")
-    counts = [0] * max(prec, 0)
+        if q[i][i] <= 0:
+            raise ValueError("the Gram matrix is not positive definite")
+        for j in range(i + 1, n):
+            q[j][i] = q[i][j]
+            q[i][j] = q[i][j] / q[i][i]
+        for k in range(i + 1, n):
+            for m in range(k, n):
+                q[k][m] -= q[k][i] * q[i][m]
+    return q
 
-    def walk(i: int, x: list[int]) -> None:
-        if i == n:
-            v = sum(gram[a][b] * x[a] * x[b] for a in range(n) for b in range(n)) // 2
+
+def theta(gram: list[list[int]], prec: int) -> Series:
+    """sum over x in Z^n of q^(x^T A x / 2), for an even positive-definite Gram matrix A.
+
+    Every x with x^T A x <= 2 (prec - 1) is visited once: the last coordinate first, each
+    coordinate limited by what the squares already chosen leave (the Fincke-Pohst bound).
+    """
+    n = len(gram)
+    q = _square_completion(gram)
+    top = Fraction(2 * max(prec - 1, 0))
+    counts = [0] * max(prec, 0)
+    visited = 0
+    x = [0] * n
+
+    def walk(i: int, left: Fraction) -> None:
+        nonlocal visited
+        if i < 0:
+            visited += 1
+            if visited > MAX_LATTICE_POINTS:
+                raise TooLarge(f"more than {MAX_LATTICE_POINTS} lattice points to count")
+            v = int(top - left) // 2
             if v < prec:
                 counts[v] += 1
             return
-        for xi in ranges[i]:
-            x.append(xi)
-            walk(i + 1, x)
-            x.pop()
+        centre = -sum((q[i][j] * x[j] for j in range(i + 1, n)), Fraction(0))
+        reach = math.isqrt(math.floor(left / q[i][i])) + 1
+        for xi in range(math.floor(centre) - reach, math.ceil(centre) + reach + 1):
+            used = q[i][i] * (xi - centre) ** 2
+            if used <= left:
+                x[i] = xi
+                walk(i - 1, left - used)
+        x[i] = 0
 
-    walk(0, [])
+    if prec > 0:
+        walk(n - 1, top)
     return Series(0, [Fraction(c) for c in counts], prec)

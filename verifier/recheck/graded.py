@@ -25,13 +25,14 @@ from fractions import Fraction
 from typing import Any
 
 from verifier.recheck import arith
-from verifier.recheck.atoms import eisenstein, eta_quotient, theta
+from verifier.recheck.atoms import character_parity_ok, eisenstein, eisenstein_character, eta_quotient, theta
 from verifier.recheck.series import Series
 
 Key = tuple[Fraction, int, int]
 Graded = dict[Key, Series]
 Side = tuple[Graded, Graded | None]
 
+ATOM_HEADS = ("E", "Delta", "eta", "theta", "Echar")
 THETA_ETA = [(1, -2), (2, 5), (4, -2)]  # theta(tau) = eta(2 tau)^5 / (eta(tau)^2 eta(4 tau)^2)
 
 
@@ -70,6 +71,21 @@ def _int(x: Any, what: str) -> int:
     return int(x)
 
 
+def _echar(args: list[Any]) -> tuple[int, int, int, int]:
+    """(k, psi, phi, d) of ``(Echar k psi phi d)``, checked: psi, phi squarefree kernels, E_k^{psi,phi} defined."""
+    if len(args) != 4:
+        raise Unsupported("Echar takes a weight, two characters and a scale")
+    k, psi, phi, d = (_int(a, "an argument of Echar") for a in args)
+    for kern in (psi, phi):
+        if kern == 0 or arith.squarefree_part(Fraction(kern)) != kern:
+            raise Unsupported(f"Echar: {kern} is not the kernel of a quadratic character")
+    if d < 1:
+        raise Unsupported("Echar: the scale is not positive")
+    if not character_parity_ok(k, psi, phi):
+        raise ValueError(f"E_{k} with the characters ({psi}, {phi}) is no modular form (parity, or k = 2 trivial)")
+    return k, psi, phi, d
+
+
 def _gram(x: Any) -> list[list[int]]:
     if not isinstance(x, list) or not x or not all(isinstance(r, list) and len(r) == len(x) for r in x):
         raise Unsupported("a Gram matrix is not square")
@@ -93,7 +109,9 @@ class Atoms:
         if not isinstance(tree, list) or not tree or not isinstance(tree[0], str):
             raise Unsupported(f"unreadable expression {tree!r}")
         head, args = tree[0], tree[1:]
-        if head in ("E", "Delta", "eta", "theta"):
+        if head in ATOM_HEADS:
+            if head == "Echar":
+                _echar(args)
             if head == "E" and args and args[0] == 2:
                 self.has_e2 = True
             out.append(tree)
@@ -117,8 +135,6 @@ class Atoms:
             _int(args[0], "the index of a Hecke operator")
             self.walk(args[1], out)
             return
-        if head == "Echar":
-            raise Unsupported(f"the re-checker does not implement {head}")
         raise Unsupported(f"unknown operator {head}")
 
     def weight(self, atom: list[Any]) -> Fraction:
@@ -130,6 +146,8 @@ class Atoms:
             return Fraction(12)
         if head == "eta":
             return Fraction(sum(r for _, r in _eta_pairs(args)), 2)
+        if head == "Echar":
+            return Fraction(_echar(args)[0])
         gram = _gram(args[1])
         return Fraction(len(gram), 2)
 
@@ -154,9 +172,13 @@ class Atoms:
             if n is None:
                 raise Unsupported("an eta quotient satisfies the Newman conditions at no level")
             return n
+        if head == "Echar":
+            # E_k^{psi,phi}(d tau) is on Gamma_0(u v d) (Diamond-Shurman, Thm. 4.5.2 and §4.8).
+            k, psi, phi, d = _echar(args)
+            return arith.conductor(psi) * arith.conductor(phi) * d
         gram = _gram(args[1])
-        if len(gram) % 2:
-            raise Unsupported("theta series of odd rank are not re-checked")
+        # N (dA)^-1 even integral <=> (N/d) A^-1 even integral.  For odd rank the weight is
+        # half-integral, and the claim's level is made a multiple of 4 as for every such atom.
         return arith.gram_level(gram) * _int(args[0], "a scale")
 
     def character(self, atom: list[Any], level: int) -> int:
@@ -164,8 +186,14 @@ class Atoms:
         head, args = atom[0], atom[1:]
         if head in ("E", "Delta"):
             return 1
+        if head == "Echar":
+            _, psi, phi, _ = _echar(args)
+            return arith.kernel_product(psi, phi)
         if head == "theta":
-            return arith.gram_kernel(_gram(args[1]))
+            gram = _gram(args[1])
+            d = _int(args[0], "a scale")
+            # theta_A(d tau) = theta_{dA}(tau): the character of the scaled lattice.
+            return arith.gram_kernel([[d * x for x in row] for row in gram])
         pairs = _eta_pairs(args)
         w = Fraction(sum(r for _, r in pairs), 2)
         if w.denominator == 1:
@@ -201,6 +229,9 @@ class Atoms:
         head, args = atom[0], atom[1:]
         if head == "eta":
             return eta_quotient(_eta_pairs(args), prec)
+        if head == "Echar":
+            k, psi, phi, d = _echar(args)
+            return eisenstein_character(k, psi, phi, -(-prec // d)).inflate(d).truncate(prec)
         d = _int(args[0] if head != "E" else args[1], "a scale")
         base_prec = -(-prec // d)
         if head == "E":
@@ -292,7 +323,7 @@ class Evaluator:
         head, args = tree[0], tree[1:]
         if head == "q":
             return {(Fraction(0), 0, 1): Series.monomial(int(args[0]), Fraction(1), self.prec)}, None
-        if head in ("E", "Delta", "eta", "theta"):
+        if head in ATOM_HEADS:
             return self.atom(tree), None
         if head in ("+", "-"):
             (na, da), (nb, db) = self.side(args[0]), self.side(args[1])
