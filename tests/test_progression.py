@@ -538,3 +538,120 @@ def test_internal_congruence_outside_the_method_is_unproven() -> None:
     c = one("p(5n+4) \\equiv 5\\, p(n) \\pmod 5")
     assert c["verdict"] == "unproven"
     assert "lambda" in c["message"]
+
+
+# -- congruences proved with a unit U = 1 (mod l^a) in h ----------------------------------
+
+# (spelling, generating function, m, t, M, source).  For each, no multiplier E alone makes
+# F(tau) E(m tau) a holomorphic form of integral weight; a unit U = (f_d^l / f_{dl})^j = 1 (mod M)
+# does (docs/method.md#progression-units).
+UNIT_CONGRUENCES = [
+    (
+        "b_5",
+        {1: -1, 5: 1},
+        4,
+        2,
+        2,
+        "Calkin, Drake, James, Law, Lee, Penniston and Radder, Divisibility properties of the 5-regular "
+        "and 13-regular partition functions, Integers 8 (2008), the parity of b_5(2n) -- from memory",
+    ),
+    (
+        "a_G",
+        {1: -2},
+        2,
+        1,
+        2,
+        "ordered pairs of partitions of an odd n: swapping the pair has no fixed point (common practice)",
+    ),
+    (
+        "a_K",
+        {1: -4},
+        4,
+        2,
+        2,
+        "1/f_1^4 = 1/f_4 (mod 2) by (1 - x)^4 = 1 - x^4 (mod 2) (Frobenius, common practice)",
+    ),
+    (
+        "a_H",
+        {1: -5},
+        25,
+        20,
+        5,
+        "1/f_1^5 = 1/f_5 (mod 5) (Frobenius, common practice) with p(5n+4) = 0 (mod 5) (Ramanujan 1919)",
+    ),
+]
+UNIT_DEFINES = "%@define G = \\frac{1}{f_1^2}\n%@define K = \\frac{1}{f_1^4}\n%@define H = \\frac{1}{f_1^5}\n"
+
+
+def _eta_label(label: str) -> dict[int, int]:
+    """The exponents of an eta quotient written ``eta(dtau)^r eta(tau)`` (a certificate's spelling)."""
+    import re
+
+    out = {}
+    for d, r in re.findall(r"eta\((\d*)tau\)(?:\^\(?(-?\d+)\)?)?", label):
+        out[int(d or 1)] = int(r or 1)
+    return out
+
+
+@pytest.mark.parametrize(("name", "exps", "m", "t", "modulus", "source"), UNIT_CONGRUENCES)
+def test_congruences_needing_a_unit_are_proved(
+    name: str, exps: dict[int, int], m: int, t: int, modulus: int, source: str
+) -> None:
+    assert all(x % modulus == 0 for x in _direct(exps, m, t, 40)), source  # brute force, first terms
+    c = one(f"{name}({m}n+{t}) \\equiv 0 \\pmod{{{modulus}}}", UNIT_DEFINES)
+    assert c["verdict"] == "proved", (source, c["message"])
+    assert c["method"] == "u-operator"
+    prog = c["progression"]
+    assert prog["modulus"] == modulus and prog["m"] == m
+    assert prog["unit"] is not None and c["certificate"]["progression"]["unit"] == prog["unit"]
+    # The unit named by the certificate is 1 modulo M (brute force) and has q-offset 0.
+    unit = _eta_label(prog["unit"])
+    assert sum(d * r for d, r in unit.items()) == 0
+    series = brute(unit, 200)
+    assert series[0] == 1 and all(x % modulus == 0 for x in series[1:]), prog["unit"]
+    # h is F(tau) E(m tau) U(tau).
+    h = _eta_label(prog["form"]["eta"])
+    expected = dict(exps)
+    for d, r in _eta_label(prog["multiplier"]).items():
+        expected[m * d] = expected.get(m * d, 0) + r
+    for d, r in unit.items():
+        expected[d] = expected.get(d, 0) + r
+    assert h == {d: r for d, r in expected.items() if r}
+    assert prog["coefficients_compared"] == prog["target"]["sturm_bound"] + 1
+
+
+@pytest.mark.parametrize(("name", "exps", "m", "t", "modulus", "source"), UNIT_CONGRUENCES)
+def test_false_neighbours_of_unit_congruences_are_refuted(
+    name: str, exps: dict[int, int], m: int, t: int, modulus: int, source: str
+) -> None:
+    checked = 0
+    variants = [
+        (m, t + 1, modulus),
+        (m, t - 1, modulus),
+        (m, t, modulus**2),
+        (m, t, modulus**3),
+        (2 * m, t, modulus**3),
+    ]
+    for mm, tt, mod in variants:
+        direct = _direct(exps, mm, tt, 60)
+        first = next((n for n, x in enumerate(direct) if x % mod), None)
+        if first is None:  # true after all on these terms; not a false neighbour
+            continue
+        c = one(f"{name}({mm}n+{tt}) \\equiv 0 \\pmod{{{mod}}}", UNIT_DEFINES)
+        assert c["verdict"] == "refuted", (mm, tt, mod, c["message"])
+        w = c["first_difference"]
+        assert (w["n"], int(w["left"]), w["modulus"]) == (first, direct[first], mod)
+        checked += 1
+    assert checked >= 2, source
+
+
+def test_a_unit_is_sought_only_for_a_prime_power() -> None:
+    # 1/f_1^6 = 1/f_2^3 (mod 2) and = 1/f_3^2 (mod 3) (Frobenius, common practice), so a(6n+1) = 0
+    # (mod 6); brute force confirms the first terms.  Units are sought only modulo a prime power
+    # (docs/method.md#progression-units), and here no multiplier alone works, so the claim is left
+    # unproven (with the range checked), never refuted; modulo 2 a unit proves it.
+    assert all(x % 6 == 0 for x in _direct({1: -6}, 6, 1, 30))
+    c = one("a_L(6n+1) \\equiv 0 \\pmod{6}", "%@define L = \\frac{1}{f_1^6}\n")
+    assert c["verdict"] == "unproven" and c["terms_compared"] > 1000
+    two = one("a_L(6n+1) \\equiv 0 \\pmod{2}", "%@define L = \\frac{1}{f_1^6}\n")
+    assert two["verdict"] == "proved" and two["progression"]["unit"] is not None
