@@ -701,7 +701,8 @@ def _proved(claim: Claim, p: Plan, count: int, t_proof: int) -> Outcome:
             else ""
         )
         msg = (
-            f"for all n >= 0, {claim.what} = 0 modulo {claim.modulus}{stronger}: with E = {p.multiplier.label()}{unit}, "
+            f"for all n >= 0, {claim.what} = 0 modulo {claim.modulus}{stronger}: "
+            f"with E = {p.multiplier.label()}{unit}, "
             f"h = {p.h.label()} is in M_{p.weight}(Gamma0({p.level}), {p.character.name}); U_{m} h is in {target}, "
             f"and its coefficients of q^0..q^{p.bound} ({bound_kind}) are 0 modulo {claim.modulus}"
         )
