@@ -349,6 +349,113 @@ def test_false_variants_of_dissections_are_refuted(
         assert (w["n"], int(w["left"]), int(w["right"])) == (first, a[first], b[first])
 
 
+def _dissection_modulus(rhs: list[tuple[int, int, dict[int, int]]]) -> int:
+    """The p of a p-dissection: the least prime dividing every delta of the right side."""
+    from math import gcd
+
+    g = 0
+    for _, _, x in rhs:
+        for d in x:
+            g = gcd(g, d)
+    return next(p for p in range(2, g + 1) if g % p == 0)
+
+
+@pytest.mark.parametrize(("left", "exps", "rhs", "source"), DISSECTIONS)
+def test_swapped_signed_and_shifted_dissections_are_refuted(
+    left: str, exps: dict[int, int], rhs: list[tuple[int, int, dict[int, int]]], source: str
+) -> None:
+    p = _dissection_modulus(rhs)
+    swapped = [(g, e + 1 if e % p == 0 else e - 1 if e % p == 1 else e, x) for g, e, x in rhs]  # G_0 <-> G_1
+    gamma, e, x = rhs[-1]
+    signed = [*rhs[:-1], (-gamma, e, x)]  # the sign of the last piece
+    shifted = [*rhs[:-1], (gamma, e + 1, x)]  # the power of q in front of the last piece
+    a = brute(exps, 300)
+    for wrong in (swapped, signed, shifted):
+        b = brute_sum(wrong, 300)
+        first = next(n for n in range(300) if a[n] != b[n])  # brute force: the variant is false
+        c = one(f"{left} = {_latex(wrong)}")
+        assert c["verdict"] == "refuted", (source, wrong, c["message"])
+        w = c["first_difference"]
+        assert (w["n"], int(w["left"]), int(w["right"])) == (first, a[first], b[first])
+
+
+# -- 2-dissections whose pieces are no eta quotients ------------------------------------------
+
+# f(a, b) = (-a; ab)_oo (-b; ab)_oo (ab; ab)_oo (Jacobi's triple product; Berndt, Ramanujan's
+# Notebooks III, Ch. 16, Entry 19).  psi(q) = f(q, q^3) = f(q^6, q^10) + q f(q^2, q^14) (Berndt,
+# Notebooks III, Ch. 16, Entry 30 (ii)-(iii) with a = q, b = q^3 -- from memory), and with q -> -q and
+# psi(q) psi(-q) = psi(q^2) phi(-q^2) = f_2 f_4 (Entry 25 (iv), from memory):
+# 1/psi(q) = (f(q^6, q^10) - q f(q^2, q^14)) / (f_2 f_4).  The pieces f(q^3, q^5) and f(q, q^7) are
+# generalised eta quotients, not eta quotients (docs/method.md#progressions), so these stay unproven
+# (compared as series); their false variants are refuted.
+F_6_10 = "(-q^6;q^{16})_\\infty(-q^{10};q^{16})_\\infty(q^{16};q^{16})_\\infty"
+F_2_14 = "(-q^2;q^{16})_\\infty(-q^{14};q^{16})_\\infty(q^{16};q^{16})_\\infty"
+F_K = "%@define f_k = (q^k;q^k)_\\infty\n"
+
+
+def _theta_pair(a: int, b: int, count: int) -> list[int]:
+    """f(q^a, q^b) = (-q^a; q^(a+b)) (-q^b; q^(a+b)) (q^(a+b); q^(a+b)) by multiplying out the factors."""
+    c = [1] + [0] * (count - 1)
+    period = a + b
+    for start, sign in ((a, 1), (b, 1), (period, -1)):
+        for j in range(start, count, period):  # multiply by (1 + sign q^j)
+            for i in range(count - 1, j - 1, -1):
+                c[i] += sign * c[i - j]
+    return c
+
+
+# (F as LaTeX, F's exponents, whether the pieces are divided by f_2 f_4, source)
+NON_ETA_DISSECTIONS = [
+    ("\\frac{f_2^2}{f_1}", PSI, False, "psi(q) = f(q^6,q^10) + q f(q^2,q^14): Berndt III, Ch. 16, Entry 30"),
+    ("\\frac{f_1}{f_2^2}", INV_PSI, True, "1/psi(q) = psi(-q)/(f_2 f_4): Berndt III, Ch. 16, Entries 25, 30"),
+]
+
+
+def _non_eta_side(pieces: list[tuple[str, int, int]], over: bool) -> str:
+    out = ""
+    for text, sign, e in pieces:
+        q = "" if e == 0 else "q" if e == 1 else f"q^{{{e}}}"
+        body = f"\\frac{{{q}{text}}}{{f_2 f_4}}" if over else f"{q}{text}"
+        out += (" - " if sign < 0 else " + ") + body
+    return out.removeprefix(" + ")
+
+
+def _non_eta_series(pieces: list[tuple[str, int, int]], over: bool, count: int) -> list[int]:
+    table = {F_6_10: _theta_pair(6, 10, count), F_2_14: _theta_pair(2, 14, count)}
+    out = [0] * count
+    for text, sign, e in pieces:
+        for i, v in enumerate(table[text][: count - e]):
+            out[i + e] += sign * v
+    if over:  # divide by f_2 f_4
+        for delta in (2, 4):
+            for j in range(delta, count, delta):
+                for i in range(j, count):
+                    out[i] += out[i - j]
+    return out
+
+
+@pytest.mark.parametrize(("left", "exps", "over", "source"), NON_ETA_DISSECTIONS)
+def test_two_dissections_with_non_eta_pieces(left: str, exps: dict[int, int], over: bool, source: str) -> None:
+    sign = -1 if over else 1
+    true = [(F_6_10, 1, 0), (F_2_14, sign, 1)]
+    a = brute(exps, 300)
+    assert _non_eta_series(true, over, 300) == a, source  # brute force: the published identity
+    c = one(f"{left} = {_non_eta_side(true, over)}", F_K)
+    assert c["verdict"] == "unproven", c["message"]  # never refuted; no proof applies
+    variants = [
+        [(F_2_14, 1, 0), (F_6_10, sign, 1)],  # the two pieces swapped
+        [(F_6_10, 1, 0), (F_2_14, -sign, 1)],  # the sign of the second piece
+        [(F_6_10, 1, 0), (F_2_14, sign, 3)],  # q^3 in front of the second piece
+    ]
+    for wrong in variants:
+        b = _non_eta_series(wrong, over, 300)
+        first = next(n for n in range(300) if a[n] != b[n])  # brute force: the variant is false
+        c = one(f"{left} = {_non_eta_side(wrong, over)}", F_K)
+        assert c["verdict"] == "refuted", (wrong, c["message"])
+        w = c["first_difference"]
+        assert (w["n"], int(w["left"]), int(w["right"])) == (first, a[first], b[first])
+
+
 def test_a_defined_generating_function_is_used() -> None:
     doc = "%@define F = \\frac{f_2}{f_1^2}\n%@claim\n\\[ a_F(8n+7) \\equiv 0 \\pmod{64} \\]\n"
     (c,) = claims(doc)
