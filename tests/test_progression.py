@@ -659,8 +659,9 @@ UNIT_CONGRUENCES = [
         4,
         2,
         2,
-        "Calkin, Drake, James, Law, Lee, Penniston and Radder, Divisibility properties of the 5-regular "
-        "and 13-regular partition functions, Integers 8 (2008), the parity of b_5(2n) -- from memory",
+        "sum b_5(2n) q^n = f_1^2 (mod 2), a series in q^2 mod 2: Hirschhorn and Sellers, Elementary proofs of "
+        "parity results for 5-regular partitions, Bull. Aust. Math. Soc. 81 (2010); Calkin et al., Integers 8 "
+        "(2008) -- from memory",
     ),
     (
         "a_G",
@@ -705,6 +706,9 @@ def test_congruences_needing_a_unit_are_proved(
     name: str, exps: dict[int, int], m: int, t: int, modulus: int, source: str
 ) -> None:
     assert all(x % modulus == 0 for x in _direct(exps, m, t, 40)), source  # brute force, first terms
+    if name == "b_5":  # the generating-function congruence behind it, by brute force
+        b5, f1sq = brute(exps, 400), brute({1: 2}, 200)
+        assert all((b5[2 * n] - f1sq[n]) % 2 == 0 for n in range(200))
     c = one(f"{name}({m}n+{t}) \\equiv 0 \\pmod{{{modulus}}}", UNIT_DEFINES)
     assert c["verdict"] == "proved", (source, c["message"])
     assert c["method"] == "u-operator"
