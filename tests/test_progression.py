@@ -322,6 +322,13 @@ DISSECTIONS = [
         [(1, 0, {3: 2, 9: 3, 6: -6}), (-1, 1, {3: 3, 18: 3, 6: -7}), (1, 2, {3: 4, 18: 6, 6: -8, 9: -3})],
         "3-dissection of 1/psi(q) from psi's: Hirschhorn, The Power of q (from memory)",
     ),
+    (
+        "f_1^4",
+        {1: 4},
+        [(1, 0, {2: 2, 8: 10, 4: -4, 16: -4}), (4, 2, {2: 2, 16: 4, 8: -2}), (-4, 1, {2: 2, 8: 4, 4: -2})],
+        "f_1^4 = (f_2 phi(-q))^2 with phi(-q) = phi(q^4) - 2q psi(q^8) (Berndt, Notebooks III, Ch. 16, Entry 25, "
+        "from memory), squared here: the even piece is a sum of two eta quotients",
+    ),
 ]
 
 
