@@ -322,6 +322,13 @@ DISSECTIONS = [
         [(1, 0, {3: 2, 9: 3, 6: -6}), (-1, 1, {3: 3, 18: 3, 6: -7}), (1, 2, {3: 4, 18: 6, 6: -8, 9: -3})],
         "3-dissection of 1/psi(q) from psi's: Hirschhorn, The Power of q (from memory)",
     ),
+    (
+        "f_1^4",
+        {1: 4},
+        [(1, 0, {2: 2, 8: 10, 4: -4, 16: -4}), (4, 2, {2: 2, 16: 4, 8: -2}), (-4, 1, {2: 2, 8: 4, 4: -2})],
+        "f_1^4 = (f_2 phi(-q))^2 with phi(-q) = phi(q^4) - 2q psi(q^8) (Berndt, Notebooks III, Ch. 16, Entry 25, "
+        "from memory), squared here: the even piece is a sum of two eta quotients",
+    ),
 ]
 
 
@@ -345,6 +352,113 @@ def test_false_variants_of_dissections_are_refuted(
         first = next(n for n in range(300) if a[n] != b[n])
         c = one(f"{left} = {_latex(wrong)}")
         assert c["verdict"] == "refuted", (source, c["message"])
+        w = c["first_difference"]
+        assert (w["n"], int(w["left"]), int(w["right"])) == (first, a[first], b[first])
+
+
+def _dissection_modulus(rhs: list[tuple[int, int, dict[int, int]]]) -> int:
+    """The p of a p-dissection: the least prime dividing every delta of the right side."""
+    from math import gcd
+
+    g = 0
+    for _, _, x in rhs:
+        for d in x:
+            g = gcd(g, d)
+    return next(p for p in range(2, g + 1) if g % p == 0)
+
+
+@pytest.mark.parametrize(("left", "exps", "rhs", "source"), DISSECTIONS)
+def test_swapped_signed_and_shifted_dissections_are_refuted(
+    left: str, exps: dict[int, int], rhs: list[tuple[int, int, dict[int, int]]], source: str
+) -> None:
+    p = _dissection_modulus(rhs)
+    swapped = [(g, e + 1 if e % p == 0 else e - 1 if e % p == 1 else e, x) for g, e, x in rhs]  # G_0 <-> G_1
+    gamma, e, x = rhs[-1]
+    signed = [*rhs[:-1], (-gamma, e, x)]  # the sign of the last piece
+    shifted = [*rhs[:-1], (gamma, e + 1, x)]  # the power of q in front of the last piece
+    a = brute(exps, 300)
+    for wrong in (swapped, signed, shifted):
+        b = brute_sum(wrong, 300)
+        first = next(n for n in range(300) if a[n] != b[n])  # brute force: the variant is false
+        c = one(f"{left} = {_latex(wrong)}")
+        assert c["verdict"] == "refuted", (source, wrong, c["message"])
+        w = c["first_difference"]
+        assert (w["n"], int(w["left"]), int(w["right"])) == (first, a[first], b[first])
+
+
+# -- 2-dissections whose pieces are no eta quotients ------------------------------------------
+
+# f(a, b) = (-a; ab)_oo (-b; ab)_oo (ab; ab)_oo (Jacobi's triple product; Berndt, Ramanujan's
+# Notebooks III, Ch. 16, Entry 19).  psi(q) = f(q, q^3) = f(q^6, q^10) + q f(q^2, q^14) (Berndt,
+# Notebooks III, Ch. 16, Entry 30 (ii)-(iii) with a = q, b = q^3 -- from memory), and with q -> -q and
+# psi(q) psi(-q) = psi(q^2) phi(-q^2) = f_2 f_4 (Entry 25 (iv), from memory):
+# 1/psi(q) = (f(q^6, q^10) - q f(q^2, q^14)) / (f_2 f_4).  The pieces f(q^3, q^5) and f(q, q^7) are
+# generalised eta quotients, not eta quotients (docs/method.md#progressions), so these stay unproven
+# (compared as series); their false variants are refuted.
+F_6_10 = "(-q^6;q^{16})_\\infty(-q^{10};q^{16})_\\infty(q^{16};q^{16})_\\infty"
+F_2_14 = "(-q^2;q^{16})_\\infty(-q^{14};q^{16})_\\infty(q^{16};q^{16})_\\infty"
+F_K = "%@define f_k = (q^k;q^k)_\\infty\n"
+
+
+def _theta_pair(a: int, b: int, count: int) -> list[int]:
+    """f(q^a, q^b) = (-q^a; q^(a+b)) (-q^b; q^(a+b)) (q^(a+b); q^(a+b)) by multiplying out the factors."""
+    c = [1] + [0] * (count - 1)
+    period = a + b
+    for start, sign in ((a, 1), (b, 1), (period, -1)):
+        for j in range(start, count, period):  # multiply by (1 + sign q^j)
+            for i in range(count - 1, j - 1, -1):
+                c[i] += sign * c[i - j]
+    return c
+
+
+# (F as LaTeX, F's exponents, whether the pieces are divided by f_2 f_4, source)
+NON_ETA_DISSECTIONS = [
+    ("\\frac{f_2^2}{f_1}", PSI, False, "psi(q) = f(q^6,q^10) + q f(q^2,q^14): Berndt III, Ch. 16, Entry 30"),
+    ("\\frac{f_1}{f_2^2}", INV_PSI, True, "1/psi(q) = psi(-q)/(f_2 f_4): Berndt III, Ch. 16, Entries 25, 30"),
+]
+
+
+def _non_eta_side(pieces: list[tuple[str, int, int]], over: bool) -> str:
+    out = ""
+    for text, sign, e in pieces:
+        q = "" if e == 0 else "q" if e == 1 else f"q^{{{e}}}"
+        body = f"\\frac{{{q}{text}}}{{f_2 f_4}}" if over else f"{q}{text}"
+        out += (" - " if sign < 0 else " + ") + body
+    return out.removeprefix(" + ")
+
+
+def _non_eta_series(pieces: list[tuple[str, int, int]], over: bool, count: int) -> list[int]:
+    table = {F_6_10: _theta_pair(6, 10, count), F_2_14: _theta_pair(2, 14, count)}
+    out = [0] * count
+    for text, sign, e in pieces:
+        for i, v in enumerate(table[text][: count - e]):
+            out[i + e] += sign * v
+    if over:  # divide by f_2 f_4
+        for delta in (2, 4):
+            for j in range(delta, count, delta):
+                for i in range(j, count):
+                    out[i] += out[i - j]
+    return out
+
+
+@pytest.mark.parametrize(("left", "exps", "over", "source"), NON_ETA_DISSECTIONS)
+def test_two_dissections_with_non_eta_pieces(left: str, exps: dict[int, int], over: bool, source: str) -> None:
+    sign = -1 if over else 1
+    true = [(F_6_10, 1, 0), (F_2_14, sign, 1)]
+    a = brute(exps, 300)
+    assert _non_eta_series(true, over, 300) == a, source  # brute force: the published identity
+    c = one(f"{left} = {_non_eta_side(true, over)}", F_K)
+    assert c["verdict"] == "unproven", c["message"]  # never refuted; no proof applies
+    variants = [
+        [(F_2_14, 1, 0), (F_6_10, sign, 1)],  # the two pieces swapped
+        [(F_6_10, 1, 0), (F_2_14, -sign, 1)],  # the sign of the second piece
+        [(F_6_10, 1, 0), (F_2_14, sign, 3)],  # q^3 in front of the second piece
+    ]
+    for wrong in variants:
+        b = _non_eta_series(wrong, over, 300)
+        first = next(n for n in range(300) if a[n] != b[n])  # brute force: the variant is false
+        c = one(f"{left} = {_non_eta_side(wrong, over)}", F_K)
+        assert c["verdict"] == "refuted", (wrong, c["message"])
         w = c["first_difference"]
         assert (w["n"], int(w["left"]), int(w["right"])) == (first, a[first], b[first])
 
@@ -538,3 +652,124 @@ def test_internal_congruence_outside_the_method_is_unproven() -> None:
     c = one("p(5n+4) \\equiv 5\\, p(n) \\pmod 5")
     assert c["verdict"] == "unproven"
     assert "lambda" in c["message"]
+
+
+# -- congruences proved with a unit U = 1 (mod l^a) in h ----------------------------------
+
+# (spelling, generating function, m, t, M, source).  For each, no multiplier E alone makes
+# F(tau) E(m tau) a holomorphic form of integral weight; a unit U = (f_d^l / f_{dl})^j = 1 (mod M)
+# does (docs/method.md#progression-units).
+UNIT_CONGRUENCES = [
+    (
+        "b_5",
+        {1: -1, 5: 1},
+        4,
+        2,
+        2,
+        "sum b_5(2n) q^n = f_1^2 (mod 2), a series in q^2 mod 2: Hirschhorn and Sellers, Elementary proofs of "
+        "parity results for 5-regular partitions, Bull. Aust. Math. Soc. 81 (2010); Calkin et al., Integers 8 "
+        "(2008) -- from memory",
+    ),
+    (
+        "a_G",
+        {1: -2},
+        2,
+        1,
+        2,
+        "ordered pairs of partitions of an odd n: swapping the pair has no fixed point (common practice)",
+    ),
+    (
+        "a_K",
+        {1: -4},
+        4,
+        2,
+        2,
+        "1/f_1^4 = 1/f_4 (mod 2) by (1 - x)^4 = 1 - x^4 (mod 2) (Frobenius, common practice)",
+    ),
+    (
+        "a_H",
+        {1: -5},
+        25,
+        20,
+        5,
+        "1/f_1^5 = 1/f_5 (mod 5) (Frobenius, common practice) with p(5n+4) = 0 (mod 5) (Ramanujan 1919)",
+    ),
+]
+UNIT_DEFINES = "%@define G = \\frac{1}{f_1^2}\n%@define K = \\frac{1}{f_1^4}\n%@define H = \\frac{1}{f_1^5}\n"
+
+
+def _eta_label(label: str) -> dict[int, int]:
+    """The exponents of an eta quotient written ``eta(dtau)^r eta(tau)`` (a certificate's spelling)."""
+    import re
+
+    out = {}
+    for d, r in re.findall(r"eta\((\d*)tau\)(?:\^\(?(-?\d+)\)?)?", label):
+        out[int(d or 1)] = int(r or 1)
+    return out
+
+
+@pytest.mark.parametrize(("name", "exps", "m", "t", "modulus", "source"), UNIT_CONGRUENCES)
+def test_congruences_needing_a_unit_are_proved(
+    name: str, exps: dict[int, int], m: int, t: int, modulus: int, source: str
+) -> None:
+    assert all(x % modulus == 0 for x in _direct(exps, m, t, 40)), source  # brute force, first terms
+    if name == "b_5":  # the generating-function congruence behind it, by brute force
+        b5, f1sq = brute(exps, 400), brute({1: 2}, 200)
+        assert all((b5[2 * n] - f1sq[n]) % 2 == 0 for n in range(200))
+    c = one(f"{name}({m}n+{t}) \\equiv 0 \\pmod{{{modulus}}}", UNIT_DEFINES)
+    assert c["verdict"] == "proved", (source, c["message"])
+    assert c["method"] == "u-operator"
+    prog = c["progression"]
+    assert prog["modulus"] == modulus and prog["m"] == m
+    assert prog["unit"] is not None and c["certificate"]["progression"]["unit"] == prog["unit"]
+    # The unit named by the certificate is 1 modulo M (brute force) and has q-offset 0.
+    unit = _eta_label(prog["unit"])
+    assert sum(d * r for d, r in unit.items()) == 0
+    series = brute(unit, 200)
+    assert series[0] == 1 and all(x % modulus == 0 for x in series[1:]), prog["unit"]
+    # h is F(tau) E(m tau) U(tau).
+    h = _eta_label(prog["form"]["eta"])
+    expected = dict(exps)
+    for d, r in _eta_label(prog["multiplier"]).items():
+        expected[m * d] = expected.get(m * d, 0) + r
+    for d, r in unit.items():
+        expected[d] = expected.get(d, 0) + r
+    assert h == {d: r for d, r in expected.items() if r}
+    assert prog["coefficients_compared"] == prog["target"]["sturm_bound"] + 1
+
+
+@pytest.mark.parametrize(("name", "exps", "m", "t", "modulus", "source"), UNIT_CONGRUENCES)
+def test_false_neighbours_of_unit_congruences_are_refuted(
+    name: str, exps: dict[int, int], m: int, t: int, modulus: int, source: str
+) -> None:
+    checked = 0
+    variants = [
+        (m, t + 1, modulus),
+        (m, t - 1, modulus),
+        (m, t, modulus**2),
+        (m, t, modulus**3),
+        (2 * m, t, modulus**3),
+    ]
+    for mm, tt, mod in variants:
+        direct = _direct(exps, mm, tt, 60)
+        first = next((n for n, x in enumerate(direct) if x % mod), None)
+        if first is None:  # true after all on these terms; not a false neighbour
+            continue
+        c = one(f"{name}({mm}n+{tt}) \\equiv 0 \\pmod{{{mod}}}", UNIT_DEFINES)
+        assert c["verdict"] == "refuted", (mm, tt, mod, c["message"])
+        w = c["first_difference"]
+        assert (w["n"], int(w["left"]), w["modulus"]) == (first, direct[first], mod)
+        checked += 1
+    assert checked >= 2, source
+
+
+def test_a_unit_is_sought_only_for_a_prime_power() -> None:
+    # 1/f_1^6 = 1/f_2^3 (mod 2) and = 1/f_3^2 (mod 3) (Frobenius, common practice), so a(6n+1) = 0
+    # (mod 6); brute force confirms the first terms.  Units are sought only modulo a prime power
+    # (docs/method.md#progression-units), and here no multiplier alone works, so the claim is left
+    # unproven (with the range checked), never refuted; modulo 2 a unit proves it.
+    assert all(x % 6 == 0 for x in _direct({1: -6}, 6, 1, 30))
+    c = one("a_L(6n+1) \\equiv 0 \\pmod{6}", "%@define L = \\frac{1}{f_1^6}\n")
+    assert c["verdict"] == "unproven" and c["terms_compared"] > 1000
+    two = one("a_L(6n+1) \\equiv 0 \\pmod{2}", "%@define L = \\frac{1}{f_1^6}\n")
+    assert two["verdict"] == "proved" and two["progression"]["unit"] is not None

@@ -63,12 +63,14 @@ class Plan:
     k: int  # (t + e) / m: U_m h = q^k P_E(q) sum a(mn+t) q^n
     terms: tuple[tuple[Fraction, EtaQuotient], ...] = ()  # gamma_i E(tau) prod eta^{s_i}
     cusp_bounds: dict[int, Fraction] = field(default_factory=dict)  # lower bounds of orders, by d
+    unit: EtaQuotient | None = None  # U = 1 (mod the modulus), a factor of h (congruences only)
 
     def record(self, m: int, compared: int, modulus: int | None) -> dict[str, Any]:
         """The JSON ``progression`` object of a proved claim."""
         return {
             "m": m,
             "multiplier": self.multiplier.label(),
+            "unit": self.unit.label() if self.unit is not None else None,
             "form": {
                 "eta": self.h.label(),
                 "weight": self.weight,
@@ -122,12 +124,22 @@ def _multipliers(exps: dict[int, int], m: int, t: int) -> list[EtaQuotient]:
     return out
 
 
-def plan(exps: dict[int, int], m: int, t: int, rhs: tuple[Mono, ...] | None, congruence: bool = False) -> Plan | str:
+def plan(
+    exps: dict[int, int],
+    m: int,
+    t: int,
+    rhs: tuple[Mono, ...] | None,
+    congruence: bool = False,
+    modulus: int | None = None,
+) -> Plan | str:
     """The multiplier with the least bound for which the proof applies, or why none does.
 
     ``rhs`` is the claimed sum of products (None for a congruence to 0).  For a congruence
     to a nonzero ``rhs`` (``congruence``) only plans whose terms are holomorphic at every
-    cusp are kept: Sturm's theorem modulo M is applied to a form, not to a quotient.
+    cusp are kept: Sturm's theorem modulo M is applied to a form, not to a quotient.  For a
+    congruence to 0 modulo a prime power (``modulus``), when no multiplier alone makes h a
+    holomorphic form of integral weight, h is also multiplied by a unit U = 1 (mod M)
+    (:func:`units`, docs/method.md#progression-units).
     """
     if not compatible(exps, m, t):
         s = sum(d * r for d, r in exps.items())
@@ -145,16 +157,73 @@ def plan(exps: dict[int, int], m: int, t: int, rhs: tuple[Mono, ...] | None, con
             p = None
         if p is not None and (best is None or p.bound < best.bound):
             best = p
+    if best is None and rhs is None and modulus is not None:
+        best = _plan_with_unit(f_eta, exps, m, t, modulus)
+        if best is None and len(prime_factors(modulus)) > 1:
+            reasons.append(
+                f"no multiplier makes h a holomorphic form of integral weight, and a unit = 1 modulo {modulus} "
+                "is sought only for a prime power"
+            )
     if best is None:
         why = reasons[0] if reasons else "no multiplier makes h a holomorphic form of integral weight"
         return why
     return best
 
 
+MAX_UNIT_POWER = 4  # j in U_d^j tried
+MAX_UNIT_LEVELS = 6  # the least divisors d of m lcm(delta) tried in U_d
+
+
+def units(modulus: int, m: int, exps: dict[int, int]) -> list[EtaQuotient]:
+    """Eta quotients U = 1 (mod M) with q-offset 0, for a prime power M = l^a (else none).
+
+    ``U_d = eta(d tau)^l / eta(d l tau) = f_d^l / f_{dl}`` is 1 modulo l, because
+    ``(1 - x)^l = 1 - x^l (mod l)`` (Frobenius) gives ``f_d^l = f_{dl} (mod l)`` and f_{dl} is a
+    unit of Z[[q]].  Writing ``U_d = 1 + l X``, the binomial theorem gives
+    ``U_d^(l^(a-1)) = 1 (mod l^a)``.  Candidates: ``U_d^(j l^(a-1))`` for the least few d
+    dividing m lcm(delta) and ``1 <= j <= 4``, then ``U_1^(l^(a-1)) U_d^(l^(a-1))`` for those d.
+    """
+    primes = prime_factors(modulus)
+    if len(primes) != 1:
+        return []
+    ell = primes[0]
+    power = modulus // ell
+    big_l = math.lcm(*exps) if exps else 1
+    ds = _divisors(m * big_l)[:MAX_UNIT_LEVELS]
+
+    def unit(d: int, j: int) -> EtaQuotient:
+        return EtaQuotient.of({d: ell * j * power, d * ell: -j * power})
+
+    out = [unit(d, j) for d in ds for j in range(1, MAX_UNIT_POWER + 1)]
+    out += [unit(1, 1) * unit(d, 1) for d in ds if d > 1]
+    return out
+
+
+def _plan_with_unit(f_eta: EtaQuotient, exps: dict[int, int], m: int, t: int, modulus: int) -> Plan | None:
+    """The plan of least bound with h = F(tau) E(m tau) U(tau), U from :func:`units`, or None."""
+    best: Plan | None = None
+    candidates = _multipliers(exps, m, t)
+    for unit in units(modulus, m, exps):
+        for mult in candidates:
+            p = _try(f_eta, mult, m, t, None, [], unit)
+            if p is not None and (best is None or p.bound < best.bound):
+                best = p
+    return best
+
+
 def _try(
-    f_eta: EtaQuotient, mult: EtaQuotient, m: int, t: int, rhs: tuple[Mono, ...] | None, reasons: list[str]
+    f_eta: EtaQuotient,
+    mult: EtaQuotient,
+    m: int,
+    t: int,
+    rhs: tuple[Mono, ...] | None,
+    reasons: list[str],
+    unit: EtaQuotient | None = None,
 ) -> Plan | None:
     h = f_eta * mult.scaled(m)
+    if unit is not None:
+        assert rhs is None and unit.s == 0  # U changes h only modulo M and keeps its q-order
+        h = h * unit
     if h.is_half_integral or h.weight < 1 or h.s % 24:
         return None
     level = h.least_level()
@@ -209,7 +278,7 @@ def _try(
     bound = math.floor(Fraction(k_weight * index_gamma0(target), 12) - pole_sum)
     if not cusp_bounds:
         assert bound == sturm_bound(k_weight, target)
-    return Plan(mult, h, k_weight, level, character, target, bound, e, (t + e) // m, tuple(terms), cusp_bounds)
+    return Plan(mult, h, k_weight, level, character, target, bound, e, (t + e) // m, tuple(terms), cusp_bounds, unit)
 
 
 def _euler_phi(n: int) -> int:
@@ -321,9 +390,16 @@ def u_operator(h: EtaQuotient, m: int, count: int, modulus: int | None = None) -
 def cross_check(prog: Progression, p: Plan, count: int, modulus: int | None = None) -> list[int]:
     """U_m h computed from h must equal q^k P_E(q) sum a(mn+t) q^n (exactly, or modulo M).
 
+    With a unit U in h (congruences only) the equality holds modulo M, since U = 1 (mod M);
+    U itself is checked to be 1 modulo M through the same range.
+
     Returns the coefficients of U_m h.
     """
     direct = prog.values(count, modulus)
+    if p.unit is not None:
+        assert modulus is not None  # U = 1 only modulo M
+        if product_residues(dict(p.unit.exponents), count, modulus) != [1] + [0] * (count - 1):
+            raise Internal(f"the unit {p.unit.label()} is not 1 modulo {modulus} through q^{count - 1}")
     if modulus is None:
         pe = product_coefficients(dict(p.multiplier.exponents), count)
         expected = _padded(fmpz_poly(direct).mul_low(fmpz_poly(pe), count), count)
@@ -503,7 +579,7 @@ def _decide(claim: Claim) -> Outcome:
             return _unproven(claim, prog, f"t = {t} >= m = {m}: the shifted series is not U_{m} of a form")
         t_proof = t % m  # prove the stronger statement for t mod m
     proof_prog = prog if t_proof == t else Progression(claim.exps, m, t_proof)
-    p = plan(claim.exps, m, t_proof, claim.rhs)
+    p = plan(claim.exps, m, t_proof, claim.rhs, modulus=modulus if claim.rhs is None else None)
     if isinstance(p, str):
         return _unproven(claim, prog, p)
     if p.bound > MAX_BOUND:
@@ -619,8 +695,15 @@ def _proved(claim: Claim, p: Plan, count: int, t_proof: int) -> Outcome:
         )
     elif claim.modulus is not None:
         stronger = f" (proved for the whole class {t_proof} mod {m})" if t_proof != claim.t else ""
+        unit = (
+            f" and the unit U = {p.unit.label()} = 1 modulo {claim.modulus} (h = F(tau) E({m}tau) U(tau), "
+            f"so U_{m} h = q^{p.k} P_E sum {claim.what} q^n modulo {claim.modulus})"
+            if p.unit is not None
+            else ""
+        )
         msg = (
-            f"for all n >= 0, {claim.what} = 0 modulo {claim.modulus}{stronger}: with E = {p.multiplier.label()}, "
+            f"for all n >= 0, {claim.what} = 0 modulo {claim.modulus}{stronger}: "
+            f"with E = {p.multiplier.label()}{unit}, "
             f"h = {p.h.label()} is in M_{p.weight}(Gamma0({p.level}), {p.character.name}); U_{m} h is in {target}, "
             f"and its coefficients of q^0..q^{p.bound} ({bound_kind}) are 0 modulo {claim.modulus}"
         )

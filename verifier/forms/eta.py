@@ -148,18 +148,18 @@ class EtaQuotient:
         The factors with ``r > 0`` and those with ``r < 0`` are multiplied out separately,
         each ``prod_n (1 - q^{delta n})^{|r|}`` as a power of Euler's pentagonal series in
         ``x = q^delta`` inflated to ``q``.  Both products have small integer coefficients,
-        so this is cheap.  The quotient then costs one Newton inverse of the denominator
-        (exact over Z, its constant term being 1) and one multiplication.  Inverting the
-        whole denominator at once is cheaper than inverting ``f_1`` and raising the
-        inverse (whose coefficients are large) to a power.
+        so this is cheap.  The quotient then costs a Newton inverse of the denominator to
+        half the precision (exact over Z, its constant term being 1) and one Newton step
+        for the quotient itself (:func:`_unit_quotient`).  Inverting the whole denominator
+        at once is cheaper than inverting ``f_1`` and raising the inverse (whose
+        coefficients are large) to a power.
         """
         if prec <= 0:
             return fmpz_poly([])
         top, bottom = self.product_parts(prec)
         if bottom == 1:
             return top
-        quotient = _unit_inverse(bottom, prec)
-        return quotient if top == 1 else quotient.mul_low(top, prec)
+        return _unit_inverse(bottom, prec) if top == 1 else _unit_quotient(top, bottom, prec)
 
     def product_parts(self, prec: int) -> tuple[Any, Any]:
         """``(prod_{r > 0} f_delta^r, prod_{r < 0} f_delta^{-r}) mod q^prec`` as ``fmpz_poly``.
@@ -369,3 +369,28 @@ def _unit_inverse(f: Any, m: int) -> Any:
         g -= g.mul_low(err, n - k).left_shift(k)
         k = n
     return g.truncate(m)
+
+
+def _unit_quotient(top: Any, bottom: Any, m: int) -> Any:
+    """``top / bottom mod x^m`` for ``fmpz_poly`` with ``bottom(0) = 1``, exact over Z.
+
+    The last Newton step of the inverse is merged with the multiplication by ``top``
+    (Karp and Markstein, "High-precision division and square root", ACM TOMS 23 (1997)):
+    with ``g = 1/bottom mod x^k``, ``k = ceil(m/2)``, and ``y0 = top g mod x^k`` (the first
+    k terms of the quotient), the remainder ``top - bottom y0`` vanishes below ``x^k`` and
+
+        top / bottom = y0 + x^k g ((top - bottom y0) / x^k)   mod x^m,
+
+    since ``g`` is exact to ``x^k`` and the correction is needed only to ``x^(m-k)``.  This
+    replaces a full-length inverse step and a full-length product of two series with
+    large coefficients by a full-length product of ``bottom`` (small coefficients) with
+    ``y0`` and two half-length products.
+    """
+    assert bottom[0] == 1
+    if m <= 32:
+        return _unit_inverse(bottom, m).mul_low(top, m)
+    k = (m + 1) // 2
+    g = _unit_inverse(bottom, k)
+    y0 = g.mul_low(top, k)
+    rest = (top.truncate(m) - bottom.truncate(m).mul_low(y0, m)).right_shift(k)
+    return y0 + g.mul_low(rest, m - k).left_shift(k)
