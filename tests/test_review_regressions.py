@@ -280,3 +280,19 @@ def test_dots_after_forms_are_not_a_printed_expansion() -> None:
         ("proved", None),
         ("proved", None),
     ]
+
+
+def test_no_congruence_proof_for_a_form_with_a_pole_at_another_cusp() -> None:
+    # eta(2tau)^20/eta(tau)^16 has order (4/24)(20*1/2 - 16)/1 < 0 at the cusp 0 of Gamma_0(4)
+    # (Ligozat's formula, docs/method.md#ligozat), so it is no holomorphic modular form and Sturm's
+    # theorem modulo M does not apply to it, whatever its first coefficients say.
+    from fractions import Fraction
+
+    assert Fraction(4, 24) * (Fraction(20, 2) - 16) < 0
+    text = (
+        "%@claim\n\\[ \\frac{\\eta(2\\tau)^{20}}{\\eta(\\tau)^{16}} \\equiv "
+        "\\frac{E_2(2\\tau)-E_2(\\tau)}{24} \\pmod 2 \\]\n"
+    )
+    (claim,) = check_text(text).claims
+    assert claim.verdict == "unproven"
+    assert "pole at the cusps a/1" in claim.outcome.message

@@ -74,6 +74,19 @@ def prove_modulo(
 
     def attempt(left: ir.Side, right: ir.Side, modulus: int) -> tuple[Any, list[Piece], int] | Outcome:
         level = claim_level(left, right)
+        poles = _poles(left, right, level)
+        if poles:
+            # Sturm's theorem modulo M is a statement about holomorphic forms; an eta quotient with
+            # a pole at another cusp would let a false congruence through (docs/method.md#poles-at-cusps).
+            return Outcome(
+                "unproven",
+                kind,
+                f"the sides agree modulo {claim.modulus} for {claim.start} <= n <= {claim.start + CHECK}, but "
+                f"a side may have a pole at the cusps {poles} of Gamma_0({level}); congruences are proved only "
+                "between forms holomorphic at every cusp",
+                method="computation",
+                terms_compared=CHECK + 1,
+            )
 
         def chars(atom: ir.Atom) -> int:
             from verifier.forms import registry
@@ -138,6 +151,18 @@ def prove_modulo(
         method="computation",
         components=decision.details,
     )
+
+
+def _poles(left: ir.Side, right: ir.Side, level: int) -> str:
+    """The cusps a/d (other than infinity) where a piece of left - right may have a pole, as text."""
+    from verifier.forms import registry
+    from verifier.prove import orders
+
+    try:
+        bounds = orders.difference_bounds(left.expr, right.expr, level)
+    except registry.NotModular:
+        return "(unknown)"
+    return ", ".join(f"a/{d}" for d, v in sorted(bounds.items()) if d != level and v < 0)
 
 
 def _frobenius(decision: Any, sides: tuple[ir.Side, ir.Side], attempt: Any) -> Any:
