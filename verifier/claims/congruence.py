@@ -12,6 +12,7 @@ Congruences of progressions ``a(mn+t)`` are the progression kind's.
 from __future__ import annotations
 
 import dataclasses
+import math
 from typing import Any
 
 from verifier.arith.values import Values
@@ -208,8 +209,9 @@ def _frobenius(decision: Any, sides: tuple[ir.Side, ir.Side], attempt: Any) -> A
     if failing:
         reason = "; ".join(f"mod {d['modulus']}: {d.get('reason', 'not proved')}" for d in failing)
         return dataclasses.replace(decision, reason=reason, details=details)
-    parts = " * ".join(str(d["modulus"]) for d in details)
-    head = f"proved mod {parts}, one prime power at a time (Chinese remainder theorem): "
+    from verifier.prove.congruence import crt_head
+
+    head = crt_head(math.prod(int(d["modulus"]) for d in details), [int(d["modulus"]) for d in details])
     bounds = [int(d["bound"]) for d in details if d.get("bound") is not None]
     return dataclasses.replace(
         decision,

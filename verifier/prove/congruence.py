@@ -490,11 +490,18 @@ def decide_congruence(pieces: list[Piece], modulus: int, level: int) -> Congruen
             witness,
         )
     if all(r.proved for r in results):
-        parts = " * ".join(str(r.detail["modulus"]) for r in results)
-        head = f"proved mod {m} = {parts}, one prime power at a time (Chinese remainder theorem): "
+        head = crt_head(m, [int(r.detail["modulus"]) for r in results])
         return CongruenceDecision(True, head + "; ".join(r.summary for r in results), bound, details)
     failing = [r for r in results if not r.proved]
     return CongruenceDecision(False, "; ".join(r.summary for r in failing), bound, details)
+
+
+def crt_head(m: int, moduli: list[int]) -> str:
+    """How a proof modulo ``m`` from the prime powers ``moduli`` begins its message."""
+    if len(moduli) == 1:
+        return ""  # the message of the one prime power says "mod p^e: ..." itself
+    parts = " * ".join(str(x) for x in moduli)
+    return f"proved mod {m} = {parts}, one prime power at a time (Chinese remainder theorem): "
 
 
 def _scan(items: list[_Item], m: int) -> tuple[dict[str, Any] | None, dict[str, Any] | None, list[int | None], int]:
