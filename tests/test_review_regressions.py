@@ -283,16 +283,39 @@ def test_dots_after_forms_are_not_a_printed_expansion() -> None:
 
 
 def test_no_congruence_proof_for_a_form_with_a_pole_at_another_cusp() -> None:
-    # eta(2tau)^20/eta(tau)^16 has order (4/24)(20*1/2 - 16)/1 < 0 at the cusp 0 of Gamma_0(4)
-    # (Ligozat's formula, docs/method.md#ligozat), so it is no holomorphic modular form and Sturm's
-    # theorem modulo M does not apply to it, whatever its first coefficients say.
+    # F = eta(2tau)^20/eta(tau)^16 has order (4/24)(20/2 - 16) < 0 at the cusp 0 of Gamma_0(4)
+    # (Ligozat's formula, docs/method.md#ligozat): no holomorphic form, so Sturm's theorem modulo M
+    # is not applied to a side containing it, even where (as here, trivially) the claim is true.
+    # Modulo 2 its Frobenius lift eta(tau)^40/eta(tau)^16 = Delta is holomorphic, and the claim is
+    # proved through it (docs/method.md#congruence-frobenius); modulo 3 no lift applies.
     from fractions import Fraction
 
     assert Fraction(4, 24) * (Fraction(20, 2) - 16) < 0
-    text = (
-        "%@claim\n\\[ \\frac{\\eta(2\\tau)^{20}}{\\eta(\\tau)^{16}} \\equiv "
-        "\\frac{E_2(2\\tau)-E_2(\\tau)}{24} \\pmod 2 \\]\n"
+    f = "\\frac{\\eta(2\\tau)^{20}}{\\eta(\\tau)^{16}}"
+    text = "".join(f"%@claim\n\\[ {f} \\equiv {f} + {m}\\theta(\\tau)^4 \\pmod {m} \\]\n" for m in (2, 3))
+    mod2, mod3 = check_text(text).claims
+    assert mod2.verdict == "proved" and "lifted by Frobenius" in mod2.outcome.message
+    assert mod3.verdict == "unproven"
+    assert "pole at the cusps a/1" in mod3.outcome.message
+
+
+def test_overpartitions_are_even_by_frobenius() -> None:
+    # sum pbar(n) q^n = f_2/f_1^2 and f_1^2 = f_2 (mod 2) (Frobenius: (1-x)^2 = 1-x^2 mod 2), so
+    # pbar(n) is even for n >= 1 (Corteel and Lovejoy, Trans. AMS 356 (2004), from memory); the
+    # values are counted here by brute force, and the claim modulo 4 is false at n = 1 (pbar(1) = 2).
+    n_max = 30
+    series = [1] + [0] * n_max  # prod (1+q^n)/(1-q^n)
+    for k in range(1, n_max + 1):
+        for _ in range(2):  # 1/(1-q^k), twice, times (1-q^{2k}) = (1+q^k)/(1-q^k)
+            for i in range(k, n_max + 1):
+                series[i] += series[i - k]
+        for i in range(n_max, 2 * k - 1, -1):
+            series[i] -= series[i - 2 * k]
+    assert series[:5] == [1, 2, 4, 8, 14] and all(v % 2 == 0 for v in series[1:])
+    report = check_text(
+        "%@claim\n\\[ \\overline{p}(n) \\equiv 0 \\pmod 2 \\quad (n \\ge 1) \\]\n"
+        "%@claim\n\\[ \\overline{p}(n) \\equiv 0 \\pmod 4 \\quad (n \\ge 1) \\]\n"
     )
-    (claim,) = check_text(text).claims
-    assert claim.verdict == "unproven"
-    assert "pole at the cusps a/1" in claim.outcome.message
+    assert [c.verdict for c in report.claims] == ["proved", "refuted"]
+    witness = report.claims[1].outcome.first_difference
+    assert witness is not None and witness["n"] == 1

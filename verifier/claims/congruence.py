@@ -76,18 +76,6 @@ def prove_modulo(
     def attempt(left: ir.Side, right: ir.Side, modulus: int) -> tuple[Any, list[Piece], int] | Outcome:
         level = claim_level(left, right)
         poles = _poles(left, right, level)
-        if poles:
-            # Sturm's theorem modulo M is a statement about holomorphic forms; an eta quotient with
-            # a pole at another cusp would let a false congruence through (docs/method.md#poles-at-cusps).
-            return Outcome(
-                "unproven",
-                kind,
-                f"the sides agree modulo {claim.modulus} for {claim.start} <= n <= {claim.start + CHECK}, but "
-                f"a side may have a pole at the cusps {poles} of Gamma_0({level}); congruences are proved only "
-                "between forms holomorphic at every cusp",
-                method="computation",
-                terms_compared=CHECK + 1,
-            )
 
         def chars(atom: ir.Atom) -> int:
             from verifier.forms import registry
@@ -111,6 +99,16 @@ def prove_modulo(
             if decision.proved or wanted is None or wanted <= prec or wanted > prover.max_terms:
                 break
             prec = wanted
+        if poles and decision.proved:
+            # Sturm's theorem modulo M is about forms holomorphic at every cusp; a side with a pole
+            # at another cusp (docs/method.md#poles-at-cusps) proves nothing, though its Frobenius
+            # lift may still be holomorphic (tried by the caller).
+            why = (
+                f"a side may have a pole at the cusps {poles} of Gamma_0({level}); congruences are proved only "
+                "between forms holomorphic at every cusp"
+            )
+            details = [{**d, "proved": False, "reason": why} for d in decision.details]
+            decision = dataclasses.replace(decision, proved=False, reason=why, details=details)
         return decision, pieces, level
 
     left, right = sides
@@ -119,7 +117,7 @@ def prove_modulo(
         return first
     decision, pieces, level = first
     if not decision.proved and decision.witness is None and decision.undefined is None:
-        decision = _frobenius(decision, sides, attempt)
+        decision = _frobenius(decision, sides, attempt, claim.modulus)
     if decision.proved:
         check = first_direct_difference(claim, values, max(claim.start, 1), claim.start + CHECK)
         if check is not None:
@@ -166,15 +164,30 @@ def _poles(left: ir.Side, right: ir.Side, level: int) -> str:
     return ", ".join(f"a/{d}" for d, v in sorted(bounds.items()) if d != level and v < 0)
 
 
-def _frobenius(decision: Any, sides: tuple[ir.Side, ir.Side], attempt: Any) -> Any:
+def _valuation(n: int, p: int) -> int:
+    e = 0
+    while n % p == 0:
+        n //= p
+        e += 1
+    return e
+
+
+def _frobenius(decision: Any, sides: tuple[ir.Side, ir.Side], attempt: Any, modulus: int) -> Any:
     """Retry each unproved prime power p^e with the eta quotients of both sides lifted by Frobenius
     (docs/method.md#congruence-frobenius): the lifted sides are congruent to the author's modulo p^e
     coefficientwise, so a proof for them modulo p^e is one for the claim.  Returns ``decision``, with
     the prime powers proved this way replaced, and proved when every prime power is."""
     from verifier.forms.registry import NotModular
+    from verifier.numbers import prime_factors
     from verifier.prove.frobenius import describe, lift_side
 
-    details = list(decision.details)
+    # A decision that stopped before looking at any prime power (say, at a piece of half-integral
+    # weight) has no details: every prime power of the modulus is then still to be proved.
+    details = list(decision.details) or [
+        {"prime": p, "exponent": _valuation(modulus, p), "modulus": p ** _valuation(modulus, p), "proved": False}
+        | {"reason": decision.reason}
+        for p in prime_factors(modulus)
+    ]
     changed = False
     for i, detail in enumerate(details):
         if detail.get("proved"):

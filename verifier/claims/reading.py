@@ -151,7 +151,9 @@ def read(
                     return None
                 gen, m, t, what = term
                 start = start_n or 0
-                if start < 0:
+                if start < 0 or (m == 1 and start > 0 and residues is None):
+                    # a(n) = 0 mod M for n >= s > 0 is no progression: the congruence of the
+                    # generating function (constant terms removed) decides it.
                     return None
                 # n >= start: a(m(n' + start) + t) with n' >= 0.
                 claims.append(Claim(what, dict(gen.exps), m, t + m * start, None, modulus, start))
