@@ -362,3 +362,45 @@ def test_an_unsupported_weight_stays_series_only() -> None:
     # n^2 is no weight of a unary theta series of weight <= 3/2: compared as series only.
     text = ZS + r"(-1)^n n^2 q^{n^2} = " + ZS + r"(-1)^n n^2 q^{n^2}"
     assert _verdict(text)[::2] == ("unproven", "series-only")
+
+
+# -- the independent re-checker -------------------------------------------------------------
+def _certificate(text: str) -> dict[str, object]:
+    import json
+
+    from verifier import check_text
+
+    data = json.loads(json.dumps(check_text(f"%@claim\n\\[ {text} \\]\n", "c.tex").to_dict()))
+    (claim,) = data["claims"]
+    assert claim["verdict"] == "proved"
+    cert: dict[str, object] = claim["certificate"]
+    return cert
+
+
+@pytest.mark.parametrize("case", IDENTITIES, ids=[c[1][:40] for c in IDENTITIES])
+def test_certificates_are_rechecked(case: tuple[str, str, Series, Series, list[tuple[str, Series, Series]]]) -> None:
+    from verifier.recheck.check import CONFIRMED, recheck
+
+    assert recheck(_certificate(case[1])).status == CONFIRMED
+
+
+@pytest.mark.parametrize(
+    ("old", "new"),
+    [
+        ("(utheta 3 0 1)", "(utheta 5 0 1)"),  # another character
+        ("(utheta 3 0 1)", "(utheta 3 0 2)"),  # another scale
+        ("(utheta 3 0 1)", "(utheta 3 1 1)"),  # n^1 with an even character: no such form
+        ("(utheta 3 0 1)", "(utheta 6 0 1)"),  # the kernel of no character the claim's space allows
+    ],
+)
+def test_an_altered_unary_theta_fails_the_recheck(old: str, new: str) -> None:
+    import copy
+
+    from verifier.recheck.check import FAILED, recheck
+
+    cert = _certificate(ZS + r"\left(\frac{12}{n}\right) q^{n^2} = 2\eta(24\tau)")
+    altered = copy.deepcopy(cert)
+    left = altered["left"]
+    assert isinstance(left, dict) and left["expr"] == old
+    left["expr"] = new
+    assert recheck(altered).status == FAILED
