@@ -20,7 +20,6 @@ from fractions import Fraction
 
 import mpmath
 import pytest
-
 from verifier.forms import registry
 from verifier.forms.unary_theta import KEY, character, level
 from verifier.numbers import QuadraticCharacter, kronecker
@@ -49,7 +48,7 @@ def _gammas(level_n: int, rng: random.Random) -> list[tuple[int, int, int, int]]
         d = rng.randrange(1, 12 * abs(c)) * rng.choice([1, -1])
         if math.gcd(c, d) != 1:
             continue
-        g, x, y = _egcd(d, -c)  # a d - b c = 1
+        _, x, y = _egcd(d, -c)  # a d - b c = 1
         out.append((x, y, c, d))
     signs = {(c > 0, d > 0) for _, _, c, d in out}
     return out if len(signs) > 1 else _gammas(level_n, rng)
@@ -94,7 +93,9 @@ def _law_holds(kernel: int, nu: int, t: int, chi: QuadraticCharacter, seed: int)
     return True
 
 
-CASES = [(k, 0) for k in (1, 3, 5, 2)] + [(k, 1) for k in (-1, -3, -2)]  # 1, chi_12, chi_5, chi_8; chi_-4, chi_-3, chi_-8
+CASES = [(k, 0) for k in (1, 3, 5, 2)] + [
+    (k, 1) for k in (-1, -3, -2)
+]  # 1, chi_12, chi_5, chi_8; chi_-4, chi_-3, chi_-8
 
 
 @pytest.mark.parametrize(("kernel", "nu"), CASES)
@@ -196,16 +197,25 @@ IDENTITIES: list[tuple[str, str, Series, Series, list[tuple[str, Series, Series]
         [
             (ZS + r"\left(\frac{12}{n}\right) q^{n^2} = \eta(24\tau)", [], prod({24: 1}, 1, 1)),
             (ZS + r"\left(\frac{12}{n}\right) q^{n^2} = 2q\eta(24\tau)", [], prod({24: 1}, 2, 2)),
-            (ZS + r"\left(\frac{-4}{n}\right) n q^{n^2} = 2\eta(24\tau)", zsum(lambda n: kronecker(-4, n) * n, lambda n: n * n), prod({24: 1}, 1, 2)),
+            (
+                ZS + r"\left(\frac{-4}{n}\right) n q^{n^2} = 2\eta(24\tau)",
+                zsum(lambda n: kronecker(-4, n) * n, lambda n: n * n),
+                prod({24: 1}, 1, 2),
+            ),
         ],
     ),
     (
-        "Jacobi's identity f_1^3 = sum (-1)^n (2n+1) q^{n(n+1)/2} (Berndt, Ramanujan's Notebooks III, Ch. 16, Entry 24(ii); from memory)",
+        "Jacobi's identity f_1^3 = sum (-1)^n (2n+1) q^{n(n+1)/2} "
+        "(Berndt, Ramanujan's Notebooks III, Ch. 16, Entry 24(ii); from memory)",
         r"\sum_{n\ge0}(-1)^n(2n+1)q^{n(n+1)/2} = \prod_{n\ge1}(1-q^n)^3",
         zsum(lambda n: (-1) ** n * (2 * n + 1), lambda n: Fraction(n * (n + 1), 2), 0),
         prod({1: 3}),
         [
-            (r"\sum_{n\ge0}(2n+1)q^{n(n+1)/2} = \prod_{n\ge1}(1-q^n)^3", zsum(lambda n: 2 * n + 1, lambda n: Fraction(n * (n + 1), 2), 0), prod({1: 3})),
+            (
+                r"\sum_{n\ge0}(2n+1)q^{n(n+1)/2} = \prod_{n\ge1}(1-q^n)^3",
+                zsum(lambda n: 2 * n + 1, lambda n: Fraction(n * (n + 1), 2), 0),
+                prod({1: 3}),
+            ),
             (r"\sum_{n\ge0}(-1)^n(2n+1)q^{n(n+1)/2} = \prod_{n\ge1}(1-q^n)^3(1-q^{2n})", [], prod({1: 3, 2: 1})),
         ],
     ),
@@ -216,7 +226,11 @@ IDENTITIES: list[tuple[str, str, Series, Series, list[tuple[str, Series, Series]
         prod({8: 3}, 1),
         [
             (r"\sum_{n\ge1}\left(\frac{-4}{n}\right) n q^{n^2} = -\eta(8\tau)^3", [], prod({8: 3}, 1, -1)),
-            (r"\sum_{n\ge1}\left(\frac{-4}{n}\right) n q^{n^2+1} = \eta(8\tau)^3", zsum(lambda n: kronecker(-4, n) * n, lambda n: n * n + 1, 1), prod({8: 3}, 1)),
+            (
+                r"\sum_{n\ge1}\left(\frac{-4}{n}\right) n q^{n^2+1} = \eta(8\tau)^3",
+                zsum(lambda n: kronecker(-4, n) * n, lambda n: n * n + 1, 1),
+                prod({8: 3}, 1),
+            ),
         ],
     ),
     (
@@ -227,7 +241,8 @@ IDENTITIES: list[tuple[str, str, Series, Series, list[tuple[str, Series, Series]
         [(r"\sum_{n\ge0} q^{n(n+1)/2} = \prod_{n\ge1}\frac{(1-q^{2n})^3}{1-q^n}", [], prod({1: -1, 2: 3}))],
     ),
     (
-        "2-dissection of psi: psi(q) = f(q^6, q^10) + q f(q^2, q^14) (Berndt III, Ch. 16, Entry 25; Hirschhorn, The Power of q, Ch. 1; from memory)",
+        "2-dissection of psi: psi(q) = f(q^6, q^10) + q f(q^2, q^14) "
+        "(Berndt III, Ch. 16, Entry 25; Hirschhorn, The Power of q, Ch. 1; from memory)",
         ZS + r" q^{8n^2+2n} + q" + ZS + r" q^{8n^2+6n} = \sum_{n\ge0} q^{n(n+1)/2}",
         add(zsum(lambda n: 1, lambda n: 8 * n * n + 2 * n), zsum(lambda n: 1, lambda n: 8 * n * n + 6 * n + 1)),
         PSI,
@@ -239,7 +254,9 @@ IDENTITIES: list[tuple[str, str, Series, Series, list[tuple[str, Series, Series]
             ),
             (
                 ZS + r" q^{8n^2+2n} - q" + ZS + r" q^{8n^2+6n} = \sum_{n\ge0} q^{n(n+1)/2}",
-                add(zsum(lambda n: 1, lambda n: 8 * n * n + 2 * n), zsum(lambda n: -1, lambda n: 8 * n * n + 6 * n + 1)),
+                add(
+                    zsum(lambda n: 1, lambda n: 8 * n * n + 2 * n), zsum(lambda n: -1, lambda n: 8 * n * n + 6 * n + 1)
+                ),
                 PSI,
             ),
         ],
@@ -276,15 +293,22 @@ IDENTITIES: list[tuple[str, str, Series, Series, list[tuple[str, Series, Series]
         ],
     ),
     (
-        "3-dissection of psi: psi(q) = f(q^3, q^6) + q psi(q^9) (Berndt III, Ch. 16, Entry 25; Hirschhorn, The Power of q, Ch. 14; from memory)",
+        "3-dissection of psi: psi(q) = f(q^3, q^6) + q psi(q^9) "
+        "(Berndt III, Ch. 16, Entry 25; Hirschhorn, The Power of q, Ch. 14; from memory)",
         r"\sum_{n\ge0} q^{n(n+1)/2} = " + ZS + r" q^{(9n^2+3n)/2} + q\sum_{n\ge0} q^{9n(n+1)/2}",
         PSI,
-        add(zsum(lambda n: 1, lambda n: Fraction(9 * n * n + 3 * n, 2)), zsum(lambda n: 1, lambda n: Fraction(9 * n * (n + 1), 2) + 1, 0)),
+        add(
+            zsum(lambda n: 1, lambda n: Fraction(9 * n * n + 3 * n, 2)),
+            zsum(lambda n: 1, lambda n: Fraction(9 * n * (n + 1), 2) + 1, 0),
+        ),
         [
             (
                 r"\sum_{n\ge0} q^{n(n+1)/2} = q" + ZS + r" q^{(9n^2+3n)/2} + \sum_{n\ge0} q^{9n(n+1)/2}",
                 [],
-                add(zsum(lambda n: 1, lambda n: Fraction(9 * n * n + 3 * n, 2) + 1), zsum(lambda n: 1, lambda n: Fraction(9 * n * (n + 1), 2), 0)),
+                add(
+                    zsum(lambda n: 1, lambda n: Fraction(9 * n * n + 3 * n, 2) + 1),
+                    zsum(lambda n: 1, lambda n: Fraction(9 * n * (n + 1), 2), 0),
+                ),
             )
         ],
     ),

@@ -9,8 +9,9 @@ module turns it into typed expressions (docs/method.md#products, #sums-over-z):
   product is the eta quotient ``q^{-s/24} prod eta(d tau)^{r_d}`` (Möbius inversion);
   otherwise it is a series-only atom;
 * ``sum_{n in Z} (±1)^n q^{a n^2 + b n + c}`` is a product by the Jacobi triple product,
-  and so goes the same way; sums with other weights, and one-sided sums with a quadratic
-  exponent, are series-only atoms.
+  and so goes the same way; sums with periodic weights (times n), and one-sided sums of the
+  right symmetry, are combinations of unary theta series (:mod:`verifier.elaborate.unary`)
+  when the characters needed are quadratic; the rest are series-only atoms.
 
 Series-only atoms are compared coefficient by coefficient (docs/method.md#series-only).
 A construct outside this reading raises ``unsupported-notation`` naming it, with the
