@@ -95,7 +95,7 @@ def verdict_of(text: str) -> tuple[str, object, str | None]:
     return claim.verdict, (fd["n"] if fd else None), claim.outcome.code
 
 
-# (claim, brute-force left, brute-force right, proved when true: an identity of eta quotients)
+# (claim, brute-force left, brute-force right, proved when true: an identity of modular forms)
 CASES: list[tuple[str, Callable[[], Series], Callable[[], Series], bool]] = [
     # Euler's pentagonal number theorem, three spellings of the sum and of the product.
     (
@@ -177,7 +177,7 @@ CASES: list[tuple[str, Callable[[], Series], Callable[[], Series], bool]] = [
         r"\sum_{n\ge0} (-1)^n (2n+1) q^{n(n+1)/2} = (q;q)_\infty^3",
         lambda: z_sum(lambda k: (-1) ** k * (2 * k + 1), lambda k: k * (k + 1) // 2, lower=0),
         lambda: mul(f(1), f(1), f(1)),
-        False,
+        True,  # a unary theta series: (1/2) q^{-1/8} theta_{chi_{-4},1}(tau/8) (docs/method.md#sums-over-z)
     ),
     (
         r"\frac{1}{(q;q^5)_\infty(q^4;q^5)_\infty} = \frac{1}{(q^2;q^5)_\infty(q^3;q^5)_\infty}",

@@ -72,7 +72,8 @@ def function_kind(name: str, forms: dict[str, Any], matrices: dict[str, Any]) ->
 def uses_arithmetic(node: ast.Node, forms: dict[str, Any], matrices: dict[str, Any]) -> bool:
     """Whether a claim's AST contains arithmetic functions or finite sums (outside the
     generating-function sums ``\\sum_{n \\ge 1} a(n) q^n``, which are forms)."""
-    if isinstance(node, ast.BigSum) and node.kind == "at_least":
+    if isinstance(node, ast.BigSum) and node.kind in ("at_least", "integers"):
+        # A sum over n >= L or over Z is a q-series; a Kronecker symbol in its index is its weight.
         return False
     if isinstance(node, ast.Call) and function_kind(node.name, forms, matrices) is not None:
         return True

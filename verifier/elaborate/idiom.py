@@ -9,8 +9,9 @@ module turns it into typed expressions (docs/method.md#products, #sums-over-z):
   product is the eta quotient ``q^{-s/24} prod eta(d tau)^{r_d}`` (Möbius inversion);
   otherwise it is a series-only atom;
 * ``sum_{n in Z} (±1)^n q^{a n^2 + b n + c}`` is a product by the Jacobi triple product,
-  and so goes the same way; sums with other weights, and one-sided sums with a quadratic
-  exponent, are series-only atoms.
+  and so goes the same way; sums with periodic weights (times n), and one-sided sums of the
+  right symmetry, are combinations of unary theta series (:mod:`verifier.elaborate.unary`)
+  when the characters needed are quadratic; the rest are series-only atoms.
 
 Series-only atoms are compared coefficient by coefficient (docs/method.md#series-only).
 A construct outside this reading raises ``unsupported-notation`` naming it, with the
@@ -644,9 +645,60 @@ class SumReader:
             if c != 1:
                 out = self.elaborator.mul(ir.Const(ir.Typ(Fraction(0)), str(c), Fraction(c)), out, src, node)
             out = shifted(out, shift + gamma, src)
+            if any(a.key == SERIES_ONLY for a in ir.atoms_of(out)):
+                # No eta quotient (f(q^6, q^10)): a combination of unary theta series may still be one.
+                unary = self._unary(node, alpha, beta, lower, [w for w in weights if mentions(w, node.var)], src)
+                if unary is not None:
+                    out = shifted(unary, gamma, src)
         else:
-            out = self._theta_like(node, alpha, beta, gamma, lower, weights, src)
+            unary = self._unary(node, alpha, beta, lower, [w for w in weights if mentions(w, node.var)], src)
+            out = unary if unary is not None else self._theta_like(node, alpha, beta, gamma, lower, weights, src)
+            if unary is not None:
+                out = shifted(out, gamma, src)
         return out if factor is None else self.elaborator.mul(factor, out, src, node)
+
+    def _unary(
+        self, node: ast.BigSum, alpha: Fraction, beta: Fraction, lower: int | None, weights: list[ast.Node], src: str
+    ) -> ir.Expr | None:
+        """The sum as a combination of unary theta series with quadratic characters, or None
+        (docs/method.md#sums-over-z, #unary-theta)."""
+        from verifier.arith.elaborate import ArithmeticError_, to_arith
+        from verifier.arith.values import Values
+        from verifier.elaborate.elaborator import _atom
+        from verifier.elaborate.unary import decompose
+        from verifier.forms import unary_theta
+        from verifier.forms.registry import AtomInfo
+
+        term: Any = None
+        if weights:
+            el = self.elaborator
+            try:
+                term = to_arith(_product_of(weights, node.span), self.text, el.definitions, el.matrices, lambda f: f)
+            except ArithmeticError_:
+                return None
+        found = decompose(term, node.var, alpha, beta, lower, Values())
+        if found is None:
+            return None
+        terms: list[ir.Expr] = []
+        if found.constant:
+            terms.append(ir.Const(ir.Typ(Fraction(0)), frac_text(found.constant), found.constant))
+        for piece in found.pieces:
+            info = AtomInfo(unary_theta.KEY, unary_theta.weight(piece.nu), params=(piece.kernel, piece.nu))
+            atom: ir.Expr = _atom(info, piece.scale, src, node)
+            if piece.coefficient != 1:
+                c = ir.Const(ir.Typ(Fraction(0)), frac_text(piece.coefficient), piece.coefficient)
+                atom = ir.Product(ir.Typ(atom.typ.weight, 0, atom.typ.level), src, c, atom)
+            terms.append(atom)
+        if not terms:
+            return ir.Const(ir.Typ(Fraction(0)), "0", Fraction(0))
+        out = terms[0]
+        for more in terms[1:]:
+            weight = max(w for w in (out.typ.weight, more.typ.weight) if w is not None)
+            typ = ir.Typ(weight, 0, _lcm(out.typ.level, more.typ.level), mixed=True)
+            out = ir.Sum(typ, src, out, more, 1)
+        if len(terms) > 1 or found.constant:
+            out = dataclasses.replace(out, typ=dataclasses.replace(out.typ, mixed=True))
+        return shifted(out, found.shift, src)
 
     def _theta_like(
         self,
@@ -793,6 +845,14 @@ class SumReader:
         )
         result: ir.Expr = self.elaborator.generating_sum(outer, self.text)
         return result
+
+
+def frac_text(c: Fraction) -> str:
+    return str(c.numerator) if c.denominator == 1 else f"{c.numerator}/{c.denominator}"
+
+
+def _lcm(a: int, b: int) -> int:
+    return a * b // math.gcd(a, b)
 
 
 def _is_q_power(node: ast.Node) -> bool:

@@ -6,7 +6,9 @@ An atom is a family key, a scale (``tau -> scale * tau``) and parameters:
 * ``eta`` -- an eta quotient ``prod eta(delta tau)^r``; parameters are the pairs
   ``(delta, r)`` with *rational* delta (the scale is folded into delta), so that Jacobi's
   thetas in the nome ``e^{pi i tau}`` (which involve ``eta(tau/2)``) are eta quotients too;
-* ``theta`` -- the theta series of a quadratic form; parameters are the Gram matrix.
+* ``theta`` -- the theta series of a quadratic form; parameters are the Gram matrix;
+* ``utheta`` -- a unary theta series sum_{n in Z} psi(n) n^nu q^{n^2} with psi quadratic;
+  parameters ``(kernel of psi, nu)`` (docs/method.md#unary-theta).
 
 Before a claim is proved it is rescaled so that every delta, scale and exponent is an
 integer (docs/method.md#eta-offset); the functions below that ask for a level expect that.
@@ -167,6 +169,10 @@ def level(key: str, scale: int, params: tuple[Any, ...]) -> int:
         return int(n)
     if key == "theta":
         return int(quadratic_form(params).level) * scale
+    if key == "utheta":
+        from verifier.forms import unary_theta
+
+        return unary_theta.level(params[0], params[1], scale)
     if key == "Echar":
         from verifier.numbers import QuadraticCharacter
 
@@ -186,6 +192,10 @@ def character(key: str, scale: int, params: tuple[Any, ...], at_level: int) -> A
     if key == "Echar":
         _, psi, phi = params
         return QuadraticCharacter(psi) * QuadraticCharacter(phi)
+    if key == "utheta":
+        from verifier.forms import unary_theta
+
+        return unary_theta.character(params[0], params[1], scale)
     if key == "theta":
         form = quadratic_form(params)
         chi = form.character
@@ -229,6 +239,10 @@ def build_series(key: str, params: tuple[Any, ...], prec: int) -> QSeries:
     if key == "theta":
         series: QSeries = quadratic_form(params).series(prec)
         return series
+    if key == "utheta":
+        from verifier.forms import unary_theta
+
+        return unary_theta.series(params[0], params[1], prec)
     if key == "Echar":
         from verifier.forms.eisenstein_chars import eisenstein_character_series
         from verifier.numbers import QuadraticCharacter
@@ -248,5 +262,9 @@ def atom_label(key: str, scale: int = 1, params: tuple[Any, ...] = ()) -> str:
         return " ".join(f"eta({d}tau)^{r}" if d != 1 else f"eta(tau)^{r}" for d, r in params)
     if key == SERIES_ONLY:
         return "series(" + str(params[0]) + ")"
+    if key == "utheta":
+        from verifier.forms import unary_theta
+
+        return unary_theta.label(params[0], params[1], scale)
     base = {"Delta": "Delta", "theta": "Theta_Q"}.get(key, f"E_{key[1:]}")
     return base if scale == 1 else f"{base}({scale}tau)"

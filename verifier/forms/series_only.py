@@ -1,7 +1,8 @@
 """q-series that qreferee can expand exactly but knows no modular proof for.
 
 Products whose exponent function is not that of an eta quotient (Rogers–Ramanujan-type
-products, partial products), sums over Z with weights, one-sided theta-like sums, and
+products, partial products), sums over Z with weights that are no unary theta series
+(docs/method.md#sums-over-z), partial theta functions, and
 generating functions with no modular translation (sigma_k with k even) are atoms of the
 family ``"series"``.  They have no level and no character: :mod:`verifier.forms.registry`
 refuses them for proofs, and a claim containing one is compared coefficient by

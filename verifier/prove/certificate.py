@@ -71,6 +71,7 @@ Expressions (S-expressions, written as text):
 ``(eta (d1 r1) (d2 r2) ...)``         prod eta(d_i tau)^(r_i)
 ``(theta d ((a b ..) (c d ..) ..))``  theta series of the even Gram matrix at d tau
 ``(Echar k psi phi d)``               Eisenstein series with characters (psi, phi)
+``(utheta psi nu d)``                 sum_{n in Z} psi(n) n^nu q^{d n^2}, psi a kernel
 ``(+ a b)`` ``(- a b)`` ``(* a b)``   sum, difference, product
 ``(/ a b)`` ``(^ a n)``               quotient, integer power
 ``(D a)``                             q d/dq
@@ -166,6 +167,9 @@ def _atom(atom: ir.Atom) -> str:
     if atom.key == "Echar":
         k, psi, phi = atom.params
         return f"(Echar {k} {psi} {phi} {scale})"
+    if atom.key == "utheta":
+        kernel, nu = atom.params
+        return f"(utheta {kernel} {nu} {scale})"
     if atom.key.startswith("E"):
         return f"(E {atom.key[1:]} {scale})"
     if atom.key == "series":

@@ -25,6 +25,7 @@ from verifier.recheck.arith import (
     conductor,
     factor,
     generalised_bernoulli,
+    kronecker,
     sigma,
 )
 from verifier.recheck.series import Series
@@ -142,6 +143,24 @@ def _square_completion(gram: list[list[int]]) -> list[list[Fraction]]:
             for m in range(k, n):
                 q[k][m] -= q[k][i] * q[i][m]
     return q
+
+
+def unary_theta(kernel: int, nu: int, prec: int) -> Series:
+    """sum_{n in Z} psi(n) n^nu q^(n^2), psi the character of kernel D, counted over n >= 0.
+
+    n and -n give psi(-n)(-n)^nu = psi(n) n^nu when psi(-1) = (-1)^nu (checked by the caller),
+    so each n >= 1 counts twice; n = 0 counts once, and only for the trivial character with nu = 0.
+    """
+    disc = kernel if kernel % 4 == 1 else 4 * kernel
+    coeffs = [Fraction(0)] * max(prec, 0)
+    if prec > 0 and kernel == 1 and nu == 0:
+        coeffs[0] = Fraction(1)
+    n = 1
+    while n * n < prec:
+        value = 1 if disc == 1 else (0 if math.gcd(n, disc) > 1 else kronecker(disc, n))
+        coeffs[n * n] += 2 * value * n**nu
+        n += 1
+    return Series(0, coeffs, max(prec, 0))
 
 
 def theta(gram: list[list[int]], prec: int) -> Series:

@@ -25,14 +25,21 @@ from fractions import Fraction
 from typing import Any
 
 from verifier.recheck import arith
-from verifier.recheck.atoms import character_parity_ok, eisenstein, eisenstein_character, eta_quotient, theta
+from verifier.recheck.atoms import (
+    character_parity_ok,
+    eisenstein,
+    eisenstein_character,
+    eta_quotient,
+    theta,
+    unary_theta,
+)
 from verifier.recheck.series import Series
 
 Key = tuple[Fraction, int, int]
 Graded = dict[Key, Series]
 Side = tuple[Graded, Graded | None]
 
-ATOM_HEADS = ("E", "Delta", "eta", "theta", "Echar")
+ATOM_HEADS = ("E", "Delta", "eta", "theta", "Echar", "utheta")
 THETA_ETA = [(1, -2), (2, 5), (4, -2)]  # theta(tau) = eta(2 tau)^5 / (eta(tau)^2 eta(4 tau)^2)
 
 
@@ -86,6 +93,20 @@ def _echar(args: list[Any]) -> tuple[int, int, int, int]:
     return k, psi, phi, d
 
 
+def _utheta(args: list[Any]) -> tuple[int, int, int]:
+    """(psi, nu, d) of ``(utheta psi nu d)``, checked: psi a kernel of parity (-1)^nu, d >= 1."""
+    if len(args) != 3:
+        raise Unsupported("utheta takes a character, a power of n and a scale")
+    psi, nu, d = (_int(a, "an argument of utheta") for a in args)
+    if psi == 0 or arith.squarefree_part(Fraction(psi)) != psi:
+        raise Unsupported(f"utheta: {psi} is not the kernel of a quadratic character")
+    if nu not in (0, 1) or d < 1:
+        raise Unsupported("utheta: the power of n is not 0 or 1, or the scale is not positive")
+    if (psi > 0) != (nu == 0):
+        raise ValueError(f"the unary theta series of ({psi}, n^{nu}) vanishes identically (parity)")
+    return psi, nu, d
+
+
 def _gram(x: Any) -> list[list[int]]:
     if not isinstance(x, list) or not x or not all(isinstance(r, list) and len(r) == len(x) for r in x):
         raise Unsupported("a Gram matrix is not square")
@@ -112,6 +133,8 @@ class Atoms:
         if head in ATOM_HEADS:
             if head == "Echar":
                 _echar(args)
+            if head == "utheta":
+                _utheta(args)
             if head == "E" and args and args[0] == 2:
                 self.has_e2 = True
             out.append(tree)
@@ -148,6 +171,8 @@ class Atoms:
             return Fraction(sum(r for _, r in _eta_pairs(args)), 2)
         if head == "Echar":
             return Fraction(_echar(args)[0])
+        if head == "utheta":
+            return Fraction(2 * _utheta(args)[1] + 1, 2)
         gram = _gram(args[1])
         return Fraction(len(gram), 2)
 
@@ -176,6 +201,10 @@ class Atoms:
             # E_k^{psi,phi}(d tau) is on Gamma_0(u v d) (Diamond-Shurman, Thm. 4.5.2 and §4.8).
             k, psi, phi, d = _echar(args)
             return arith.conductor(psi) * arith.conductor(phi) * d
+        if head == "utheta":
+            # sum psi(n) n^nu q^(d n^2) is on Gamma_0(4 r^2 d), r the conductor of psi (Shimura 1973, §2).
+            psi, _, d = _utheta(args)
+            return 4 * arith.conductor(psi) ** 2 * d
         gram = _gram(args[1])
         # N (dA)^-1 even integral <=> (N/d) A^-1 even integral.  For odd rank the weight is
         # half-integral, and the claim's level is made a multiple of 4 as for every such atom.
@@ -189,6 +218,10 @@ class Atoms:
         if head == "Echar":
             _, psi, phi, _ = _echar(args)
             return arith.kernel_product(psi, phi)
+        if head == "utheta":
+            # psi (4d/.) (-4/.)^nu relative to the theta multiplier (Shimura 1973, §2; Serre-Stark 1977, §2).
+            psi, nu, d = _utheta(args)
+            return arith.kernel_product(arith.kernel_product(psi, d), -1 if nu else 1)
         if head == "theta":
             gram = _gram(args[1])
             d = _int(args[0], "a scale")
@@ -232,6 +265,9 @@ class Atoms:
         if head == "Echar":
             k, psi, phi, d = _echar(args)
             return eisenstein_character(k, psi, phi, -(-prec // d)).inflate(d).truncate(prec)
+        if head == "utheta":
+            psi, nu, d = _utheta(args)
+            return unary_theta(psi, nu, -(-prec // d)).inflate(d).truncate(prec)
         d = _int(args[0] if head != "E" else args[1], "a scale")
         base_prec = -(-prec // d)
         if head == "E":
