@@ -57,6 +57,13 @@ Fields (``format`` 1):
   ``[[delta, u], ...]`` of eta(delta tau)^u), ``character_kernel``, ``e`` (the order of h at
   infinity), ``claimed_t`` (t as the author wrote it, before reduction mod m) and ``terms``
   (the claimed side: ``[{"coeff", "shift", "product"}]``, or null for a congruence to 0);
+* ``hecke`` (``f`` is a normalised eigenform; docs/method.md#claim-eigenform): ``form``
+  (``{"expr"}``), ``space`` (``{"weight", "level", "character"}``, ``character`` the kernel D of
+  the quadratic character), ``bound`` (the Sturm bound B of that space: each ``T_p f`` was compared
+  with ``a_p f`` on ``a_0 .. a_B``), ``prime_bound`` (R, the bound of the Sturm space at level 2N:
+  every prime ``p <= R`` was checked) and ``eigenvalues`` (``[[p, a_p], ...]``, a_p as text);
+* ``sturm-congruence`` prime powers proved after the Frobenius lift carry, inside ``frobenius``,
+  ``left_expr`` and ``right_expr``: the lifted sides as expressions (below);
 * ``sturm``/``valence`` certificates carry ``space``, ``pieces``, ``bound``, ``index`` (and
   ``cusp_order_bounds``) and ``coefficients``; ``expansion`` carries ``coefficients``;
   other methods (values, ``solve=``, progressions) carry only ``method``, ``kind``, ``space_used`` and ``bound``.
@@ -120,6 +127,7 @@ CHECKABLE = frozenset(
         "computation",
         "linear-algebra",
         "u-operator",
+        "hecke",
     }
 )
 
@@ -319,8 +327,23 @@ def congruence(
         "index": index,
         "bound": bound,
         "pieces": [{"weight": frac_str(w), "e2_power": j, "character": k} for w, j, k in pieces],
-        "prime_powers": prime_powers,
+        "prime_powers": [_with_lifted_sides(d, left, right) for d in prime_powers],
     }
+
+
+def _with_lifted_sides(detail: dict[str, Any], left: ir.Side, right: ir.Side) -> dict[str, Any]:
+    """A prime power's record, with the sides lifted by Frobenius spelled out when the proof used them."""
+    from verifier.prove.frobenius import lift_side
+
+    frob = detail.get("frobenius")
+    if not isinstance(frob, dict):
+        return detail
+    p, e = int(detail["prime"]), int(detail["exponent"])
+    lifted = [lift_side(s.expr, p, e) for s in (left, right)]
+    if any(x is None for x in lifted):
+        return detail
+    spelled = {"left_expr": sexpr(lifted[0]), "right_expr": sexpr(lifted[1])}  # type: ignore[arg-type]
+    return {**detail, "frobenius": {**frob, **spelled}}
 
 
 def membership(
@@ -341,6 +364,30 @@ def membership(
         "space": space,
         "form_level": form_level,
         "cusp_order_bounds": {str(d): frac_str(v) for d, v in sorted(bounds.items())},
+    }
+
+
+def eigenform(
+    side: ir.Side,
+    space_used: dict[str, Any],
+    weight: int,
+    level: int,
+    kernel: int,
+    bound: int,
+    prime_bound: int,
+    eigenvalues: Iterable[tuple[int, Fraction]],
+) -> dict[str, Any]:
+    """The certificate of ``f is a normalised eigenform`` (method ``hecke``)."""
+    return {
+        "format": FORMAT,
+        "method": "hecke",
+        "kind": "eigenform",
+        "space_used": space_used,
+        "bound": bound,
+        "form": {"expr": sexpr(side.expr)},
+        "space": {"weight": weight, "level": level, "character": kernel},
+        "prime_bound": prime_bound,
+        "eigenvalues": [[p, frac_str(Fraction(a))] for p, a in eigenvalues],
     }
 
 

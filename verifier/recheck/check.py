@@ -73,13 +73,14 @@ def recheck(cert: Any) -> Result:
 
 
 _BY_PARTS = ("sturm-congruence", "cusp-orders", "dimension-formula")
-_REST = ("computation", "linear-algebra", "u-operator")
+_REST = ("computation", "linear-algebra", "u-operator", "hecke")
 _NOT_COVERED: dict[str, str] = {}
-_NEEDS = {"computation": "arithmetic", "linear-algebra": "instance", "u-operator": "progression"}
+_NEEDS = {"computation": "arithmetic", "linear-algebra": "instance", "u-operator": "progression", "hecke": "form"}
 
 
 def _rest(cert: dict[str, Any], method: str) -> Result:
-    """Values, solved unknowns and progressions (:mod:`.values`, :mod:`.solved`, :mod:`.progression`)."""
+    """Values, solved unknowns, progressions, eigenforms (:mod:`.values`, ``.solved``, ``.progression``, ``.hecke``)."""
+    from verifier.recheck.hecke import recheck_eigenform
     from verifier.recheck.progression import recheck_progression
     from verifier.recheck.solved import recheck_solved
     from verifier.recheck.values import recheck_values
@@ -92,6 +93,8 @@ def _rest(cert: dict[str, Any], method: str) -> Result:
         recheck_values(cert, reasons, notes)
     elif method == "linear-algebra":
         recheck_solved(cert, reasons, notes)
+    elif method == "hecke":
+        recheck_eigenform(cert, reasons, notes)
     else:
         recheck_progression(cert, reasons, notes)
     return Result(FAILED, reasons, notes) if reasons else Result(CONFIRMED, notes=notes)
