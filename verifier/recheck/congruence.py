@@ -254,6 +254,7 @@ def _prime_power(
         reasons.append(f"mod {q}: bound of weight {big_k}: certificate {detail.get('bound')}, recomputed {big_b}")
     stop = big_b + 1
     # E_2 substitutes S = E_2 (mod p^s): (weight of S, s, series mod p^(a+e)).
+    named = ""
     if proof_level != level:
         n_shift = p ** max(shift_exp, 0)
         e2 = eisenstein(2, stop)
@@ -261,8 +262,9 @@ def _prime_power(
         sub = (2, shift_exp, [_residue(x, mod) or 0 for x in s_series])
     else:
         k_s, s_exact = (p + 1, 1) if p >= 5 else ((0, 3) if p == 2 else (0, 1))
-        named = str(detail.get("e2_replaced_by") or "")
-        if named == "1" or (named.startswith("E_") and named[2:].isdigit()):
+        stated_sub = str(detail.get("e2_replaced_by") or "")
+        if stated_sub == "1" or (stated_sub.startswith("E_") and stated_sub[2:].isdigit()):
+            named = stated_sub  # the certificate's own substitute, its precision recomputed
             k_s = 0 if named == "1" else int(named[2:])
             s_exact = e2_precision(p, k_s)
         s_res = [1 % mod] + [0] * (stop - 1)
@@ -273,6 +275,9 @@ def _prime_power(
     total = [0] * stop
     for (w, j, _, s, _), v_i in zip(active, vals_min, strict=True):
         t_i = e - v_i  # the precision the factors of the scaled piece p^a f_i need
+        if j and t_i > sub[1] and named:
+            reasons.append(f"mod {q}: E_2 = {named} holds only mod {p}^{sub[1]}, but this piece needs mod {p}^{t_i}")
+            return big_b
         if j and t_i > sub[1]:
             raise Unsupported(f"mod {q}: E_2 is known only mod {p}^{sub[1]} here, too little for this piece")
         gens = _multipliers(p, t_i)
