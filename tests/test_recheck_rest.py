@@ -396,7 +396,19 @@ CORPUS = [
     "tests/data/idiom/theta.tex",
     "sample_docs/note.md",
 ]
-COVERED = ("computation", "linear-algebra", "u-operator", "sturm", "valence", "expansion", "witness")
+COVERED = (
+    "computation",
+    "linear-algebra",
+    "u-operator",
+    "sturm",
+    "valence",
+    "expansion",
+    "witness",
+    "sturm-congruence",
+    "cusp-orders",
+    "dimension-formula",
+    "hecke",
+)
 
 
 @pytest.mark.parametrize("name", CORPUS)
