@@ -64,6 +64,10 @@ Fields (``format`` 1):
   every prime ``p <= R`` was checked) and ``eigenvalues`` (``[[p, a_p], ...]``, a_p as text);
 * ``sturm-congruence`` prime powers proved after the Frobenius lift carry, inside ``frobenius``,
   ``left_expr`` and ``right_expr``: the lifted sides as expressions (below);
+* ``series`` (any certificate of :func:`make` whose sides contain series-only products, e.g. a
+  method ``expansion`` or ``witness``): ``{digest: {"product": {"period", "values", "finite",
+  "constant"}}}`` defining each ``(series digest d)`` atom that is a product (see
+  :func:`series_definitions`);
 * ``sturm``/``valence`` certificates carry ``space``, ``pieces``, ``bound``, ``index`` (and
   ``cusp_order_bounds``) and ``coefficients``; ``expansion`` carries ``coefficients``;
   other methods (values, ``solve=``, progressions) carry only ``method``, ``kind``, ``space_used`` and ``bound``.
@@ -79,6 +83,7 @@ Expressions (S-expressions, written as text):
 ``(theta d ((a b ..) (c d ..) ..))``  theta series of the even Gram matrix at d tau
 ``(Echar k psi phi d)``               Eisenstein series with characters (psi, phi)
 ``(utheta psi nu d)``                 sum_{n in Z} psi(n) n^nu q^{d n^2}, psi a kernel
+``(series h d)``                      a series-only atom at d tau (h: digest, see ``series``)
 ``(+ a b)`` ``(- a b)`` ``(* a b)``   sum, difference, product
 ``(/ a b)`` ``(^ a n)``               quotient, integer power
 ``(D a)``                             q d/dq
@@ -182,10 +187,35 @@ def _atom(atom: ir.Atom) -> str:
         return f"(E {atom.key[1:]} {scale})"
     if atom.key == "series":
         # A product or sum that is no modular form: named by a digest of the author's text; the
-        # re-checker reports such a certificate as not rechecked.
-        digest = hashlib.sha256(repr((atom.text, atom.params)).encode("utf-8")).hexdigest()[:12]
-        return f"(series {digest} {scale})"
+        # certificate's ``series`` field defines the products among them (:func:`series_definitions`).
+        return f"(series {_series_digest(atom)} {scale})"
     raise TypeError(f"no certificate spelling for the atom {atom.key}")
+
+
+def _series_digest(atom: ir.Atom) -> str:
+    return hashlib.sha256(repr((atom.text, atom.params)).encode("utf-8")).hexdigest()[:12]
+
+
+def series_definitions(*exprs: ir.Expr) -> dict[str, Any]:
+    """``{digest: {"product": {"period", "values", "finite", "constant"}}}`` for the series-only
+    products among the atoms: ``constant * prod_{n>=1} (1 - q^n)^c(n)`` with
+    ``c(n) = values[(n-1) % period] + finite[n]`` (``finite`` as ``[[n, c], ...]``; period 0: no
+    periodic part).  Other series-only atoms (sums over Z, coefficient lists) are not defined here."""
+    out: dict[str, Any] = {}
+    for expr in exprs:
+        for atom in ir.atoms_of(expr):
+            if atom.key != "series" or not atom.params or atom.params[0] != "prod":
+                continue
+            _, period, values, finite, constant = atom.params
+            out[_series_digest(atom)] = {
+                "product": {
+                    "period": int(period),
+                    "values": [int(v) for v in values],
+                    "finite": [[int(n), int(c)] for n, c in finite],
+                    "constant": frac_str(Fraction(constant)),
+                }
+            }
+    return out
 
 
 def arith_sexpr(e: t.A) -> str:
@@ -295,6 +325,9 @@ def make(
         "exponent_unit": frac_str(unit),
     }
     cert.update(fields)
+    defined = series_definitions(left.expr, right.expr)
+    if defined:
+        cert["series"] = defined
     return cert
 
 
