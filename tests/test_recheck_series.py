@@ -15,7 +15,6 @@ from verifier.recheck.atoms import periodic_product
 from verifier.recheck.check import CONFIRMED, FAILED, NOT_RECHECKED, recheck
 
 
-
 def _partitions_into(parts: list[int], count: int) -> list[int]:
     """Brute force: the number of partitions of 0 .. count-1 into the given parts (coin counting)."""
     ways = [1] + [0] * (count - 1)

@@ -114,9 +114,7 @@ def _compare(orig: Any, lifted: Any, p: int, e: int, etas: list[tuple[Any, Any]]
     raise Unsupported(f"a Frobenius lift through the operator or atom {head}")
 
 
-def recheck_lift(
-    claim: Any, p: int, e: int, detail: dict[str, Any], reasons: list[str], notes: list[str]
-) -> int:
+def recheck_lift(claim: Any, p: int, e: int, detail: dict[str, Any], reasons: list[str], notes: list[str]) -> int:
     """Re-check the prime power p^e proved after the lift (module docstring); the bound used."""
     from verifier.recheck.check import _Claim
     from verifier.recheck.congruence import prime_power_of

@@ -85,7 +85,9 @@ def recheck_eigenform(cert: dict[str, Any], reasons: list[str], notes: list[str]
         reasons.append(f"bound: certificate {cert.get('bound')}, recomputed {bound} = floor({k} m_0({level}) / 12)")
     r = arith.sturm_bound(Fraction(k), 2 * level)
     if int(cert.get("prime_bound", -1)) != r:
-        reasons.append(f"prime bound: certificate {cert.get('prime_bound')}, recomputed {r} = floor({k} m_0({2 * level}) / 12)")
+        reasons.append(
+            f"prime bound: certificate {cert.get('prime_bound')}, recomputed {r} = floor({k} m_0({2 * level}) / 12)"
+        )
     used = cert.get("space_used") or {}
     if "dimension" in used and kernel == 1:
         d = dimension(k, level, False)
@@ -113,9 +115,7 @@ def recheck_eigenform(cert: dict[str, Any], reasons: list[str], notes: list[str]
         image = hecke_image(a, p, k, arith.character_value(kernel, p, level), bound + 1)
         bad = next((n for n in range(bound + 1) if image[n] != lam * a[n]), None)
         if bad is not None:
-            reasons.append(
-                f"T_{p} f and a_{p} f differ at q^{bad}: {_frac(image[bad])} against {_frac(lam * a[bad])}"
-            )
+            reasons.append(f"T_{p} f and a_{p} f differ at q^{bad}: {_frac(image[bad])} against {_frac(lam * a[bad])}")
     notes.append(f"T_p f = a_p f on a_0 .. a_{bound} for the primes p <= {r}")
 
 
