@@ -190,3 +190,28 @@ def test_e2_membership_alterations_are_caught(certs: list[dict[str, Any]]) -> No
     cert = copy.deepcopy(e2_level2)
     cert["space"]["character"] = -4
     _fails(cert, "character")
+
+
+def test_a_lift_to_a_constant_with_half_integral_weight_is_rechecked() -> None:
+    # pbar(n) = 0 (mod 2) for n >= 1: f_2 / f_1^2 = 1 (mod 2), as f_2 = f_1^2 (mod 2) from
+    # (1 - x)^2 = 1 - x^2 (mod 2) (common practice; Corteel and Lovejoy, "Overpartitions", 2004,
+    # from memory).  The sides have weight -1/2: only the lift is re-checked, with a direct scan.
+    (claim,) = check_text(
+        "%@claim\n\\[ \\overline{p}(n) \\equiv 0 \\pmod 2 \\quad (n \\ge 1) \\]\n", "t.tex"
+    ).to_dict()["claims"]
+    assert claim["verdict"] == "proved", claim["message"]
+    cert = claim["certificate"]
+    assert _frob(cert)["left_expr"] == "(- 1 1)"
+    assert recheck(cert).status == CONFIRMED, recheck(cert).reasons
+    # pbar(1) = 2 is not 0 mod 4 (brute force: the overpartitions of 1 are 1 and 1-bar).
+    altered = copy.deepcopy(cert)
+    altered["modulus"] = 4
+    altered["prime_powers"][0].update(exponent=2, modulus=4)
+    _fails(altered, "not 0 mod 4")
+    # f_1^-2 f_2 lifted to anything but 1.
+    altered = copy.deepcopy(cert)
+    _frob(altered)["left_expr"] = "(- (eta (1 -2) (2 1)) 1)"
+    _fails(altered, "level after the lift")  # left as it was: level 16, not the certificate's 1
+    altered = copy.deepcopy(cert)
+    _frob(altered)["left_expr"] = "(- 2 1)"
+    _fails(altered, "not the author's")

@@ -79,6 +79,9 @@ def _integral(x: Fraction, p: int) -> bool:
 
 def _compare(orig: Any, lifted: Any, p: int, e: int, etas: list[tuple[Any, Any]]) -> str | None:
     """Step 1 (and the eta pairs for step 2): why ``lifted`` is not a lift of ``orig`` (None: it is)."""
+    if isinstance(orig, list) and orig and orig[0] == "eta" and lifted == 1:
+        etas.append((orig, ["eta"]))  # every factor moved away: the lifted quotient is 1
+        return None
     if isinstance(orig, Fraction) or isinstance(lifted, Fraction):
         if orig != lifted:
             return f"the constant {orig} became {lifted}"
