@@ -55,6 +55,7 @@ from verifier.elaborate import ir
 from verifier.elaborate.rescale import rescale_factor
 from verifier.forms import registry
 from verifier.numbers import QuadraticCharacter
+from verifier.prove import certificate
 from verifier.prove.evaluate import graded_fraction, laurent_to
 from verifier.prove.groups import sturm_bound
 from verifier.prove.hecke import (
@@ -140,6 +141,9 @@ def decide_eigenform(prover: Prover, side: ir.Side) -> Outcome:
     decision = decide_normalised_eigenform(series, w, kernel, level)
     space = space_of(w, level, 0, QuadraticCharacter(kernel).name)
     if decision.proved:
+        cert = certificate.eigenform(
+            side, space, int(w), level, kernel, decision.bound, decision.prime_bound or 0, decision.eigenvalues
+        )
         return Outcome(
             "proved",
             kind,
@@ -147,6 +151,7 @@ def decide_eigenform(prover: Prover, side: ir.Side) -> Outcome:
             space,
             "hecke",
             decision.bound,
+            certificate=cert,
         )
     fd = None
     if decision.index is not None and decision.left is not None and decision.right is not None:

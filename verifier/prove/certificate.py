@@ -57,6 +57,17 @@ Fields (``format`` 1):
   ``[[delta, u], ...]`` of eta(delta tau)^u), ``character_kernel``, ``e`` (the order of h at
   infinity), ``claimed_t`` (t as the author wrote it, before reduction mod m) and ``terms``
   (the claimed side: ``[{"coeff", "shift", "product"}]``, or null for a congruence to 0);
+* ``hecke`` (``f`` is a normalised eigenform; docs/method.md#claim-eigenform): ``form``
+  (``{"expr"}``), ``space`` (``{"weight", "level", "character"}``, ``character`` the kernel D of
+  the quadratic character), ``bound`` (the Sturm bound B of that space: each ``T_p f`` was compared
+  with ``a_p f`` on ``a_0 .. a_B``), ``prime_bound`` (R, the bound of the Sturm space at level 2N:
+  every prime ``p <= R`` was checked) and ``eigenvalues`` (``[[p, a_p], ...]``, a_p as text);
+* ``sturm-congruence`` prime powers proved after the Frobenius lift carry, inside ``frobenius``,
+  ``left_expr`` and ``right_expr``: the lifted sides as expressions (below);
+* ``series`` (any certificate of :func:`make` whose sides contain series-only products, e.g. a
+  method ``expansion`` or ``witness``): ``{digest: {"product": {"period", "values", "finite",
+  "constant"}}}`` defining each ``(series digest d)`` atom that is a product (see
+  :func:`series_definitions`);
 * ``sturm``/``valence`` certificates carry ``space``, ``pieces``, ``bound``, ``index`` (and
   ``cusp_order_bounds``) and ``coefficients``; ``expansion`` carries ``coefficients``;
   other methods (values, ``solve=``, progressions) carry only ``method``, ``kind``, ``space_used`` and ``bound``.
@@ -72,6 +83,7 @@ Expressions (S-expressions, written as text):
 ``(theta d ((a b ..) (c d ..) ..))``  theta series of the even Gram matrix at d tau
 ``(Echar k psi phi d)``               Eisenstein series with characters (psi, phi)
 ``(utheta psi nu d)``                 sum_{n in Z} psi(n) n^nu q^{d n^2}, psi a kernel
+``(series h d)``                      a series-only atom at d tau (h: digest, see ``series``)
 ``(+ a b)`` ``(- a b)`` ``(* a b)``   sum, difference, product
 ``(/ a b)`` ``(^ a n)``               quotient, integer power
 ``(D a)``                             q d/dq
@@ -120,6 +132,7 @@ CHECKABLE = frozenset(
         "computation",
         "linear-algebra",
         "u-operator",
+        "hecke",
     }
 )
 
@@ -174,10 +187,35 @@ def _atom(atom: ir.Atom) -> str:
         return f"(E {atom.key[1:]} {scale})"
     if atom.key == "series":
         # A product or sum that is no modular form: named by a digest of the author's text; the
-        # re-checker reports such a certificate as not rechecked.
-        digest = hashlib.sha256(repr((atom.text, atom.params)).encode("utf-8")).hexdigest()[:12]
-        return f"(series {digest} {scale})"
+        # certificate's ``series`` field defines the products among them (:func:`series_definitions`).
+        return f"(series {_series_digest(atom)} {scale})"
     raise TypeError(f"no certificate spelling for the atom {atom.key}")
+
+
+def _series_digest(atom: ir.Atom) -> str:
+    return hashlib.sha256(repr((atom.text, atom.params)).encode("utf-8")).hexdigest()[:12]
+
+
+def series_definitions(*exprs: ir.Expr) -> dict[str, Any]:
+    """``{digest: {"product": {"period", "values", "finite", "constant"}}}`` for the series-only
+    products among the atoms: ``constant * prod_{n>=1} (1 - q^n)^c(n)`` with
+    ``c(n) = values[(n-1) % period] + finite[n]`` (``finite`` as ``[[n, c], ...]``; period 0: no
+    periodic part).  Other series-only atoms (sums over Z, coefficient lists) are not defined here."""
+    out: dict[str, Any] = {}
+    for expr in exprs:
+        for atom in ir.atoms_of(expr):
+            if atom.key != "series" or not atom.params or atom.params[0] != "prod":
+                continue
+            _, period, values, finite, constant = atom.params
+            out[_series_digest(atom)] = {
+                "product": {
+                    "period": int(period),
+                    "values": [int(v) for v in values],
+                    "finite": [[int(n), int(c)] for n, c in finite],
+                    "constant": frac_str(Fraction(constant)),
+                }
+            }
+    return out
 
 
 def arith_sexpr(e: t.A) -> str:
@@ -287,6 +325,9 @@ def make(
         "exponent_unit": frac_str(unit),
     }
     cert.update(fields)
+    defined = series_definitions(left.expr, right.expr)
+    if defined:
+        cert["series"] = defined
     return cert
 
 
@@ -319,8 +360,23 @@ def congruence(
         "index": index,
         "bound": bound,
         "pieces": [{"weight": frac_str(w), "e2_power": j, "character": k} for w, j, k in pieces],
-        "prime_powers": prime_powers,
+        "prime_powers": [_with_lifted_sides(d, left, right) for d in prime_powers],
     }
+
+
+def _with_lifted_sides(detail: dict[str, Any], left: ir.Side, right: ir.Side) -> dict[str, Any]:
+    """A prime power's record, with the sides lifted by Frobenius spelled out when the proof used them."""
+    from verifier.prove.frobenius import lift_side
+
+    frob = detail.get("frobenius")
+    if not isinstance(frob, dict):
+        return detail
+    p, e = int(detail["prime"]), int(detail["exponent"])
+    lifted = [lift_side(s.expr, p, e) for s in (left, right)]
+    if any(x is None for x in lifted):
+        return detail
+    spelled = {"left_expr": sexpr(lifted[0]), "right_expr": sexpr(lifted[1])}  # type: ignore[arg-type]
+    return {**detail, "frobenius": {**frob, **spelled}}
 
 
 def membership(
@@ -341,6 +397,30 @@ def membership(
         "space": space,
         "form_level": form_level,
         "cusp_order_bounds": {str(d): frac_str(v) for d, v in sorted(bounds.items())},
+    }
+
+
+def eigenform(
+    side: ir.Side,
+    space_used: dict[str, Any],
+    weight: int,
+    level: int,
+    kernel: int,
+    bound: int,
+    prime_bound: int,
+    eigenvalues: Iterable[tuple[int, Fraction]],
+) -> dict[str, Any]:
+    """The certificate of ``f is a normalised eigenform`` (method ``hecke``)."""
+    return {
+        "format": FORMAT,
+        "method": "hecke",
+        "kind": "eigenform",
+        "space_used": space_used,
+        "bound": bound,
+        "form": {"expr": sexpr(side.expr)},
+        "space": {"weight": weight, "level": level, "character": kernel},
+        "prime_bound": prime_bound,
+        "eigenvalues": [[p, frac_str(Fraction(a))] for p, a in eigenvalues],
     }
 
 

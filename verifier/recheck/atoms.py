@@ -198,3 +198,30 @@ def theta(gram: list[list[int]], prec: int) -> Series:
     if prec > 0:
         walk(n - 1, top)
     return Series(0, [Fraction(c) for c in counts], prec)
+
+
+def periodic_product(period: int, values: list[int], finite: dict[int, int], prec: int) -> Series:
+    """prod_{n>=1} (1 - q^n)^c(n), c(n) = values[(n-1) % period] + finite[n], to ``prec`` terms.
+
+    By the logarithmic derivative: q P'/P = sum_j b_j q^j with b_j = -sum_{d | j} d c(d), so
+    n a_n = sum_{j=1}^{n} b_j a_(n-j) and a_0 = 1 (as n p(n) = sum sigma(k) p(n-k); Apostol,
+    Introduction to Analytic Number Theory, Ch. 14); the b_j are summed over multiples, a sieve.
+    """
+    prec = max(prec, 1)
+
+    def c(n: int) -> int:
+        return (values[(n - 1) % period] if period else 0) + finite.get(n, 0)
+
+    b = [0] * prec
+    for d in range(1, prec):
+        cd = c(d)
+        if cd:
+            for j in range(d, prec, d):
+                b[j] -= d * cd
+    a = [1] + [0] * (prec - 1)
+    for n in range(1, prec):
+        total = sum(b[j] * a[n - j] for j in range(1, n + 1) if b[j])
+        if total % n:
+            raise ValueError(f"the product recurrence gave a non-integral coefficient at q^{n}")
+        a[n] = total // n
+    return Series(0, [Fraction(x) for x in a], prec)

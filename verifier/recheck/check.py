@@ -73,13 +73,14 @@ def recheck(cert: Any) -> Result:
 
 
 _BY_PARTS = ("sturm-congruence", "cusp-orders", "dimension-formula")
-_REST = ("computation", "linear-algebra", "u-operator")
+_REST = ("computation", "linear-algebra", "u-operator", "hecke")
 _NOT_COVERED: dict[str, str] = {}
-_NEEDS = {"computation": "arithmetic", "linear-algebra": "instance", "u-operator": "progression"}
+_NEEDS = {"computation": "arithmetic", "linear-algebra": "instance", "u-operator": "progression", "hecke": "form"}
 
 
 def _rest(cert: dict[str, Any], method: str) -> Result:
-    """Values, solved unknowns and progressions (:mod:`.values`, :mod:`.solved`, :mod:`.progression`)."""
+    """Values, solved unknowns, progressions, eigenforms (:mod:`.values`, ``.solved``, ``.progression``, ``.hecke``)."""
+    from verifier.recheck.hecke import recheck_eigenform
     from verifier.recheck.progression import recheck_progression
     from verifier.recheck.solved import recheck_solved
     from verifier.recheck.values import recheck_values
@@ -92,6 +93,8 @@ def _rest(cert: dict[str, Any], method: str) -> Result:
         recheck_values(cert, reasons, notes)
     elif method == "linear-algebra":
         recheck_solved(cert, reasons, notes)
+    elif method == "hecke":
+        recheck_eigenform(cert, reasons, notes)
     else:
         recheck_progression(cert, reasons, notes)
     return Result(FAILED, reasons, notes) if reasons else Result(CONFIRMED, notes=notes)
@@ -122,12 +125,16 @@ def _by_parts(cert: dict[str, Any], method: str) -> Result:
 class _Claim:
     """The two sides of a certificate, their atoms and level."""
 
-    def __init__(self, cert: dict[str, Any] | None = None, trees: list[Any] | None = None) -> None:
+    def __init__(
+        self, cert: dict[str, Any] | None = None, trees: list[Any] | None = None, series: bool = False
+    ) -> None:
+        """``series``: accept the certificate's series-only products (methods that compare coefficients only)."""
         if trees is None:
             assert cert is not None
             trees = [parse(str(cert[s]["expr"])) for s in ("left", "right")]
         self.trees = trees
-        self.atoms = Atoms()
+        defs = cert.get("series") if series and cert is not None else None
+        self.atoms = Atoms(defs if isinstance(defs, dict) else None)
         found: list[Any] = []
         for t in self.trees:
             self.atoms.walk(t, found)
@@ -199,7 +206,7 @@ def _check_coefficients(claim: _Claim, cert: dict[str, Any], reasons: list[str],
 
 
 def _expansion(cert: dict[str, Any]) -> Result:
-    claim = _Claim(cert)
+    claim = _Claim(cert, series=True)
     reasons: list[str] = []
     truncs = [cert[s].get("truncation") for s in ("left", "right")]
     stops = [int(t) for t in truncs if t is not None]
@@ -219,7 +226,7 @@ def _expansion(cert: dict[str, Any]) -> Result:
 
 
 def _witness(cert: dict[str, Any]) -> Result:
-    claim = _Claim(cert)
+    claim = _Claim(cert, series=True)
     w = cert["witness"]
     n = int(w["n"])
     left, right = claim.laurent(0, n + 1)[n], claim.laurent(1, n + 1)[n]

@@ -21,7 +21,8 @@ independently of the certificate's own arithmetic:
 4. G = sum p^a f_i S^j_i H_i lies in M_K(Gamma_0(N'), chi) (N' the proof level), and it must be
    0 mod p^(a+e) through floor(K [SL_2(Z) : Gamma_0(N')] / 12).
 
-A proof after lifting eta quotients by Frobenius is not re-checked here.
+A proof after lifting eta quotients by Frobenius is re-checked by :mod:`verifier.recheck.frobenius`,
+which then runs steps 1-4 on the lifted sides (:func:`prime_power_of`).
 Multipliers are this module's own choice; a common weight they cannot reach leaves the
 certificate not re-checked (never failed).
 """
@@ -87,6 +88,30 @@ def _multipliers(p: int, t: int) -> list[tuple[int, int]]:
     return [(k, p ** max(0, t - a)) for k, a in have.items()]
 
 
+def e2_precision(p: int, k: int) -> int:
+    """The largest s <= 12 with E_2 = E_k (mod p^s) coefficientwise (E_0 = 1); 0 when none.
+
+    E_2 = 1 - 24 sum sigma_1(n) q^n and E_k = 1 + c_k sum sigma_(k-1)(n) q^n, c_k = -2k/B_k, so
+    E_k - E_2 = (c_k + 24) sigma_(k-1)(n) + 24 (sigma_(k-1)(n) - sigma_1(n)) at q^n: s is the least of
+    v_p(c_k + 24) (when c_k is p-integral) and v_p(24) + t, t the largest with d^(k-1) = d (mod p^t)
+    for every integer d (checked on d mod p^t, a full period); for E_0 = 1 it is v_p(24).
+    """
+    top = 12
+    v24 = _valuation(Fraction(24), p)
+    if k == 0:
+        return min(v24, top)
+    if k < 4 or k % 2:
+        return 0
+    c = -2 * k / arith.bernoulli(k)
+    if _valuation(c, p) < 0:
+        return 0
+    first = top if c + 24 == 0 else min(_valuation(c + 24, p), top)
+    t = 0
+    while t < top and all((pow(d, k - 1, p ** (t + 1)) - d) % p ** (t + 1) == 0 for d in range(p ** (t + 1))):
+        t += 1
+    return min(first, v24 + t)
+
+
 def _combination(gap: int, gens: list[tuple[int, int]]) -> list[int] | None:
     """Nonnegative exponents n_g with sum n_g * weight_g = gap (None if there are none)."""
     weights = [k * e for k, e in gens]
@@ -119,27 +144,8 @@ def recheck_congruence(claim: Any, cert: dict[str, Any], reasons: list[str], not
     if sorted(stated) != mine:
         reasons.append(f"prime powers of {modulus}: certificate {sorted(stated)}, recomputed {mine}")
         return
-    # How far the pieces are needed: their own bounds and the stated common weights' bounds.
-    probe = claim.evaluate(2)
-    keys = set()
-    for tree in claim.trees:
-        n, d = probe.side(tree)
-        if d is not None:
-            raise Unsupported("a congruence between quotients")
-        keys |= set(n)
-    need = 1
-    for w, _j, _ in keys:
-        if w.denominator != 1 or w < 0:
-            raise Unsupported("a congruence with a piece of half-integral or negative weight")
-        need = max(need, arith.sturm_bound(w, level) + 1)
-    for d in stated.values():
-        if d.get("weight") is not None:
-            at = int(d.get("e2_level", level))
-            need = max(need, arith.sturm_bound(Fraction(int(d["weight"])), at) + 1)
-    need = max(need, DIRECT_SCAN)
-    ev = claim.evaluate(need)
-    (nl, _), (nr, _) = (ev.side(t) for t in claim.trees)
-    diff = g_add(nl, nr, -1)
+    lifted_only = all(d.get("frobenius") is not None for d in stated.values())
+    diff, ev, need = _difference(claim, stated, level, strict=not lifted_only)
     listed = {(Fraction(str(q["weight"])), int(q["e2_power"]), int(q["character"])) for q in cert.get("pieces", [])}
     for (w, j, c), s in sorted(diff.items()):
         if (w + 2 * j, j, c) not in listed and not s.is_zero():
@@ -158,10 +164,47 @@ def recheck_congruence(claim: Any, cert: dict[str, Any], reasons: list[str], not
             return
     biggest = 0
     for (p, e), detail in sorted(stated.items()):
-        bound = _prime_power(pieces, p, e, level, detail, reasons)
+        if detail.get("frobenius") is not None:
+            from verifier.recheck.frobenius import recheck_lift
+
+            bound = recheck_lift(claim, p, e, detail, reasons, notes)
+        else:
+            bound = _prime_power(pieces, p, e, level, detail, reasons)
         biggest = max(biggest, bound)
     if int(cert.get("bound", -1)) != biggest:
         reasons.append(f"bound: certificate {cert.get('bound')}, recomputed {biggest}")
+
+
+def _difference(
+    claim: Any, stated: dict[tuple[int, int], dict[str, Any]], level: int, strict: bool = True
+) -> tuple[Any, Any, int]:
+    """The graded pieces of left - right, known far enough for every bound used (``strict``: the
+    pieces must have integral weights >= 0, as steps 1-4 need; a proof by Frobenius lifts alone
+    only scans left - right directly)."""
+    # How far the pieces are needed: their own bounds and the stated common weights' bounds.
+    probe = claim.evaluate(2)
+    keys = set()
+    for tree in claim.trees:
+        n, d = probe.side(tree)
+        if d is not None:
+            raise Unsupported("a congruence between quotients")
+        keys |= set(n)
+    need = 1
+    for w, _j, _ in keys:
+        if w.denominator != 1 or w < 0:
+            if strict:
+                raise Unsupported("a congruence with a piece of half-integral or negative weight")
+            continue
+        need = max(need, arith.sturm_bound(w, level) + 1)
+    for d in stated.values():
+        if d.get("weight") is not None:
+            at = int(d.get("e2_level", level))
+            need = max(need, arith.sturm_bound(Fraction(int(d["weight"])), at) + 1)
+    need = max(need, DIRECT_SCAN)
+    ev = claim.evaluate(need)
+    (nl, _), (nr, _) = (ev.side(t) for t in claim.trees)
+    diff = g_add(nl, nr, -1)
+    return diff, ev, need
 
 
 def _prime_power(
@@ -186,8 +229,6 @@ def _prime_power(
         if detail.get("bound") is not None and int(detail["bound"]) != own:
             reasons.append(f"mod {q}: bound: certificate {detail['bound']}, recomputed {own}")
         return own
-    if detail.get("frobenius") is not None:
-        raise Unsupported(f"mod {q}: a proof after lifting eta quotients by Frobenius")
     if len({c for _, _, c, _, _ in active}) > 1:
         reasons.append(f"mod {q}: the pieces not 0 mod {q} by themselves carry different characters")
         return 0
@@ -220,6 +261,7 @@ def _prime_power(
         reasons.append(f"mod {q}: bound of weight {big_k}: certificate {detail.get('bound')}, recomputed {big_b}")
     stop = big_b + 1
     # E_2 substitutes S = E_2 (mod p^s): (weight of S, s, series mod p^(a+e)).
+    named = ""
     if proof_level != level:
         n_shift = p ** max(shift_exp, 0)
         e2 = eisenstein(2, stop)
@@ -227,6 +269,11 @@ def _prime_power(
         sub = (2, shift_exp, [_residue(x, mod) or 0 for x in s_series])
     else:
         k_s, s_exact = (p + 1, 1) if p >= 5 else ((0, 3) if p == 2 else (0, 1))
+        stated_sub = str(detail.get("e2_replaced_by") or "")
+        if stated_sub == "1" or (stated_sub.startswith("E_") and stated_sub[2:].isdigit()):
+            named = stated_sub  # the certificate's own substitute, its precision recomputed
+            k_s = 0 if named == "1" else int(named[2:])
+            s_exact = e2_precision(p, k_s)
         s_res = [1 % mod] + [0] * (stop - 1)
         if k_s:
             s_res = _residues(eisenstein(k_s, stop), stop, mod, f"E_{k_s}")
@@ -235,6 +282,9 @@ def _prime_power(
     total = [0] * stop
     for (w, j, _, s, _), v_i in zip(active, vals_min, strict=True):
         t_i = e - v_i  # the precision the factors of the scaled piece p^a f_i need
+        if j and t_i > sub[1] and named:
+            reasons.append(f"mod {q}: E_2 = {named} holds only mod {p}^{sub[1]}, but this piece needs mod {p}^{t_i}")
+            return big_b
         if j and t_i > sub[1]:
             raise Unsupported(f"mod {q}: E_2 is known only mod {p}^{sub[1]} here, too little for this piece")
         gens = _multipliers(p, t_i)
@@ -274,3 +324,17 @@ def _prime_power(
             f"at q^{bad}, within its bound {big_b}"
         )
     return big_b
+
+
+def prime_power_of(claim: Any, p: int, e: int, detail: dict[str, Any], reasons: list[str]) -> int:
+    """Steps 1-4 modulo p^e alone for the claim ``claim`` (a ``check._Claim``), after a direct scan
+    of the known coefficients of left - right modulo p^e; the bound used."""
+    level = claim.level
+    diff, ev, need = _difference(claim, {(p, e): detail}, level)
+    total = plain(diff, ev.e2, need)
+    for n in range(min(total.lo, need), need):
+        if _residue(total[n], p**e) != 0:
+            reasons.append(f"mod {p**e}: the coefficient of q^{n} of the lifted left - right is {total[n]}")
+            return 0
+    pieces = [(w, j, c, s) for (w, j, c), s in diff.items() if not s.is_zero()]
+    return _prime_power(pieces, p, e, level, detail, reasons)

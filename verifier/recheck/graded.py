@@ -30,6 +30,7 @@ from verifier.recheck.atoms import (
     eisenstein,
     eisenstein_character,
     eta_quotient,
+    periodic_product,
     theta,
     unary_theta,
 )
@@ -116,8 +117,12 @@ def _gram(x: Any) -> list[list[int]]:
 class Atoms:
     """The atoms of a claim: their level, characters, orders at cusps and series."""
 
-    def __init__(self) -> None:
+    def __init__(self, series: dict[str, Any] | None = None) -> None:
         self._cache: dict[tuple[str, int], Series] = {}
+        # Definitions of series-only products (the certificate's ``series``), only where the
+        # method compares coefficients and no more (expansions, witnesses).
+        self.series_defs = series or {}
+        self.has_series = False
         self.has_e2 = False
         self.has_deriv = False
         self.half = False
@@ -130,6 +135,11 @@ class Atoms:
         if not isinstance(tree, list) or not tree or not isinstance(tree[0], str):
             raise Unsupported(f"unreadable expression {tree!r}")
         head, args = tree[0], tree[1:]
+        if head == "series" and len(args) == 2:
+            self.series_definition(tree)
+            self.has_series = True
+            out.append(tree)
+            return
         if head in ATOM_HEADS:
             if head == "Echar":
                 _echar(args)
@@ -160,9 +170,21 @@ class Atoms:
             return
         raise Unsupported(f"unknown operator {head}")
 
+    def series_definition(self, atom: list[Any]) -> dict[str, Any]:
+        """The product defining a ``(series h d)`` atom (Unsupported when the certificate has none)."""
+        name = atom[1]
+        for key, value in self.series_defs.items():
+            if key == name or (isinstance(name, Fraction) and key.isdigit() and Fraction(key) == name):
+                if not isinstance(value, dict) or not isinstance(value.get("product"), dict):
+                    break
+                return dict(value["product"])
+        raise Unsupported("a series-only atom the certificate does not define as a product")
+
     def weight(self, atom: list[Any]) -> Fraction:
         """The weight of an atom."""
         head, args = atom[0], atom[1:]
+        if head == "series":
+            return Fraction(0)  # no modular weight: only coefficients are compared with it
         if head == "E":
             return Fraction(_int(args[0], "the weight of E"))
         if head == "Delta":
@@ -179,6 +201,8 @@ class Atoms:
     def level(self, atom: list[Any]) -> int:
         """The least level of an atom (raises Unsupported when it has none)."""
         head, args = atom[0], atom[1:]
+        if head == "series":
+            return 1  # none: only coefficients are compared with it
         if head == "E":
             k, d = _int(args[0], "the weight of E"), _int(args[1], "a scale")
             if k < 2 or k % 2 or d < 1:
@@ -213,7 +237,7 @@ class Atoms:
     def character(self, atom: list[Any], level: int) -> int:
         """The kernel of the atom's character at ``level`` (after checking Newman's conditions there)."""
         head, args = atom[0], atom[1:]
-        if head in ("E", "Delta"):
+        if head in ("E", "Delta", "series"):
             return 1
         if head == "Echar":
             _, psi, phi, _ = _echar(args)
@@ -242,6 +266,8 @@ class Atoms:
 
     def order_at(self, atom: list[Any], level: int, c_den: int) -> Fraction:
         """A lower bound for the order of the atom at the cusps a/c_den (exact for eta quotients and Delta)."""
+        if atom[0] == "series":
+            raise Unsupported("a series-only product has no order at a cusp")
         if atom[0] == "Delta":  # Delta(d tau) = eta(d tau)^24
             return arith.ligozat_order([(_int(atom[1], "a scale"), 24)], level, c_den)
         if atom[0] != "eta":
@@ -262,6 +288,18 @@ class Atoms:
         head, args = atom[0], atom[1:]
         if head == "eta":
             return eta_quotient(_eta_pairs(args), prec)
+        if head == "series":
+            d = _int(args[1], "the scale of a series-only atom")
+            if d < 1:
+                raise Unsupported("a series-only atom at a scale below 1")
+            spec = self.series_definition(atom)
+            finite = {int(n): int(c) for n, c in spec.get("finite", [])}
+            values = [int(v) for v in spec.get("values", [])]
+            period = int(spec["period"])
+            if period < 0 or (period and len(values) != period):
+                raise ValueError("a series-only product with a malformed period")
+            base = periodic_product(period, values, finite, -(-prec // d)).scale(Fraction(str(spec["constant"])))
+            return base.inflate(d).truncate(prec) if d != 1 else base
         if head == "Echar":
             k, psi, phi, d = _echar(args)
             return eisenstein_character(k, psi, phi, -(-prec // d)).inflate(d).truncate(prec)
@@ -359,7 +397,7 @@ class Evaluator:
         head, args = tree[0], tree[1:]
         if head == "q":
             return {(Fraction(0), 0, 1): Series.monomial(int(args[0]), Fraction(1), self.prec)}, None
-        if head in ATOM_HEADS:
+        if head in ATOM_HEADS or head == "series":
             return self.atom(tree), None
         if head in ("+", "-"):
             (na, da), (nb, db) = self.side(args[0]), self.side(args[1])

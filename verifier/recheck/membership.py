@@ -4,7 +4,8 @@
 Membership: the form's atoms have levels dividing N (Newman's conditions for eta quotients,
 checked again at N with their characters: M. Newman, Proc. London Math. Soc. 1959;
 B. Gordon and K. Hughes 1981); every piece that is nonzero through its Sturm bound has the
-stated weight and character and no E_2; the orders at the cusps c/d (d | N, d < N) are at
+stated weight and character and no E_2 (E_2 only in sums sum c_d E_2(d tau) whose E_2 part
+vanishes, which are holomorphic forms of weight 2); the orders at the cusps c/d (d | N, d < N) are at
 least the sums and minima of the atoms' orders (Ligozat's formula for eta quotients, G.
 Ligozat, "Courbes modulaires de genre 1", 1975; Eisenstein series and thetas are holomorphic
 at every cusp), and the order at infinity is read off the q-expansion.  A cusp form needs
@@ -32,9 +33,34 @@ from verifier.recheck.sexpr import parse
 MAX_LEVEL_COUNT = 200_000  # the largest N for which e_2, e_3 are counted by brute force
 
 
+def _e2_combination(tree: Any) -> dict[int, Fraction] | None:
+    """``{d: c}`` when the tree is sum c_d E_2(d tau) (constants times E_2 atoms, sums, differences)."""
+    if not isinstance(tree, list):
+        return None
+    head, args = tree[0], tree[1:]
+    if head == "E" and args[0] == 2:
+        return {int(args[1]): Fraction(1)}
+    if head == "*" and len(args) == 2:
+        for c, rest in (args, args[::-1]):
+            inner = _e2_combination(rest)
+            if isinstance(c, Fraction) and inner is not None:
+                return {d: c * x for d, x in inner.items()}
+        return None
+    if head in ("+", "-"):
+        a, b = _e2_combination(args[0]), _e2_combination(args[1])
+        if a is None or b is None:
+            return None
+        sign = 1 if head == "+" else -1
+        return {d: a.get(d, Fraction(0)) + sign * b.get(d, Fraction(0)) for d in set(a) | set(b)}
+    return None
+
+
 def _plain_tree(tree: Any) -> None:
-    """Only sums, products, constants and nonnegative powers of atoms (no quotients, E_2, D, T, U, q)."""
-    if isinstance(tree, Fraction):
+    """Only sums, products, constants and nonnegative powers of atoms (no quotients, D, T, U, q); E_2
+    only in sums c_d E_2(d tau): their E_2 part (sum c_d / d) E_2 is a graded piece checked to vanish,
+    and then the sum is -sum (c_d / d)(E_2(tau) - d E_2(d tau)), a holomorphic form of weight 2 on
+    Gamma_0(lcm d) (Diamond-Shurman, Section 1.2), of order >= 0 at every cusp."""
+    if isinstance(tree, Fraction) or _e2_combination(tree) is not None:
         return
     head, args = tree[0], tree[1:]
     if head in ("+", "-", "*"):
