@@ -251,8 +251,7 @@ def _decide(prover: Prover, claim: ArithmeticClaim, values: Values, prove_modulo
         return Outcome(
             "unproven",
             kind,
-            f"the sides agree for {claim.span(claim.start + CHECK)} (computed directly), "
-            f"but no proof applies: {exc}",
+            f"the sides agree for {claim.span(claim.start + CHECK)} (computed directly), but no proof applies: {exc}",
             method="computation",
             terms_compared=CHECK + 1,
         )

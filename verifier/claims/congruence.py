@@ -29,8 +29,8 @@ from verifier.claims.coefficients import (
 from verifier.claims.kind import ParsedClaim, Unread, certified
 from verifier.claims.value import at_a_value
 from verifier.elaborate import ir
-from verifier.prove import certificate, groups
 from verifier.parse.ast import NClass
+from verifier.prove import certificate, groups
 from verifier.prove.outcome import Outcome
 from verifier.prove.prover import Prover
 from verifier.prove.restrict import Restriction, restriction

@@ -918,8 +918,10 @@ def _class_of(text: str, offset: int) -> ast.NClass:
         found = _CLASS_RESIDUES.search(text)
         assert found is not None, text
         var, m = found.group(1), modulus(found.group(3))
-        listed = [_literal(x.strip().lstrip("-"), offset) * (-1 if x.strip().startswith("-") else 1)
-                  for x in found.group(2).split(",")]
+        listed = [
+            _literal(x.strip().lstrip("-"), offset) * (-1 if x.strip().startswith("-") else 1)
+            for x in found.group(2).split(",")
+        ]
         kept = frozenset(r % m for r in listed)
         shown = ", ".join(str(r) for r in dict.fromkeys(r % m for r in listed))
         return ast.NClass(var, m, kept, f"{var} = {shown} mod {m}")

@@ -53,9 +53,7 @@ class Restriction:
     def restrict(self, series: QSeries) -> QSeries:
         """The series with every coefficient of q^n, n outside the class, set to 0 (exact)."""
         poly = series.poly
-        kept = [
-            poly[i] if (series.offset + i) % self.modulus in self.residues else 0 for i in range(poly.degree() + 1)
-        ]
+        kept = [poly[i] if (series.offset + i) % self.modulus in self.residues else 0 for i in range(poly.degree() + 1)]
         return QSeries(fmpq_poly(kept), series.offset, series.prec)
 
     def describe(self) -> str:

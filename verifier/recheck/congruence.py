@@ -208,7 +208,9 @@ def _class_problem(m: int, keep: set[int]) -> str | None:
     for r in units:
         for s in squares:
             if (r in keep) != (r * s % m in keep):
-                return f"the class mod {m} holds {r} but not {r * s % m}, a square times it: no real character cuts it out"
+                return (
+                    f"the class mod {m} holds {r} but not {r * s % m}, a square times it: no real character cuts it out"
+                )
     return None
 
 
