@@ -213,3 +213,10 @@ def test_identity_true_for_all_n_is_proved_on_a_class() -> None:
     doc = "%@claim\n\\[ \\sigma_1(n) = \\sigma_1(n) + \\sigma_3(n) - \\sigma_3(n) \\quad (n \\text{ odd}) \\]\n"
     (claim,) = check_text(doc, "classes.tex").to_dict()["claims"]
     assert claim["verdict"] == "proved", claim["message"]
+
+
+def test_an_empty_class_is_not_decided() -> None:
+    """(n/9) = -1 holds for no n: 9 is a square, so the Jacobi symbol (n/9) is never -1 (common practice)."""
+    doc = "%@claim\n\\[ \\tau(n) \\neq 0 \\quad (\\frac{n}{9}) = -1 \\]\n"
+    (claim,) = check_text(doc, "classes.tex").to_dict()["claims"]
+    assert claim["verdict"] == "error", claim["message"]

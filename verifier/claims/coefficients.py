@@ -144,6 +144,13 @@ def _read_sequences(claim: ParsedClaim) -> SequenceReading | Unread | None:
                 f"the class '{n_class.text}' is about {n_class.var}, but the claim's variable is {var or 'missing'}",
                 "state the class on the claim's own variable",
             )
+        if not n_class.residues:
+            return Unread(
+                kind,
+                "unsupported",
+                f"no n satisfies '{n_class.text}': a claim on an empty class says nothing",
+                "check the class of n",
+            )
         start = max(start, 1)  # a class of n is read on n >= 1 (docs/method.md#classes-of-n)
     found = ArithmeticClaim(sides[0], sides[1], rel, var, start, claim.modulus, n_class)
     if claim.modulus is None and var is None:

@@ -101,14 +101,16 @@ def prove_modulo(
                     f"but no proof applies: {found}",
                     method="computation",
                 )
-            sieve, level = found, found.level
-        prec = max(needed_precision(weights, modulus, level), 2)
+            sieve = found
+        # The level of the proof: the restricted difference lies on Gamma_0(N m^2) (docs/method.md#classes-of-n).
+        proof_level = level if sieve is None else sieve.level
+        prec = max(needed_precision(weights, modulus, proof_level), 2)
         for _attempt in range(2):
             nl, _ = graded_fraction(left.expr, prec, prover.table, chars)
             nr, _ = graded_fraction(right.expr, prec, prover.table, chars)
             diff = graded_add(nl, nr, -1)
             pieces = [Piece(w, j, k, s if sieve is None else sieve.restrict(s)) for (w, j, k), s in diff.items()]
-            decision = decide_congruence(pieces, modulus, level)
+            decision = decide_congruence(pieces, modulus, proof_level)
             # A proof scaled by a denominator (docs/method.md#congruence-denominators) may need more terms.
             wanted = scaled_precision(decision)
             if decision.proved or wanted is None or wanted <= prec or wanted > prover.max_terms:
@@ -124,7 +126,7 @@ def prove_modulo(
             )
             details = [{**d, "proved": False, "reason": why} for d in decision.details]
             decision = dataclasses.replace(decision, proved=False, reason=why, details=details)
-        return decision, pieces, level
+        return decision, pieces, proof_level
 
     left, right = sides
     first = attempt(left, right, claim.modulus)
