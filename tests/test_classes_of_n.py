@@ -161,6 +161,7 @@ def _members(qualifier: str) -> set[int]:
         (r"\quad (\frac{n}{7}) = -1", legendre(7, -1)),  # \left, \right are removed by the scanner
         (r"\quad (\frac{n}{11}) = +1", legendre(11, 1)),
         (r"\text{for } n \equiv 1 \pmod{8}", mod8(1)),
+        (r"\quad n \equiv 1 \pmod{2^3}", mod8(1)),
         (r"\quad n \equiv 2, -1 \pmod{9}", lambda n: n % 9 in (2, 8)),
         (r"\quad (n, 2) = 1 \quad n \equiv 1 \pmod 3", lambda n: n % 2 == 1 and n % 3 == 1),
     ],

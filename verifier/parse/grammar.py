@@ -879,7 +879,7 @@ class _ToAst:
 
 _CLASS_VAR = r"([a-z])"
 _CLASS_PARITY = re.compile(r"(odd|even)")
-_CLASS_RESIDUES = re.compile(r"([a-z])\s*\\equiv\s*(-?\d+(?:\s*,\s*-?\d+)*)\D+?(\d+)\s*\}?\s*\)?\s*\)?\s*$")
+_CLASS_RESIDUES = re.compile(r"([a-z])\s*\\equiv\s*(-?\d+(?:\s*,\s*-?\d+)*)")
 _CLASS_GCD = re.compile(r"\(\s*(?:([a-z])\s*,\s*(\d+)|(\d+)\s*,\s*([a-z]))\s*\)\s*=")
 _CLASS_NMID = re.compile(r"(\d+)\s*\\n?o?t?\s*\\?(?:nmid|mid|\|)?\s*([a-z])\s*\)?\s*$")
 _CLASS_SYMBOL = re.compile(r"\{\s*([a-z])\s*\}\s*\{\s*(\d+)\s*\}\s*\)\s*=\s*([-+]?)\s*1")
@@ -890,8 +890,8 @@ def _class_of(text: str, offset: int) -> ast.NClass:
     """The class of n a qualifier token states (grammar terminal NCLASS; docs/method.md#classes-of-n)."""
     from verifier.numbers import kronecker
 
-    def modulus(digits: str) -> int:
-        m = _literal(digits, offset)
+    def modulus(digits: str | int) -> int:
+        m = digits if isinstance(digits, int) else _literal(digits, offset)
         if not 2 <= m <= MAX_CLASS_MODULUS:
             raise _BadNumber(
                 f"a class of n modulo {m} is not read (the modulus must lie between 2 and {MAX_CLASS_MODULUS})",
@@ -917,7 +917,7 @@ def _class_of(text: str, offset: int) -> ast.NClass:
     if "equiv" in text:
         found = _CLASS_RESIDUES.search(text)
         assert found is not None, text
-        var, m = found.group(1), modulus(found.group(3))
+        var, m = found.group(1), modulus(_modulus_value(text))  # \pmod{8}, \pmod{2^3}, (\bmod 8)
         listed = [
             _literal(x.strip().lstrip("-"), offset) * (-1 if x.strip().startswith("-") else 1)
             for x in found.group(2).split(",")
