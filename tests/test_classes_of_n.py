@@ -221,3 +221,12 @@ def test_an_empty_class_is_not_decided() -> None:
     doc = "%@claim\n\\[ \\tau(n) \\neq 0 \\quad (\\frac{n}{9}) = -1 \\]\n"
     (claim,) = check_text(doc, "classes.tex").to_dict()["claims"]
     assert claim["verdict"] == "error", claim["message"]
+
+
+def test_forms_on_a_class_are_compared_by_coefficients() -> None:
+    """Delta = E_4^3 on odd n is false at n = 1: tau(1) = 1, while E_4^3 = 1 + 720 q + ... (E_4 = 1 + 240 q + ...)."""
+    doc = "%@claim\n\\[ \\Delta = E_4^3 \\quad (n \\text{ odd}) \\]\n"
+    (claim,) = check_text(doc, "classes.tex").to_dict()["claims"]
+    assert claim["kind"] == "arithmetic"
+    assert claim["verdict"] == "refuted", claim["message"]
+    assert claim["first_difference"]["n"] == 1

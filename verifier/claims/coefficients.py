@@ -105,12 +105,15 @@ def _read_sequences(claim: ParsedClaim) -> SequenceReading | Unread | None:
     left_node, right_node = claim.sides
     rel, text, elaborator = claim.rel, claim.text, claim.elaborator
     forms, matrices = elaborator.definitions, elaborator.matrices
-    if not (rel == "≡" or any(uses_arithmetic(n, forms, matrices) for n in (left_node, right_node))):
+    # On a class of n (docs/method.md#classes-of-n) a form, like a form in a congruence, stands for its
+    # sequence of coefficients: an identity of forms is not what the class restricts.
+    by_coefficients = rel == "≡" or claim.n_class is not None
+    if not (by_coefficients or any(uses_arithmetic(n, forms, matrices) for n in (left_node, right_node))):
         return None
     kind = "congruence" if claim.modulus is not None else "arithmetic"
     sides: list[Any] = []
     for node in (left_node, right_node):
-        if not uses_arithmetic(node, forms, matrices) and rel == "≡":
+        if not uses_arithmetic(node, forms, matrices) and by_coefficients:
             # A form in a congruence stands for its sequence of coefficients.
             side = elaborator.side(node, text.text)
             if isinstance(side, Problem):
