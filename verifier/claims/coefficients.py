@@ -107,8 +107,9 @@ def _read_sequences(claim: ParsedClaim) -> SequenceReading | Unread | None:
     forms, matrices = elaborator.definitions, elaborator.matrices
     # On a class of n (docs/method.md#classes-of-n) a form, like a form in a congruence, stands for its
     # sequence of coefficients: an identity of forms is not what the class restricts.
-    by_coefficients = rel == "≡" or claim.n_class is not None
-    if not (by_coefficients or any(uses_arithmetic(n, forms, matrices) for n in (left_node, right_node))):
+    arithmetic = any(uses_arithmetic(n, forms, matrices) for n in (left_node, right_node))
+    by_coefficients = rel == "≡" or (claim.n_class is not None and not arithmetic)
+    if not (by_coefficients or arithmetic):
         return None
     kind = "congruence" if claim.modulus is not None else "arithmetic"
     sides: list[Any] = []
