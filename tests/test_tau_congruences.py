@@ -50,8 +50,8 @@ def claim(a: int, b: int, modulus: int, sign: int = 1) -> dict[str, object]:
 
 # (a, b, modulus, verdict qreferee reaches, source).  The literature states the sharpest congruences
 # modulo 2^11, 3^6 and 5^3 only for n in residue classes (n = 1 mod 8, n = 1 mod 3, n prime to 5) and
-# with negative powers of n (Swinnerton-Dyer 1973, from memory); qreferee reads claims for all n >= 1,
-# so the all-n forms below are the ones that can be stated.
+# with negative powers of n (Swinnerton-Dyer 1973, from memory); the all-n forms are below, the forms
+# on a class of n in tests/test_classes_of_n.py.
 TRUE = [
     (0, 11, 691, "proved", "Ramanujan; Swinnerton-Dyer 1973 (from memory)"),
     (1, 3, 7, "proved", "Swinnerton-Dyer 1973; Serre, Bourbaki 416 (from memory)"),

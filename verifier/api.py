@@ -576,6 +576,7 @@ def _block(
                     modulus,
                     start_n,
                     statement.residues,
+                    statement.n_class,
                 )
                 result = pending_claim if isinstance(pending_claim, ClaimResult) else pending_claim.result
                 if statement.iff:
@@ -618,6 +619,7 @@ def _claim(
     modulus: int | None = None,
     start_n: int | None = None,
     residues: tuple[str, tuple[int, ...]] | None = None,
+    n_class: ast.NClass | None = None,
 ) -> _Pending | ClaimResult:
     """One relation of a row: the kind that takes it reads it (verifier/claims/kinds.py)."""
     loc = text.location(start)
@@ -635,6 +637,7 @@ def _claim(
         modulus=modulus,
         start_n=start_n,
         residues=residues,
+        n_class=n_class,
     )
     return _read(claim, loc, end, source, row, name, block)
 

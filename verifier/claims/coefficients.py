@@ -35,6 +35,7 @@ from verifier.elaborate import ir
 from verifier.elaborate.elaborator import Problem
 from verifier.elaborate.rescale import rescale_factor
 from verifier.numbers import prime_factors
+from verifier.parse.ast import NClass
 from verifier.prove import certificate
 from verifier.prove.evaluate import laurent_to
 from verifier.prove.outcome import Witness, differ_modulo
@@ -55,6 +56,16 @@ class ArithmeticClaim:
     var: str | None
     start: int
     modulus: int | None = None
+    n_class: NClass | None = None  # stated only on this class of n (docs/method.md#classes-of-n)
+
+    def covers(self, n: int) -> bool:
+        """Whether the claim speaks about n (its range, and its class of n when it has one)."""
+        return n >= self.start and (self.n_class is None or n in self.n_class)
+
+    def span(self, hi: int) -> str:
+        """The range ``start <= n <= hi`` as the messages say it, with the class of n."""
+        head = f"{self.start} <= n <= {hi}"
+        return head if self.n_class is None else f"{head} with {self.n_class.text}"
 
 
 @dataclass
@@ -94,12 +105,16 @@ def _read_sequences(claim: ParsedClaim) -> SequenceReading | Unread | None:
     left_node, right_node = claim.sides
     rel, text, elaborator = claim.rel, claim.text, claim.elaborator
     forms, matrices = elaborator.definitions, elaborator.matrices
-    if not (rel == "≡" or any(uses_arithmetic(n, forms, matrices) for n in (left_node, right_node))):
+    # On a class of n (docs/method.md#classes-of-n) a form, like a form in a congruence, stands for its
+    # sequence of coefficients: an identity of forms is not what the class restricts.
+    arithmetic = any(uses_arithmetic(n, forms, matrices) for n in (left_node, right_node))
+    by_coefficients = rel == "≡" or (claim.n_class is not None and not arithmetic)
+    if not (by_coefficients or arithmetic):
         return None
     kind = "congruence" if claim.modulus is not None else "arithmetic"
     sides: list[Any] = []
     for node in (left_node, right_node):
-        if not uses_arithmetic(node, forms, matrices) and rel == "≡":
+        if not uses_arithmetic(node, forms, matrices) and by_coefficients:
             # A form in a congruence stands for its sequence of coefficients.
             side = elaborator.side(node, text.text)
             if isinstance(side, Problem):
@@ -124,7 +139,24 @@ def _read_sequences(claim: ParsedClaim) -> SequenceReading | Unread | None:
     if var is None and any(isinstance(s, t.Fun) and s.name == "coef" and isinstance(s.arg, t.Var) for s in sides):
         var = "n"
     start = claim.start_n if claim.start_n is not None else (0 if rel == "≡" and not free else 1)
-    found = ArithmeticClaim(sides[0], sides[1], rel, var, start, claim.modulus)
+    n_class = claim.n_class
+    if n_class is not None:
+        if var is None or n_class.var != var:
+            return Unread(
+                kind,
+                "syntax",
+                f"the class '{n_class.text}' is about {n_class.var}, but the claim's variable is {var or 'missing'}",
+                "state the class on the claim's own variable",
+            )
+        if not n_class.residues:
+            return Unread(
+                kind,
+                "unsupported",
+                f"no n satisfies '{n_class.text}': a claim on an empty class says nothing",
+                "check the class of n",
+            )
+        start = max(start, 1)  # a class of n is read on n >= 1 (docs/method.md#classes-of-n)
+    found = ArithmeticClaim(sides[0], sides[1], rel, var, start, claim.modulus, n_class)
     if claim.modulus is None and var is None:
         kind = "value"
     return SequenceReading(found, kind=kind)
@@ -172,7 +204,7 @@ def decide_arithmetic(
             return refuted(kind, claim, *further)
         if further is None:
             outcome.message = outcome.message.replace(
-                f"{claim.start} <= n <= {claim.start + CHECK}", f"{claim.start} <= n <= {claim.start + EXTENDED}"
+                claim.span(claim.start + CHECK), claim.span(claim.start + EXTENDED)
             )
     return outcome
 
@@ -215,7 +247,7 @@ def _decide(prover: Prover, claim: ArithmeticClaim, values: Values, prove_modulo
         return Outcome(
             "unproven",
             kind,
-            f"the sides agree for {claim.start} <= n <= {claim.start + CHECK}",
+            f"the sides agree for {claim.span(claim.start + CHECK)}",
             method="computation",
             terms_compared=CHECK + 1,
             relation="!=",
@@ -230,8 +262,7 @@ def _decide(prover: Prover, claim: ArithmeticClaim, values: Values, prove_modulo
         return Outcome(
             "unproven",
             kind,
-            f"the sides agree for {claim.start} <= n <= {claim.start + CHECK} (computed directly), "
-            f"but no proof applies: {exc}",
+            f"the sides agree for {claim.span(claim.start + CHECK)} (computed directly), but no proof applies: {exc}",
             method="computation",
             terms_compared=CHECK + 1,
         )
@@ -264,7 +295,7 @@ def _decide(prover: Prover, claim: ArithmeticClaim, values: Values, prove_modulo
     if outcome.verdict == "refuted":
         fd = outcome.first_difference
         at = int(fd["n"]) if fd is not None and isinstance(fd["n"], int) else None
-        if at is not None and at >= claim.start:
+        if at is not None and at >= claim.start and claim.covers(at):
             direct = first_direct_difference(claim, values, claim.start, at + 1)
             if isinstance(direct, tuple):
                 return refuted(kind, claim, *direct)
@@ -274,6 +305,14 @@ def _decide(prover: Prover, claim: ArithmeticClaim, values: Values, prove_modulo
                 "internal inconsistency: the generating functions differ at "
                 f"q^{at} but the direct values agree; please report this claim",
                 code="internal",
+            )
+        if claim.n_class is not None:
+            return Outcome(
+                "unproven",
+                kind,
+                f"the identity holds for {claim.span(claim.start + CHECK)} but fails for some n outside "
+                f"{claim.n_class.text}; identities on a class of n are proved only as congruences "
+                "(docs/method.md#classes-of-n)",
             )
         return Outcome(
             "unproven",
@@ -324,6 +363,8 @@ def first_direct_difference(
 ) -> tuple[int, Fraction, Fraction] | Outcome | None:
     assert claim.var is not None
     for n in range(max(lo, 0), hi + 1):
+        if claim.n_class is not None and n not in claim.n_class:
+            continue
         try:
             a = values.value(claim.left, {claim.var: n})
             b = values.value(claim.right, {claim.var: n})

@@ -13,6 +13,7 @@ from __future__ import annotations
 
 import dataclasses
 import math
+from fractions import Fraction
 from typing import Any
 
 from verifier.arith.values import Values
@@ -28,9 +29,11 @@ from verifier.claims.coefficients import (
 from verifier.claims.kind import ParsedClaim, Unread, certified
 from verifier.claims.value import at_a_value
 from verifier.elaborate import ir
+from verifier.parse.ast import NClass
 from verifier.prove import certificate, groups
 from verifier.prove.outcome import Outcome
 from verifier.prove.prover import Prover
+from verifier.prove.restrict import Restriction, restriction
 
 KINDS = ("congruence",)
 
@@ -87,13 +90,27 @@ def prove_modulo(
         if len(den_l) != 1 or len(den_r) != 1:
             return Outcome("unproven", kind, "congruences between quotients are not proved", method="computation")
         weights = [(w, j) for (w, j, _) in {**keys_probe_l, **keys_probe_r}]
-        prec = max(needed_precision(weights, modulus, level), 2)
+        sieve: Restriction | None = None
+        if claim.n_class is not None:
+            found = _restriction(claim.n_class, level, den_l, den_r, weights)
+            if isinstance(found, str):
+                return Outcome(
+                    "unproven",
+                    kind,
+                    f"the sides agree modulo {claim.modulus} for {claim.span(claim.start + CHECK)}, "
+                    f"but no proof applies: {found}",
+                    method="computation",
+                )
+            sieve = found
+        # The level of the proof: the restricted difference lies on Gamma_0(N m^2) (docs/method.md#classes-of-n).
+        proof_level = level if sieve is None else sieve.level
+        prec = max(needed_precision(weights, modulus, proof_level), 2)
         for _attempt in range(2):
             nl, _ = graded_fraction(left.expr, prec, prover.table, chars)
             nr, _ = graded_fraction(right.expr, prec, prover.table, chars)
             diff = graded_add(nl, nr, -1)
-            pieces = [Piece(w, j, k, s) for (w, j, k), s in diff.items()]
-            decision = decide_congruence(pieces, modulus, level)
+            pieces = [Piece(w, j, k, s if sieve is None else sieve.restrict(s)) for (w, j, k), s in diff.items()]
+            decision = decide_congruence(pieces, modulus, proof_level)
             # A proof scaled by a denominator (docs/method.md#congruence-denominators) may need more terms.
             wanted = scaled_precision(decision)
             if decision.proved or wanted is None or wanted <= prec or wanted > prover.max_terms:
@@ -109,14 +126,15 @@ def prove_modulo(
             )
             details = [{**d, "proved": False, "reason": why} for d in decision.details]
             decision = dataclasses.replace(decision, proved=False, reason=why, details=details)
-        return decision, pieces, level
+        return decision, pieces, proof_level
 
     left, right = sides
     first = attempt(left, right, claim.modulus)
     if isinstance(first, Outcome):
         return first
     decision, pieces, level = first
-    if not decision.proved and decision.witness is None and decision.undefined is None:
+    # Frobenius lifts are not combined with a class of n (the lifted sides would need their own restriction).
+    if not decision.proved and decision.witness is None and decision.undefined is None and claim.n_class is None:
         decision = _frobenius(decision, sides, attempt, claim.modulus)
     if decision.proved:
         check = first_direct_difference(claim, values, max(claim.start, 1), claim.start + CHECK)
@@ -127,7 +145,7 @@ def prove_modulo(
         return Outcome(
             "proved",
             kind,
-            f"for all n >= {max(claim.start, 1)}, modulo {claim.modulus}: {decision.reason}",
+            f"for all n >= {max(claim.start, 1)}{_on(claim)}, modulo {claim.modulus}: {decision.reason}",
             method="sturm-congruence",
             bound=decision.bound,
             components=decision.details,
@@ -140,16 +158,36 @@ def prove_modulo(
                 decision.bound,
                 [(pc.weight, pc.e2_power, pc.kernel) for pc in pieces],
                 decision.details,
+                None
+                if claim.n_class is None
+                else {"modulus": claim.n_class.modulus, "residues": sorted(claim.n_class.residues), "level": level},
             ),
         )
     return Outcome(
         "unproven",
         kind,
-        f"the sides agree modulo {claim.modulus} for {claim.start} <= n <= "
-        f"{claim.start + CHECK}, but no proof applies: {decision.reason}",
+        f"the sides agree modulo {claim.modulus} for {claim.span(claim.start + CHECK)}, "
+        f"but no proof applies: {decision.reason}",
         method="computation",
         components=decision.details,
     )
+
+
+def _restriction(
+    n_class: NClass, level: int, den_l: Any, den_r: Any, weights: list[tuple[Fraction, int]]
+) -> Restriction | str:
+    """How the difference of the sides is restricted to the class of n (docs/method.md#classes-of-n),
+    or why it is not: only holomorphic modular forms without denominators are twisted."""
+    from verifier.prove.evaluate import graded_is_one
+
+    if not (graded_is_one(den_l) and graded_is_one(den_r)):
+        return "a side has a denominator; only forms are restricted to a class of n"
+    if any(j for _, j in weights):
+        return (
+            f"restricting to {n_class.text} twists the generating functions by characters, and a side has "
+            "a quasimodular E_2 piece: twists of quasimodular forms are not covered (docs/method.md#classes-of-n)"
+        )
+    return restriction(level, n_class.modulus, n_class.residues)
 
 
 def _poles(left: ir.Side, right: ir.Side, level: int) -> str:
@@ -162,6 +200,13 @@ def _poles(left: ir.Side, right: ir.Side, level: int) -> str:
     except registry.NotModular:
         return "(unknown)"
     return ", ".join(f"a/{d}" for d, v in sorted(bounds.items()) if d != level and v < 0)
+
+
+def _on(claim: ArithmeticClaim) -> str:
+    """The class of n of a claim, as the proof's message says it (restricted by twists)."""
+    if claim.n_class is None:
+        return ""
+    return f" with {claim.n_class.text} (the difference restricted to the class by twists, docs/method.md#classes-of-n)"
 
 
 def _valuation(n: int, p: int) -> int:

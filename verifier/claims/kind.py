@@ -52,6 +52,7 @@ class ParsedClaim:
     modulus: int | None = None
     start_n: int | None = None
     residues: Residues | None = None
+    n_class: ast.NClass | None = None  # the class of n the claim is stated on (docs/method.md#classes-of-n)
     letter: str | None = None
     relation_kind: str = "equality"  # equality or inequality, from the relation as written
     memo: dict[str, Any] = field(default_factory=dict)

@@ -192,6 +192,31 @@ class SpaceClaim(Node):
 
 
 @dataclass(frozen=True)
+class NClass:
+    """A class of n written after a claim (docs/method.md#classes-of-n): ``n`` is in it when
+    ``n mod modulus`` is one of ``residues``.  ``(n \\text{ odd})`` is (2, {1}), ``(n, 5) = 1`` is
+    (5, {1, 2, 3, 4}), ``(\\frac{n}{7}) = -1`` is (7, {3, 5, 6}), ``n \\equiv 1 \\pmod 8`` is (8, {1}).
+    ``text`` says it as the author did, normalised (``n odd``, ``n = 1 mod 8``).
+    """
+
+    var: str
+    modulus: int
+    residues: frozenset[int]
+    text: str
+
+    def __contains__(self, n: object) -> bool:
+        return isinstance(n, int) and n % self.modulus in self.residues
+
+    def meet(self, other: NClass) -> NClass:
+        """Both classes at once (the moduli combined by their least common multiple)."""
+        import math
+
+        m = math.lcm(self.modulus, other.modulus)
+        kept = frozenset(r for r in range(m) if r in self and r in other)
+        return NClass(self.var, m, kept, f"{self.text} and {other.text}")
+
+
+@dataclass(frozen=True)
 class Statement(Node):
     """One relation of a row with its qualifiers (docs/method.md#layout).
 
@@ -199,6 +224,7 @@ class Statement(Node):
     ``iff`` is set on both halves of ``A = B \\iff C = D``: the equivalence itself is the author's.
     ``residues`` is ``(t, values)`` from a residue set ``(t \\in \\{3, 5, 6\\})`` after a
     progression congruence (docs/method.md#progressions), values in the author's order.
+    ``n_class`` is the class of n the claim is stated on (``(n \\text{ odd})``, ``(n, 5) = 1``, ...).
     """
 
     relation: Relation | SpaceClaim
@@ -206,6 +232,7 @@ class Statement(Node):
     start: tuple[str, int] | None = None
     iff: bool = False
     residues: tuple[str, tuple[int, ...]] | None = None
+    n_class: NClass | None = None
 
 
 @dataclass(frozen=True)

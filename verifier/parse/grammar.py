@@ -519,6 +519,9 @@ class _ToAst:
         name = next(t for t in items if getattr(t, "type", "") == "NAME")
         return ("residues", (str(name), items[-1]))
 
+    def q_class(self, meta: Any, items: list[Any]) -> tuple[str, ast.NClass]:
+        return ("class", _class_of(str(items[0]), meta.start_pos))
+
     def residue_values(self, meta: Any, items: list[Any]) -> tuple[int, ...]:
         # In the author's order, without repeats.
         return tuple(dict.fromkeys(_literal(str(t), t.start_pos) for t in items))
@@ -874,6 +877,70 @@ class _ToAst:
         return ast.BigO(_span(meta), items[-1])
 
 
+_CLASS_VAR = r"([a-z])"
+_CLASS_PARITY = re.compile(r"(odd|even)")
+_CLASS_RESIDUES = re.compile(r"([a-z])\s*\\equiv\s*(-?\d+(?:\s*,\s*-?\d+)*)")
+_CLASS_GCD = re.compile(r"\(\s*(?:([a-z])\s*,\s*(\d+)|(\d+)\s*,\s*([a-z]))\s*\)\s*=")
+_CLASS_NMID = re.compile(r"(\d+)\s*\\n?o?t?\s*\\?(?:nmid|mid|\|)?\s*([a-z])\s*\)?\s*$")
+_CLASS_SYMBOL = re.compile(r"\{\s*([a-z])\s*\}\s*\{\s*(\d+)\s*\}\s*\)\s*=\s*([-+]?)\s*1")
+MAX_CLASS_MODULUS = 10_000  # a class of n mod m is decided by its residues: m stays small
+
+
+def _class_of(text: str, offset: int) -> ast.NClass:
+    """The class of n a qualifier token states (grammar terminal NCLASS; docs/method.md#classes-of-n)."""
+    from verifier.numbers import kronecker
+
+    def modulus(digits: str | int) -> int:
+        m = digits if isinstance(digits, int) else _literal(digits, offset)
+        if not 2 <= m <= MAX_CLASS_MODULUS:
+            raise _BadNumber(
+                f"a class of n modulo {m} is not read (the modulus must lie between 2 and {MAX_CLASS_MODULUS})",
+                offset,
+                "unsupported",
+                "write a class modulo a small integer m >= 2",
+            )
+        return m
+
+    if "frac" in text:
+        found = _CLASS_SYMBOL.search(text)
+        assert found is not None
+        var, m, sign = found.group(1), modulus(found.group(2)), -1 if found.group(3) == "-" else 1
+        if m % 2 == 0:
+            raise _BadNumber(
+                f"the symbol (n/{m}) is read for odd {m} only (the Jacobi symbol)",
+                offset,
+                "unsupported",
+                "write the class as n \\equiv r \\pmod{m}",
+            )
+        kept = frozenset(r for r in range(m) if kronecker(r, m) == sign)
+        return ast.NClass(var, m, kept, f"({var}/{m}) = {sign}")
+    if "equiv" in text:
+        found = _CLASS_RESIDUES.search(text)
+        assert found is not None, text
+        var, m = found.group(1), modulus(_modulus_value(text))  # \pmod{8}, \pmod{2^3}, (\bmod 8)
+        listed = [
+            _literal(x.strip().lstrip("-"), offset) * (-1 if x.strip().startswith("-") else 1)
+            for x in found.group(2).split(",")
+        ]
+        kept = frozenset(r % m for r in listed)
+        shown = ", ".join(str(r) for r in dict.fromkeys(r % m for r in listed))
+        return ast.NClass(var, m, kept, f"{var} = {shown} mod {m}")
+    parity = _CLASS_PARITY.search(text)
+    if parity is not None and "equiv" not in text:
+        var = re.findall(r"(?<![A-Za-z\\])([a-z])(?![A-Za-z])", re.sub(r"\\[A-Za-z]+|\{[^{}]*\}", " ", text))
+        name = var[0] if var else "n"
+        return ast.NClass(name, 2, frozenset({1 if parity.group(1) == "odd" else 0}), f"{name} {parity.group(1)}")
+    found_gcd = _CLASS_GCD.search(text)
+    if found_gcd is not None:
+        var = found_gcd.group(1) or found_gcd.group(4)
+        m = modulus(found_gcd.group(2) or found_gcd.group(3))
+    else:
+        found_nmid = _CLASS_NMID.search(text)
+        assert found_nmid is not None, text
+        var, m = found_nmid.group(2), modulus(found_nmid.group(1))
+    return ast.NClass(var, m, frozenset(r for r in range(m) if math.gcd(r, m) == 1), f"({var}, {m}) = 1")
+
+
 _RANGE_PARTS = re.compile(r"([a-z])\s*(?:\\geq?|>=|\\geqslant)\s*(-?\d+)\s*\)$")
 
 
@@ -944,6 +1011,8 @@ def _group_row(span: ast.Span, items: list[Any]) -> ast.Row:
                 iff[-2] = True
         else:
             key, payload = value
+            if key == "class" and "class" in quals[-1]:
+                payload = quals[-1]["class"].meet(payload)  # two classes: n in both
             quals[-1][key] = payload
     trailing = quals[-1]
     for rel, q in zip(relations[:-1], quals[:-1], strict=True):
@@ -953,8 +1022,10 @@ def _group_row(span: ast.Span, items: list[Any]) -> ast.Row:
             q["start"] = trailing["start"]
         if "residues" in trailing and "residues" not in q:
             q["residues"] = trailing["residues"]
+        if "class" in trailing and "class" not in q:
+            q["class"] = trailing["class"]
     statements = tuple(
-        ast.Statement(r.span, r, q.get("modulus"), q.get("start"), f, q.get("residues"))
+        ast.Statement(r.span, r, q.get("modulus"), q.get("start"), f, q.get("residues"), q.get("class"))
         for r, q, f in zip(relations, quals, iff, strict=True)
     )
     return ast.Row(span, statements)

@@ -345,8 +345,14 @@ def congruence(
     bound: int | None,
     pieces: list[tuple[Fraction, int, int]],
     prime_powers: list[dict[str, Any]],
+    n_class: dict[str, Any] | None = None,
 ) -> dict[str, Any]:
-    """The certificate of a congruence proved modulo each prime power (method ``sturm-congruence``)."""
+    """The certificate of a congruence proved modulo each prime power (method ``sturm-congruence``).
+
+    ``n_class`` (``{modulus, residues, level}``), for a claim on a class of n: the pieces were restricted
+    to the class, on the level given there, which is also ``level`` (docs/method.md#classes-of-n).
+    """
+    restricted = {} if n_class is None else {"n_class": n_class}
     return {
         "format": FORMAT,
         "method": "sturm-congruence",
@@ -361,6 +367,7 @@ def congruence(
         "bound": bound,
         "pieces": [{"weight": frac_str(w), "e2_power": j, "character": k} for w, j, k in pieces],
         "prime_powers": [_with_lifted_sides(d, left, right) for d in prime_powers],
+        **restricted,
     }
 
 

@@ -221,6 +221,11 @@ def _is_one(g: Graded) -> bool:
     return s.offset == 0 and s.poly.degree() == 0 and s.poly[0] == 1
 
 
+def graded_is_one(g: Graded) -> bool:
+    """Whether a graded polynomial is the constant 1 (a side without a denominator)."""
+    return _is_one(g)
+
+
 def _g_const(c: Fraction, prec: int) -> Graded:
     return {} if c == 0 else {(Fraction(0), 0, 1): QSeries.constant(c, prec)}
 

@@ -134,6 +134,21 @@ def recheck_congruence(claim: Any, cert: dict[str, Any], reasons: list[str], not
     if modulus < 2:
         reasons.append(f"modulus {modulus} is not at least 2")
         return
+    n_class = cert.get("n_class")
+    keep: set[int] | None = None
+    if n_class is not None:
+        # A claim on a class of n (docs/method.md#classes-of-n): the class must be a union of cosets of
+        # the squares among the units mod m (so real characters cut it out), with the multiples of the
+        # primes of m all in or all out; the difference restricted to it lies on Gamma_0(N m^2).
+        m = int(n_class["modulus"])
+        keep = {int(r) % m for r in n_class["residues"]}
+        why = _class_problem(m, keep)
+        if why is not None:
+            reasons.append(why)
+            return
+        level = level * m * m
+        if int(n_class.get("level", -1)) != level:
+            reasons.append(f"level of the restricted form: certificate {n_class.get('level')}, recomputed {level}")
     if int(cert.get("level", -1)) != level:
         reasons.append(f"level: certificate {cert.get('level')}, recomputed {level}")
     index = arith.index_gamma0(level)
@@ -145,7 +160,13 @@ def recheck_congruence(claim: Any, cert: dict[str, Any], reasons: list[str], not
         reasons.append(f"prime powers of {modulus}: certificate {sorted(stated)}, recomputed {mine}")
         return
     lifted_only = all(d.get("frobenius") is not None for d in stated.values())
+    if keep is not None and lifted_only:
+        reasons.append("a claim on a class of n proved with Frobenius lifts is not re-checked")
+        return
     diff, ev, need = _difference(claim, stated, level, strict=not lifted_only)
+    if keep is not None:
+        m = int(n_class["modulus"])  # type: ignore[index]
+        diff = {key: _only(s, m, keep) for key, s in diff.items()}
     listed = {(Fraction(str(q["weight"])), int(q["e2_power"]), int(q["character"])) for q in cert.get("pieces", [])}
     for (w, j, c), s in sorted(diff.items()):
         if (w + 2 * j, j, c) not in listed and not s.is_zero():
@@ -173,6 +194,30 @@ def recheck_congruence(claim: Any, cert: dict[str, Any], reasons: list[str], not
         biggest = max(biggest, bound)
     if int(cert.get("bound", -1)) != biggest:
         reasons.append(f"bound: certificate {cert.get('bound')}, recomputed {biggest}")
+
+
+def _class_problem(m: int, keep: set[int]) -> str | None:
+    """Why the class ``keep`` mod m is not cut out by real characters (None when it is)."""
+    if m < 2:
+        return f"the class's modulus {m} is not at least 2"
+    units = [r for r in range(m) if math.gcd(r, m) == 1]
+    rest = [r for r in range(m) if math.gcd(r, m) != 1]
+    if any(r in keep for r in rest) and not all(r in keep for r in rest):
+        return f"the class mod {m} takes some but not all n sharing a factor with {m}"
+    squares = {s * s % m for s in units}
+    for r in units:
+        for s in squares:
+            if (r in keep) != (r * s % m in keep):
+                return (
+                    f"the class mod {m} holds {r} but not {r * s % m}, a square times it: no real character cuts it out"
+                )
+    return None
+
+
+def _only(s: Series, m: int, keep: set[int]) -> Series:
+    """The series with the coefficients of q^n, n mod m outside ``keep``, set to 0."""
+    coeffs = [c if (s.lo + i) % m in keep else Fraction(0) for i, c in enumerate(s.coeffs)]
+    return Series(s.lo, coeffs, s.prec)
 
 
 def _difference(
