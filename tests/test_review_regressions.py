@@ -319,3 +319,44 @@ def test_overpartitions_are_even_by_frobenius() -> None:
     assert [c.verdict for c in report.claims] == ["proved", "refuted"]
     witness = report.claims[1].outcome.first_difference
     assert witness is not None and witness["n"] == 1
+
+
+def _sigma3(n: int) -> int:
+    return sum(d**3 for d in range(1, n + 1) if n % d == 0)
+
+
+def test_congruence_with_a_form_in_a_denominator_is_not_proved_from_numerators() -> None:
+    # Delta / E_4(70 tau) and Delta agree modulo 7 below q^71 but not at q^71, where the quotient
+    # adds -240 tau(1) = -240 (E_4 = 1 + 240 sum sigma_3(n) q^n, Serre, A Course in Arithmetic,
+    # Ch. VII §4; Delta = q prod (1 - q^n)^24).  Counted here with plain integers.
+    n_max = 72
+    delta = [0] * (n_max + 1)
+    delta[1] = 1
+    for k in range(1, n_max + 1):
+        for _ in range(24):
+            for i in range(n_max, k - 1, -1):
+                delta[i] -= delta[i - k]
+    e4 = [1] + [0] * n_max
+    for m in range(1, n_max // 70 + 1):
+        e4[70 * m] = 240 * _sigma3(m)
+    quotient = [0] * (n_max + 1)  # delta / e4(70 tau), e4 has constant term 1
+    for i in range(n_max + 1):
+        quotient[i] = delta[i] - sum(e4[j] * quotient[i - j] for j in range(1, i + 1))
+    assert all((quotient[i] - delta[i]) % 7 == 0 for i in range(71))
+    assert (quotient[71] - delta[71]) % 7 != 0
+    (claim,) = check_text("%@claim\n\\[ \\frac{\\Delta}{E_4(70\\tau)} \\equiv \\Delta \\pmod{7} \\]\n").claims
+    assert claim.verdict == "refuted"
+    witness = claim.outcome.first_difference
+    assert witness is not None and witness["n"] == 71
+
+
+def test_congruence_with_a_constant_denominator_divides_by_it() -> None:
+    # 3/2 = 6 (mod 9) since 2 * 6 = 12 = 3 (mod 9); so 3 Delta(70 tau)/2 = 6 Delta(70 tau) holds
+    # modulo 9 and 3 Delta(70 tau)/2 = 3 Delta(70 tau) does not (at q^70, tau(1) = 1).  Elementary.
+    assert (2 * 6 - 3) % 9 == 0 and (2 * 3 - 3) % 9 != 0
+    good, bad = check_text(
+        "%@claim\n\\[ \\frac{3\\Delta(70\\tau)}{2} \\equiv 6\\Delta(70\\tau) \\pmod{9} \\]\n"
+        "%@claim\n\\[ \\frac{3\\Delta(70\\tau)}{2} \\equiv 3\\Delta(70\\tau) \\pmod{9} \\]\n"
+    ).claims
+    assert good.verdict == "proved"
+    assert bad.verdict == "refuted"
