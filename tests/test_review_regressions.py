@@ -360,3 +360,20 @@ def test_congruence_with_a_constant_denominator_divides_by_it() -> None:
     ).claims
     assert good.verdict == "proved"
     assert bad.verdict == "refuted"
+
+
+def test_bracketed_fraction_of_a_linear_argument_is_not_guessed() -> None:
+    # Read as the Jacobi symbol ((n-5)/5), the right side is the left reindexed (n -> n - 5), so the
+    # claim is true; read as the fraction (n-5)/5 it would be refuted.  Such a bracket is refused
+    # (docs/method.md#characters); with chi_5(n - 5) the claim is read as the symbol and proved.
+    # The symbol's values by sympy's jacobi_symbol: periodic modulo 5, as the reindexing needs.
+    from sympy import jacobi_symbol
+
+    assert all(jacobi_symbol((n - 5) % 5, 5) == jacobi_symbol(n % 5, 5) for n in range(-20, 20))
+    sides = "\\sum_{n\\in\\mathbb Z} \\left(\\frac{n}{5}\\right) q^{n^2} = \\sum_{n\\in\\mathbb Z} "
+    (bracket,) = check_text(f"%@claim\n\\[ {sides}\\left(\\frac{{n-5}}{{5}}\\right) q^{{(n-5)^2}} \\]\n").claims
+    assert (bracket.verdict, bracket.outcome.code) == ("error", "ambiguous-notation")
+    (chi,) = check_text(f"%@claim\n\\[ {sides}\\chi_{{5}}(n-5) q^{{(n-5)^2}} \\]\n").claims
+    assert chi.verdict == "proved"
+    (symbol,) = check_text("%@claim\n\\[ \\sum_{n\\in\\mathbb Z} \\left(\\frac{12}{6n+1}\\right) q^{n^2} = 0 \\]\n").claims
+    assert (symbol.verdict, symbol.outcome.code) == ("error", "ambiguous-notation")
