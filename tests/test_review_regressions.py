@@ -377,3 +377,18 @@ def test_bracketed_fraction_of_a_linear_argument_is_not_guessed() -> None:
     assert chi.verdict == "proved"
     (symbol,) = check_text("%@claim\n\\[ \\sum_{n\\in\\mathbb Z} \\left(\\frac{12}{6n+1}\\right) q^{n^2} = 0 \\]\n").claims
     assert (symbol.verdict, symbol.outcome.code) == ("error", "ambiguous-notation")
+
+
+def test_constant_factor_of_a_non_unary_weight_counts_once() -> None:
+    # sum_{n in Z} 3n^2 q^{n^2} = 6q + 24q^4 + ... and sum_{n >= 1} 3n^2 q^{n^2} = 3q + 12q^4 + ...
+    # (counted here term by term); the constant 3 was once multiplied in twice (18q, 9q).
+    def coefficient(power: int, lower: int | None) -> int:
+        return sum(3 * n * n for n in range(-10 if lower is None else lower, 11) if n * n == power)
+
+    assert [coefficient(1, None), coefficient(4, None), coefficient(1, 1), coefficient(4, 1)] == [6, 24, 3, 12]
+    report = check_text(
+        "%@claim\n\\[ \\sum_{n\\in\\mathbb Z} 3n^2 q^{n^2} = 6q + 24q^4 + O(q^5) \\]\n"
+        "%@claim\n\\[ \\sum_{n\\ge 1} 3n^2 q^{n^2} = 3q + 12q^4 + O(q^5) \\]\n"
+        "%@claim\n\\[ \\sum_{n\\in\\mathbb Z} (2n)(2n-1) q^{n^2-3n} = \\sum_{n\\in\\mathbb Z} (2n+4)(2n+3) q^{n^2+n-2} \\]\n"
+    )
+    assert [c.verdict for c in report.claims] == ["proved", "proved", "unproven"]
