@@ -392,3 +392,20 @@ def test_constant_factor_of_a_non_unary_weight_counts_once() -> None:
         "%@claim\n\\[ \\sum_{n\\in\\mathbb Z} (2n)(2n-1) q^{n^2-3n} = \\sum_{n\\in\\mathbb Z} (2n+4)(2n+3) q^{n^2+n-2} \\]\n"
     )
     assert [c.verdict for c in report.claims] == ["proved", "proved", "unproven"]
+
+
+def test_congruence_with_a_side_shifted_by_a_power_of_q_is_decided_directly() -> None:
+    # q^{-600} Delta(700 tau) = q^100 + ... (Delta = q prod (1 - q^n)^24), so the sides differ by 1 at
+    # q^100; this once crashed (a shifted side has no modular meaning) and now is refuted directly.
+    n_max = 100
+    delta = [0] * (n_max + 1)
+    delta[1] = 1
+    for k in range(1, n_max + 1):
+        for _ in range(24):
+            for i in range(n_max, k - 1, -1):
+                delta[i] -= delta[i - k]
+    (claim,) = check_text("%@claim\n\\[ \\Delta \\equiv \\Delta + q^{-600}\\Delta(700\\tau) \\pmod{7} \\]\n").claims
+    assert claim.verdict == "refuted"
+    witness = claim.outcome.first_difference
+    assert witness is not None and witness["n"] == 100
+    assert (int(witness["left"]), int(witness["right"])) == (delta[100], delta[100] + 1)

@@ -78,15 +78,18 @@ def prove_modulo(
 
     def attempt(left: ir.Side, right: ir.Side, modulus: int) -> tuple[Any, list[Piece], int] | Outcome:
         level = claim_level(left, right)
-        poles = _poles(left, right, level)
 
         def chars(atom: ir.Atom) -> int:
             from verifier.forms import registry
 
             return int(registry.character(atom.key, int(atom.scale), atom.params, level).kernel)
 
-        keys_probe_l, den_l = graded_fraction(left.expr, 1, prover.table, chars)
-        keys_probe_r, den_r = graded_fraction(right.expr, 1, prover.table, chars)
+        try:
+            poles = _poles(left, right, level)
+            keys_probe_l, den_l = graded_fraction(left.expr, 1, prover.table, chars)
+            keys_probe_r, den_r = graded_fraction(right.expr, 1, prover.table, chars)
+        except TypeError as exc:  # a side shifted by a power of q is no modular form
+            return Outcome("unproven", kind, f"no proof applies: {exc}", method="computation")
         # Only a constant denominator is divided out exactly: N/D = R (mod M) is not N = R (mod M)
         # for a form D that is 1 only through the first terms, such as E_4(70 tau).
         c_l, c_r = _constant_denominator(left.expr, den_l), _constant_denominator(right.expr, den_r)
