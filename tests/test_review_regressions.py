@@ -375,7 +375,8 @@ def test_bracketed_fraction_of_a_linear_argument_is_not_guessed() -> None:
     assert (bracket.verdict, bracket.outcome.code) == ("error", "ambiguous-notation")
     (chi,) = check_text(f"%@claim\n\\[ {sides}\\chi_{{5}}(n-5) q^{{(n-5)^2}} \\]\n").claims
     assert chi.verdict == "proved"
-    (symbol,) = check_text("%@claim\n\\[ \\sum_{n\\in\\mathbb Z} \\left(\\frac{12}{6n+1}\\right) q^{n^2} = 0 \\]\n").claims
+    symbol_text = "\\sum_{n\\in\\mathbb Z} \\left(\\frac{12}{6n+1}\\right) q^{n^2} = 0"
+    (symbol,) = check_text(f"%@claim\n\\[ {symbol_text} \\]\n").claims
     assert (symbol.verdict, symbol.outcome.code) == ("error", "ambiguous-notation")
 
 
@@ -389,7 +390,8 @@ def test_constant_factor_of_a_non_unary_weight_counts_once() -> None:
     report = check_text(
         "%@claim\n\\[ \\sum_{n\\in\\mathbb Z} 3n^2 q^{n^2} = 6q + 24q^4 + O(q^5) \\]\n"
         "%@claim\n\\[ \\sum_{n\\ge 1} 3n^2 q^{n^2} = 3q + 12q^4 + O(q^5) \\]\n"
-        "%@claim\n\\[ \\sum_{n\\in\\mathbb Z} (2n)(2n-1) q^{n^2-3n} = \\sum_{n\\in\\mathbb Z} (2n+4)(2n+3) q^{n^2+n-2} \\]\n"
+        "%@claim\n\\[ \\sum_{n\\in\\mathbb Z} (2n)(2n-1) q^{n^2-3n} = "
+        "\\sum_{n\\in\\mathbb Z} (2n+4)(2n+3) q^{n^2+n-2} \\]\n"
     )
     assert [c.verdict for c in report.claims] == ["proved", "proved", "unproven"]
 
