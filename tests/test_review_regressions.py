@@ -319,3 +319,95 @@ def test_overpartitions_are_even_by_frobenius() -> None:
     assert [c.verdict for c in report.claims] == ["proved", "refuted"]
     witness = report.claims[1].outcome.first_difference
     assert witness is not None and witness["n"] == 1
+
+
+def _sigma3(n: int) -> int:
+    return sum(d**3 for d in range(1, n + 1) if n % d == 0)
+
+
+def test_congruence_with_a_form_in_a_denominator_is_not_proved_from_numerators() -> None:
+    # Delta / E_4(70 tau) and Delta agree modulo 7 below q^71 but not at q^71, where the quotient
+    # adds -240 tau(1) = -240 (E_4 = 1 + 240 sum sigma_3(n) q^n, Serre, A Course in Arithmetic,
+    # Ch. VII §4; Delta = q prod (1 - q^n)^24).  Counted here with plain integers.
+    n_max = 72
+    delta = [0] * (n_max + 1)
+    delta[1] = 1
+    for k in range(1, n_max + 1):
+        for _ in range(24):
+            for i in range(n_max, k - 1, -1):
+                delta[i] -= delta[i - k]
+    e4 = [1] + [0] * n_max
+    for m in range(1, n_max // 70 + 1):
+        e4[70 * m] = 240 * _sigma3(m)
+    quotient = [0] * (n_max + 1)  # delta / e4(70 tau), e4 has constant term 1
+    for i in range(n_max + 1):
+        quotient[i] = delta[i] - sum(e4[j] * quotient[i - j] for j in range(1, i + 1))
+    assert all((quotient[i] - delta[i]) % 7 == 0 for i in range(71))
+    assert (quotient[71] - delta[71]) % 7 != 0
+    (claim,) = check_text("%@claim\n\\[ \\frac{\\Delta}{E_4(70\\tau)} \\equiv \\Delta \\pmod{7} \\]\n").claims
+    assert claim.verdict == "refuted"
+    witness = claim.outcome.first_difference
+    assert witness is not None and witness["n"] == 71
+
+
+def test_congruence_with_a_constant_denominator_divides_by_it() -> None:
+    # 3/2 = 6 (mod 9) since 2 * 6 = 12 = 3 (mod 9); so 3 Delta(70 tau)/2 = 6 Delta(70 tau) holds
+    # modulo 9 and 3 Delta(70 tau)/2 = 3 Delta(70 tau) does not (at q^70, tau(1) = 1).  Elementary.
+    assert (2 * 6 - 3) % 9 == 0 and (2 * 3 - 3) % 9 != 0
+    good, bad = check_text(
+        "%@claim\n\\[ \\frac{3\\Delta(70\\tau)}{2} \\equiv 6\\Delta(70\\tau) \\pmod{9} \\]\n"
+        "%@claim\n\\[ \\frac{3\\Delta(70\\tau)}{2} \\equiv 3\\Delta(70\\tau) \\pmod{9} \\]\n"
+    ).claims
+    assert good.verdict == "proved"
+    assert bad.verdict == "refuted"
+
+
+def test_bracketed_fraction_of_a_linear_argument_is_not_guessed() -> None:
+    # Read as the Jacobi symbol ((n-5)/5), the right side is the left reindexed (n -> n - 5), so the
+    # claim is true; read as the fraction (n-5)/5 it would be refuted.  Such a bracket is refused
+    # (docs/method.md#characters); with chi_5(n - 5) the claim is read as the symbol and proved.
+    # The symbol's values by sympy's jacobi_symbol: periodic modulo 5, as the reindexing needs.
+    from sympy import jacobi_symbol
+
+    assert all(jacobi_symbol((n - 5) % 5, 5) == jacobi_symbol(n % 5, 5) for n in range(-20, 20))
+    sides = "\\sum_{n\\in\\mathbb Z} \\left(\\frac{n}{5}\\right) q^{n^2} = \\sum_{n\\in\\mathbb Z} "
+    (bracket,) = check_text(f"%@claim\n\\[ {sides}\\left(\\frac{{n-5}}{{5}}\\right) q^{{(n-5)^2}} \\]\n").claims
+    assert (bracket.verdict, bracket.outcome.code) == ("error", "ambiguous-notation")
+    (chi,) = check_text(f"%@claim\n\\[ {sides}\\chi_{{5}}(n-5) q^{{(n-5)^2}} \\]\n").claims
+    assert chi.verdict == "proved"
+    symbol_text = "\\sum_{n\\in\\mathbb Z} \\left(\\frac{12}{6n+1}\\right) q^{n^2} = 0"
+    (symbol,) = check_text(f"%@claim\n\\[ {symbol_text} \\]\n").claims
+    assert (symbol.verdict, symbol.outcome.code) == ("error", "ambiguous-notation")
+
+
+def test_constant_factor_of_a_non_unary_weight_counts_once() -> None:
+    # sum_{n in Z} 3n^2 q^{n^2} = 6q + 24q^4 + ... and sum_{n >= 1} 3n^2 q^{n^2} = 3q + 12q^4 + ...
+    # (counted here term by term); the constant 3 was once multiplied in twice (18q, 9q).
+    def coefficient(power: int, lower: int | None) -> int:
+        return sum(3 * n * n for n in range(-10 if lower is None else lower, 11) if n * n == power)
+
+    assert [coefficient(1, None), coefficient(4, None), coefficient(1, 1), coefficient(4, 1)] == [6, 24, 3, 12]
+    report = check_text(
+        "%@claim\n\\[ \\sum_{n\\in\\mathbb Z} 3n^2 q^{n^2} = 6q + 24q^4 + O(q^5) \\]\n"
+        "%@claim\n\\[ \\sum_{n\\ge 1} 3n^2 q^{n^2} = 3q + 12q^4 + O(q^5) \\]\n"
+        "%@claim\n\\[ \\sum_{n\\in\\mathbb Z} (2n)(2n-1) q^{n^2-3n} = "
+        "\\sum_{n\\in\\mathbb Z} (2n+4)(2n+3) q^{n^2+n-2} \\]\n"
+    )
+    assert [c.verdict for c in report.claims] == ["proved", "proved", "unproven"]
+
+
+def test_congruence_with_a_side_shifted_by_a_power_of_q_is_decided_directly() -> None:
+    # q^{-600} Delta(700 tau) = q^100 + ... (Delta = q prod (1 - q^n)^24), so the sides differ by 1 at
+    # q^100; this once crashed (a shifted side has no modular meaning) and now is refuted directly.
+    n_max = 100
+    delta = [0] * (n_max + 1)
+    delta[1] = 1
+    for k in range(1, n_max + 1):
+        for _ in range(24):
+            for i in range(n_max, k - 1, -1):
+                delta[i] -= delta[i - k]
+    (claim,) = check_text("%@claim\n\\[ \\Delta \\equiv \\Delta + q^{-600}\\Delta(700\\tau) \\pmod{7} \\]\n").claims
+    assert claim.verdict == "refuted"
+    witness = claim.outcome.first_difference
+    assert witness is not None and witness["n"] == 100
+    assert (int(witness["left"]), int(witness["right"])) == (delta[100], delta[100] + 1)

@@ -78,16 +78,22 @@ def prove_modulo(
 
     def attempt(left: ir.Side, right: ir.Side, modulus: int) -> tuple[Any, list[Piece], int] | Outcome:
         level = claim_level(left, right)
-        poles = _poles(left, right, level)
 
         def chars(atom: ir.Atom) -> int:
             from verifier.forms import registry
 
             return int(registry.character(atom.key, int(atom.scale), atom.params, level).kernel)
 
-        keys_probe_l, den_l = graded_fraction(left.expr, 1, prover.table, chars)
-        keys_probe_r, den_r = graded_fraction(right.expr, 1, prover.table, chars)
-        if len(den_l) != 1 or len(den_r) != 1:
+        try:
+            poles = _poles(left, right, level)
+            keys_probe_l, den_l = graded_fraction(left.expr, 1, prover.table, chars)
+            keys_probe_r, den_r = graded_fraction(right.expr, 1, prover.table, chars)
+        except TypeError as exc:  # a side shifted by a power of q is no modular form
+            return Outcome("unproven", kind, f"no proof applies: {exc}", method="computation")
+        # Only a constant denominator is divided out exactly: N/D = R (mod M) is not N = R (mod M)
+        # for a form D that is 1 only through the first terms, such as E_4(70 tau).
+        c_l, c_r = _constant_denominator(left.expr, den_l), _constant_denominator(right.expr, den_r)
+        if c_l is None or c_r is None:
             return Outcome("unproven", kind, "congruences between quotients are not proved", method="computation")
         weights = [(w, j) for (w, j, _) in {**keys_probe_l, **keys_probe_r}]
         sieve: Restriction | None = None
@@ -108,6 +114,8 @@ def prove_modulo(
         for _attempt in range(2):
             nl, _ = graded_fraction(left.expr, prec, prover.table, chars)
             nr, _ = graded_fraction(right.expr, prec, prover.table, chars)
+            nl = {key: s.scale(1 / c_l) for key, s in nl.items()}
+            nr = {key: s.scale(1 / c_r) for key, s in nr.items()}
             diff = graded_add(nl, nr, -1)
             pieces = [Piece(w, j, k, s if sieve is None else sieve.restrict(s)) for (w, j, k), s in diff.items()]
             decision = decide_congruence(pieces, modulus, proof_level)
@@ -188,6 +196,35 @@ def _restriction(
             "a quasimodular E_2 piece: twists of quasimodular forms are not covered (docs/method.md#classes-of-n)"
         )
     return restriction(level, n_class.modulus, n_class.residues)
+
+
+def _denominator_free(expr: ir.Expr) -> bool:
+    """Whether ``expr`` divides by nothing but nonzero constants (eta quotients are atoms, not quotients)."""
+    if isinstance(expr, ir.Quotient):
+        assert expr.left is not None
+        return isinstance(expr.right, ir.Const) and expr.right.value != 0 and _denominator_free(expr.left)
+    if isinstance(expr, ir.Power):
+        assert expr.base is not None
+        if expr.exponent < 0:
+            return isinstance(expr.base, ir.Const) and expr.base.value != 0
+        return _denominator_free(expr.base)
+    if isinstance(expr, ir.Sum | ir.Product):
+        assert expr.left is not None and expr.right is not None
+        return _denominator_free(expr.left) and _denominator_free(expr.right)
+    if isinstance(expr, ir.Deriv | ir.Hecke | ir.Shift):
+        assert expr.base is not None
+        return _denominator_free(expr.base)
+    return isinstance(expr, ir.Const | ir.Atom | ir.QPower)
+
+
+def _constant_denominator(expr: ir.Expr, den: Any) -> Fraction | None:
+    """The denominator of a side as an exact nonzero constant, or None when the side divides by a form."""
+    if not _denominator_free(expr) or len(den) != 1:
+        return None
+    ((key, s),) = den.items()
+    if key[:2] != (Fraction(0), 0) or s.offset != 0 or s.poly.degree() != 0 or s.poly[0] == 0:
+        return None
+    return Fraction(int(s.poly[0].p), int(s.poly[0].q))
 
 
 def _poles(left: ir.Side, right: ir.Side, level: int) -> str:

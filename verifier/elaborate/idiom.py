@@ -651,8 +651,10 @@ class SumReader:
                 if unary is not None:
                     out = shifted(unary, gamma, src)
         else:
-            unary = self._unary(node, alpha, beta, lower, [w for w in weights if mentions(w, node.var)], src)
-            out = unary if unary is not None else self._theta_like(node, alpha, beta, gamma, lower, weights, src)
+            # Constant factors are multiplied in below (``factor``), so the weight is the rest.
+            varying = [w for w in weights if mentions(w, node.var)]
+            unary = self._unary(node, alpha, beta, lower, varying, src)
+            out = unary if unary is not None else self._theta_like(node, alpha, beta, gamma, lower, varying, src)
             if unary is not None:
                 out = shifted(out, gamma, src)
         return out if factor is None else self.elaborator.mul(factor, out, src, node)

@@ -947,6 +947,11 @@ _RANGE_PARTS = re.compile(r"([a-z])\s*(?:\\geq?|>=|\\geqslant)\s*(-?\d+)\s*\)$")
 _PAREN_FRAC = re.compile(r"^\(\s*\\[dt]?frac\s*\{\s*([^{}]*?)\s*\}\s*\{\s*([^{}]*?)\s*\}\s*\)$")
 _SYMBOL_INT = re.compile(r"^[+-]?\s*\d{1,6}$")
 _SYMBOL_VAR = re.compile(r"^[a-z](?:_(?:\{\s*\w+\s*\}|\w))?$")
+_SYMBOL_LINEAR = re.compile(r"^[+-]?(?:\d*[a-z]|\d+)(?:[+-](?:\d*[a-z]|\d+))*$")
+
+
+def _grouped(text: str) -> str:
+    return f"({text})" if any(c in text for c in "+-") and not _SYMBOL_INT.match(text) else text
 
 
 def _kronecker_symbol(text: str, span: ast.Span, offset: int) -> ast.Node | None:
@@ -965,16 +970,25 @@ def _kronecker_symbol(text: str, span: ast.Span, offset: int) -> ast.Node | None
     top, bottom = m.group(1).replace(" ", ""), m.group(2).replace(" ", "")
     top_int, bottom_int = _SYMBOL_INT.match(top), _SYMBOL_INT.match(bottom)
     top_var, bottom_var = _SYMBOL_VAR.match(top), _SYMBOL_VAR.match(bottom)
-    if not ((top_int or top_var) and (bottom_int or bottom_var)) or (top_int and bottom_int):
-        return None
     from verifier.numbers import is_fundamental_discriminant, squarefree_kernel
 
     ambiguous = _BadNumber(
-        f"({top}/{bottom}) in brackets: a Kronecker symbol or a fraction?",
+        f"({_grouped(top)}/{_grouped(bottom)}) in brackets: a Kronecker symbol or a fraction?",
         offset,
         "ambiguous-notation",
         "write \\chi_{D}(n) for the Kronecker symbol (D/n), or the fraction without brackets",
     )
+    # (12/(6n+1)) and ((n-3)/15) are symbols as often as fractions: refused, not read as fractions.
+    linear_bottom = not bottom_var and _SYMBOL_LINEAR.match(bottom) and any(c.isalpha() for c in bottom)
+    linear_top = not top_var and _SYMBOL_LINEAR.match(top) and any(c.isalpha() for c in top)
+    if top_int and linear_bottom and int(top) != 1 and is_fundamental_discriminant(int(top)):
+        raise ambiguous
+    if bottom_int and linear_top:
+        m_int = int(bottom)
+        if m_int > 1 and m_int % 2 and squarefree_kernel(m_int) == m_int:
+            raise ambiguous
+    if not ((top_int or top_var) and (bottom_int or bottom_var)) or (top_int and bottom_int):
+        return None
     arg_text = bottom if top_int else top
     if top_int and bottom_var:
         d = int(top)
