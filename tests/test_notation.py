@@ -323,3 +323,19 @@ def test_theta_as_a_sum_of_exponentials(summand: str, style: Any, md: bool) -> N
     assert (square[1], THETA[1]) == (4, 2)
     wrong = one(f"\\theta(\\tau)^2 = \\sum_{{n\\in\\mathbb Z}} {summand}", style, md, definition)
     assert wrong["verdict"] == "refuted" and wrong["first_difference"]["n"] == 1
+
+
+def test_sums_over_n_greater_than_a_and_over_the_natural_numbers() -> None:
+    # E_4 = 1 + 240 sum_{n>0} sigma_3(n) q^n (Serre, A Course in Arithmetic, Ch. VII, §4.2): "n > 0" is
+    # n >= 1. Whether the natural numbers contain 0 differs between authors, so \mathbb N is refused.
+    from verifier import check_text
+
+    report = check_text(
+        "%@claim\n\\[ E_4 = 1 + 240\\sum_{n>0}\\sigma_3(n)q^n \\]\n"
+        "%@claim\n\\[ E_4 = 1 + 24\\sum_{n>0}\\sigma_3(n)q^n \\]\n"
+        "%@claim\n\\[ E_4 = 1 + 240\\sum_{n\\in\\mathbb N}\\sigma_3(n)q^n \\]\n"
+    )
+    got = [(c.verdict, c.outcome.code) for c in report.claims]
+    assert got == [("proved", None), ("refuted", None), ("error", "ambiguous-notation")]
+    witness = report.claims[1].outcome.first_difference
+    assert witness is not None and (witness["n"], witness["left"], witness["right"]) == (1, "240", "24")

@@ -699,6 +699,24 @@ class _ToAst:
     def index_at_least(self, meta: Any, items: list[Any]) -> tuple[str, str, ast.Node]:
         return "at_least", str(items[0]), items[-1]
 
+    def index_above(self, meta: Any, items: list[Any]) -> tuple[str, str, ast.Node]:
+        """``n > a`` with an integer a is ``n >= a + 1``."""
+        bound = items[-1]
+        if not isinstance(bound, ast.Number):
+            raise _BadNumber(
+                "a sum over n > a needs an integer a", meta.start_pos, "unsupported-notation", "write \\sum_{n \\ge 1}"
+            )
+        return "at_least", str(items[0]), ast.Number(bound.span, bound.value + 1)
+
+    def index_naturals(self, meta: Any, items: list[Any]) -> tuple[str, str, ast.Node]:
+        var = str(items[0])
+        raise _BadNumber(
+            "a sum over the natural numbers: whether n = 0 is included differs between authors",
+            meta.start_pos,
+            "ambiguous-notation",
+            f"write \\sum_{{{var} \\ge 1}} or \\sum_{{{var} \\ge 0}}",
+        )
+
     # -- the q-series idiom (docs/method.md#products, #sums-over-z) -----------------
     def big_prod(self, meta: Any, items: list[Any]) -> ast.BigProd:
         index, upper = items[0]
