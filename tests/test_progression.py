@@ -773,3 +773,19 @@ def test_a_unit_is_sought_only_for_a_prime_power() -> None:
     assert c["verdict"] == "unproven" and c["terms_compared"] > 1000
     two = one("a_L(6n+1) \\equiv 0 \\pmod{2}", "%@define L = \\frac{1}{f_1^6}\n")
     assert two["verdict"] == "proved" and two["progression"]["unit"] is not None
+
+
+def test_progressions_written_with_a_negative_residue() -> None:
+    # p(5n - 1) = p(5(n-1) + 4) = 0 mod 5 for n >= 1 is Ramanujan's congruence (Hardy, Ramanujan,
+    # Ch. VI); p(5n - 2) at n = 1 is p(3) = 3 (Andrews, Table 14.1), not 0 mod 5.
+    from verifier import check_text
+
+    report = check_text(
+        "%@claim\n\\[ p(5n-1) \\equiv 0 \\pmod 5 \\quad (n \\ge 1) \\]\n"
+        "%@claim\n\\[ p(5n-1) \\equiv 0 \\pmod 5 \\]\n"
+        "%@claim\n\\[ p(5n-2) \\equiv 0 \\pmod 5 \\quad (n \\ge 1) \\]\n"
+    )
+    assert [c.verdict for c in report.claims] == ["proved", "proved", "refuted"]
+    assert all("for all n >= 1" in c.outcome.message for c in report.claims[:2])
+    witness = report.claims[2].outcome.first_difference
+    assert witness is not None and witness["n"] == 1

@@ -688,7 +688,7 @@ def _proved(claim: Claim, p: Plan, count: int, t_proof: int) -> Outcome:
     target = f"M_{p.weight}(Gamma0({p.target_level}), {p.character.name})"
     if claim.modulus is not None and claim.rhs is not None:
         msg = (
-            f"for all n >= 0, sum {claim.what} q^n = the claimed side modulo {claim.modulus}: with "
+            f"for all n >= {claim.start}, sum {claim.what} q^n = the claimed side modulo {claim.modulus}: with "
             f"E = {p.multiplier.label()}, h = {p.h.label()} is in M_{p.weight}(Gamma0({p.level}), {p.character.name}); "
             f"U_{m} h and E times the claimed side are in {target} and agree modulo {claim.modulus} "
             f"for q^0..q^{p.bound} (Sturm bound)"
@@ -702,14 +702,14 @@ def _proved(claim: Claim, p: Plan, count: int, t_proof: int) -> Outcome:
             else ""
         )
         msg = (
-            f"for all n >= 0, {claim.what} = 0 modulo {claim.modulus}{stronger}: "
+            f"for all n >= {claim.start}, {claim.what} = 0 modulo {claim.modulus}{stronger}: "
             f"with E = {p.multiplier.label()}{unit}, "
             f"h = {p.h.label()} is in M_{p.weight}(Gamma0({p.level}), {p.character.name}); U_{m} h is in {target}, "
             f"and its coefficients of q^0..q^{p.bound} ({bound_kind}) are 0 modulo {claim.modulus}"
         )
     else:
         msg = (
-            f"for all n >= 0: with E = {p.multiplier.label()}, h = {p.h.label()} is in "
+            f"for all n >= {claim.start}: with E = {p.multiplier.label()}, h = {p.h.label()} is in "
             f"M_{p.weight}(Gamma0({p.level}), {p.character.name}); U_{m} h and E times the claimed side are in "
             f"{target} and agree for q^0..q^{p.bound} ({bound_kind})"
         )

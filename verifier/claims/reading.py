@@ -70,17 +70,23 @@ def _term(
     products: Mapping[str, ProductSum],
     forms: Mapping[str, Any],
     fixed: Mapping[str, int] | None = None,
+    start: int | None = 0,
 ) -> tuple[Mono, int, int, str] | None:
-    """``a(m var + t)``: (generating function, m, t, spelling) when a is a partition function."""
+    """``a(m var + t)``: (generating function, m, t, spelling) when a is a partition function.
+
+    t may be negative when the claim starts at ``var >= start`` with m start + t >= 0
+    (``p(5n-1)`` for n >= 1); ``start=None`` (no range written) accepts any t, and the caller
+    starts the claim at the first n with m n + t >= 0.
+    """
     if not isinstance(node, ast.Call):
         return None
     gen = partition_function(node.name, products, forms)
     lin = _linear(node.argument, var, fixed)
-    if gen is None or lin is None or lin[0] < 1 or lin[1] < 0:
+    if gen is None or lin is None or lin[0] < 1 or (start is not None and lin[0] * max(start, 0) + lin[1] < 0):
         return None
     name = "\\overline{p}" if node.name == "\\pbar" else node.name
     m, t = lin
-    inside = (f"{m}{var}" if m > 1 else var) + (f"+{t}" if t else "")
+    inside = (f"{m}{var}" if m > 1 else var) + (f"+{t}" if t > 0 else (f"{t}" if t else ""))
     return gen, m, t, f"{name}({inside})"
 
 
@@ -146,11 +152,12 @@ def read(
             claims = []
             for value in residues[1] if residues else (None,):
                 fixed = {residues[0]: value} if residues and value is not None else None
-                term = _term(a, var, products, forms, fixed)
+                term = _term(a, var, products, forms, fixed, start_n)
                 if term is None or not _usable(term[0]):
                     return None
                 gen, m, t, what = term
-                start = start_n or 0
+                # With no range written, the claim starts where the argument m n + t is >= 0.
+                start = start_n if start_n is not None else max(0, -(t // m))
                 if start < 0 or (m == 1 and start > 0 and residues is None):
                     # a(n) = 0 mod M for n >= s > 0 is no progression: the congruence of the
                     # generating function (constant terms removed) decides it.
