@@ -411,3 +411,36 @@ def test_congruence_with_a_side_shifted_by_a_power_of_q_is_decided_directly() ->
     witness = claim.outcome.first_difference
     assert witness is not None and witness["n"] == 100
     assert (int(witness["left"]), int(witness["right"])) == (delta[100], delta[100] + 1)
+
+
+def test_class_congruence_false_only_beyond_the_direct_range_is_not_proved() -> None:
+    """A perturbation 1024 sigma_11(n/409) of tau = sigma_11 (mod 2^11) on n = 1 mod 8 first matters at n = 409,
+    which lies in the class and past the direct comparison; brute force (plain ints, sympy's divisor_sigma)
+    confirms that n = 409 is a witness, so the claim must not be proved (soundness review of classes of n)."""
+    from sympy import divisor_sigma
+
+    n = 409
+    assert n % 8 == 1
+    difference = int(divisor_sigma(n, 11)) + 1024 * int(divisor_sigma(1, 11)) - int(divisor_sigma(n, 11))
+    assert difference % 2**11 != 0  # the right side moves by 1024 at n = 409; the left side does not
+    doc = (
+        "%@claim\n\\[ \\tau(n) \\equiv \\sigma_{11}(n) + 1024\\sigma_{11}(n/409) \\pmod{2^{11}} "
+        "\\quad (n \\equiv 1 \\pmod 8) \\]\n"
+    )
+    ((verdict, _),) = verdicts(doc)
+    assert verdict != "proved"
+
+
+def test_class_congruence_true_through_a_hidden_parity_is_not_refuted() -> None:
+    """On n = 17 mod 24, 5 sigma_3(n/409) is 0 mod 10 for every n: n/409 = k is then 17 mod 24, never a square,
+    so sigma_3(k) is even (its divisors pair up d, k/d, both odd).  Checked by brute force for the k that
+    occur below 24 * 200; the claim must not be refuted (soundness review of classes of n)."""
+    from sympy import divisor_sigma
+
+    assert all(5 * int(divisor_sigma(k, 3)) % 10 == 0 for k in range(17, 24 * 200, 24))
+    doc = (
+        "%@claim\n\\[ \\sigma_{3}(n) \\equiv \\sigma_{3}(n) + 5\\sigma_3(n/409) \\pmod{10} "
+        "\\quad (n \\equiv 2 \\pmod 3) \\quad (n \\equiv 1 \\pmod 8) \\]\n"
+    )
+    ((verdict, _),) = verdicts(doc)
+    assert verdict != "refuted"
