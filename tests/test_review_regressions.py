@@ -444,3 +444,14 @@ def test_class_congruence_true_through_a_hidden_parity_is_not_refuted() -> None:
     )
     ((verdict, _),) = verdicts(doc)
     assert verdict != "refuted"
+
+
+def test_a_congruence_proof_respects_the_limit_on_coefficients() -> None:
+    # tau(n) = 0 mod 23 when (n/23) = -1 (Serre, Bourbaki 355, 1969, from memory) is proved on
+    # Gamma_0(23^3) with a Sturm bound of 552 (docs/method.md#classes-of-n); under a limit of 400
+    # coefficients per claim the proof is not attempted, and the claim is unproven, not decided.
+    text = "%@claim\n\\[ \\tau(n) \\equiv 0 \\pmod{23} \\quad \\text{for } \\left(\\frac{n}{23}\\right) = -1 \\]\n"
+    assert check_text(text).claims[0].verdict == "proved"
+    (limited,) = check_text(text, max_terms=400).claims
+    assert limited.verdict == "unproven"
+    assert "--max-terms" in limited.outcome.message

@@ -111,6 +111,16 @@ def prove_modulo(
         # The level of the proof: the restricted difference lies on Gamma_0(N m^2) (docs/method.md#classes-of-n).
         proof_level = level if sieve is None else sieve.level
         prec = max(needed_precision(weights, modulus, proof_level), 2)
+        if prec > prover.max_terms:
+            # The proof would need more coefficients than one claim may compute (--max-terms).
+            return Outcome(
+                "unproven",
+                kind,
+                f"the sides agree modulo {claim.modulus} for {claim.span(claim.start + CHECK)}, but the proof on "
+                f"Gamma_0({proof_level}) needs {prec} coefficients, more than the limit of {prover.max_terms} "
+                "(--max-terms)",
+                method="computation",
+            )
         for _attempt in range(2):
             nl, _ = graded_fraction(left.expr, prec, prover.table, chars)
             nr, _ = graded_fraction(right.expr, prec, prover.table, chars)
