@@ -230,3 +230,22 @@ def test_forms_on_a_class_are_compared_by_coefficients() -> None:
     assert claim["kind"] == "arithmetic"
     assert claim["verdict"] == "refuted", claim["message"]
     assert claim["first_difference"]["n"] == 1
+
+
+def test_a_symbol_equal_to_zero_is_the_class_of_multiples() -> None:
+    # (n/23) = 0 means 23 | n (the Jacobi symbol). tau(23) = 18643272 = 1 mod 23 (tau from the product
+    # q prod (1-q^n)^24, computed here), so "tau(n) = 0 mod 23 when (n/23) = 0" fails at n = 23 — in the
+    # class, not at n = 1 as when the qualifier was read as a separate claim.
+    from verifier import check_text
+
+    n_max = 23
+    series = [1] + [0] * n_max
+    for k in range(1, n_max + 1):
+        for _ in range(24):
+            for i in range(n_max, k - 1, -1):
+                series[i] -= series[i - k]
+    assert series[22] == 18643272 and 18643272 % 23 == 1  # tau(23)
+    text = "%@claim\n\\[ \\tau(n) \\equiv 0 \\pmod{23} \\quad \\text{for } \\left(\\frac{n}{23}\\right) = 0 \\]\n"
+    (claim,) = check_text(text).claims
+    assert claim.verdict == "refuted"
+    assert claim.outcome.first_difference is not None and claim.outcome.first_difference["n"] == 23

@@ -900,7 +900,7 @@ _CLASS_PARITY = re.compile(r"(odd|even)")
 _CLASS_RESIDUES = re.compile(r"([a-z])\s*\\equiv\s*(-?\d+(?:\s*,\s*-?\d+)*)")
 _CLASS_GCD = re.compile(r"\(\s*(?:([a-z])\s*,\s*(\d+)|(\d+)\s*,\s*([a-z]))\s*\)\s*=")
 _CLASS_NMID = re.compile(r"(\d+)\s*\\n?o?t?\s*\\?(?:nmid|mid|\|)?\s*([a-z])\s*\)?\s*$")
-_CLASS_SYMBOL = re.compile(r"\{\s*([a-z])\s*\}\s*\{\s*(\d+)\s*\}\s*\)\s*=\s*([-+]?)\s*1")
+_CLASS_SYMBOL = re.compile(r"\{\s*([a-z])\s*\}\s*\{\s*(\d+)\s*\}\s*\)\s*=\s*([-+]?\s*1|0)")
 MAX_CLASS_MODULUS = 10_000  # a class of n mod m is decided by its residues: m stays small
 
 
@@ -922,7 +922,8 @@ def _class_of(text: str, offset: int) -> ast.NClass:
     if "frac" in text:
         found = _CLASS_SYMBOL.search(text)
         assert found is not None
-        var, m, sign = found.group(1), modulus(found.group(2)), -1 if found.group(3) == "-" else 1
+        value = found.group(3).replace(" ", "")
+        var, m, sign = found.group(1), modulus(found.group(2)), -1 if value == "-1" else (0 if value == "0" else 1)
         if m % 2 == 0:
             raise _BadNumber(
                 f"the symbol (n/{m}) is read for odd {m} only (the Jacobi symbol)",
