@@ -341,6 +341,8 @@ def refuted(kind: str, claim: ArithmeticClaim, n: int, a: Fraction, b: Fraction)
         )
     else:
         msg = f"at n = {n}: left {_fmt(a)}, right {_fmt(b)}"
+    if claim.n_class is not None:
+        msg = msg.replace(f"at n = {n}:", f"at n = {n} (in the class {claim.n_class.text}):", 1)
     return Outcome(
         "refuted",
         kind,
