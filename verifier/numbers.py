@@ -210,6 +210,17 @@ def prime_factors(n: int) -> list[int]:
     return sorted(int(p) for p, _ in flint.fmpz(n).factor())
 
 
+def valuation(n: int, p: int) -> int:
+    """The exponent of the prime p in the nonzero integer n."""
+    if n == 0:
+        raise ValueError("the valuation of 0 is infinite")
+    e = 0
+    while n % p == 0:
+        n //= p
+        e += 1
+    return e
+
+
 def divisors(n: int) -> list[int]:
     """The divisors of n, from its factorisation (never a loop up to n)."""
     out = [1]

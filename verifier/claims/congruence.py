@@ -16,6 +16,7 @@ import math
 from fractions import Fraction
 from typing import Any
 
+from verifier import numbers
 from verifier.arith.values import Values
 from verifier.claims.coefficients import (
     CHECK,
@@ -256,14 +257,6 @@ def _on(claim: ArithmeticClaim) -> str:
     return f" with {claim.n_class.text} (the difference restricted to the class by twists, docs/method.md#classes-of-n)"
 
 
-def _valuation(n: int, p: int) -> int:
-    e = 0
-    while n % p == 0:
-        n //= p
-        e += 1
-    return e
-
-
 def _frobenius(decision: Any, sides: tuple[ir.Side, ir.Side], attempt: Any, modulus: int) -> Any:
     """Retry each unproved prime power p^e with the eta quotients of both sides lifted by Frobenius
     (docs/method.md#congruence-frobenius): the lifted sides are congruent to the author's modulo p^e
@@ -276,7 +269,12 @@ def _frobenius(decision: Any, sides: tuple[ir.Side, ir.Side], attempt: Any, modu
     # A decision that stopped before looking at any prime power (say, at a piece of half-integral
     # weight) has no details: every prime power of the modulus is then still to be proved.
     details = list(decision.details) or [
-        {"prime": p, "exponent": _valuation(modulus, p), "modulus": p ** _valuation(modulus, p), "proved": False}
+        {
+            "prime": p,
+            "exponent": numbers.valuation(modulus, p),
+            "modulus": p ** numbers.valuation(modulus, p),
+            "proved": False,
+        }
         | {"reason": decision.reason}
         for p in prime_factors(modulus)
     ]

@@ -27,6 +27,7 @@ from typing import Any
 
 from flint import fmpz_poly
 
+from verifier import numbers
 from verifier.forms.delta import euler_product
 from verifier.numbers import QuadraticCharacter, prime_factors
 from verifier.series.qseries import QSeries
@@ -287,7 +288,7 @@ class EtaQuotient:
         for d, r in self.exponents:
             if r % 2:
                 for p in prime_factors(d):
-                    e = _valuation(d, p)
+                    e = numbers.valuation(d, p)
                     odd_primes[p] = odd_primes.get(p, 0) + e
         core = math.prod(p for p, e in odd_primes.items() if e % 2)
         sign = -1 if int(k) % 2 else 1
@@ -336,14 +337,6 @@ class EtaQuotient:
 
 def _is_int(x: object) -> bool:
     return isinstance(x, int) and not isinstance(x, bool)
-
-
-def _valuation(n: int, p: int) -> int:
-    e = 0
-    while n % p == 0:
-        n //= p
-        e += 1
-    return e
 
 
 def _divisors(n: int) -> list[int]:
