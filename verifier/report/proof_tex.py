@@ -22,7 +22,7 @@ TEMPLATES = Path(__file__).resolve().parent / "templates"
 
 REFERENCES: dict[str, str] = {
     "sturm": "J.~Sturm, \\emph{On the congruence of modular forms}, in: Number Theory (New York, 1984--1985), "
-    "Lecture Notes in Math.~1240, Springer, 1987, 275--280.",
+    "LNM~1240, Springer, 1987, 275--280.",
     "valence": "R.~A.~Rankin, \\emph{Modular Forms and Functions}, Cambridge University Press, 1977, "
     "Theorem~4.1.4 (the valence formula).",
     "newman": "M.~Newman, \\emph{Construction and application of a class of modular functions~(II)}, "
@@ -31,15 +31,15 @@ REFERENCES: dict[str, str] = {
     "in: A Tribute to Emil Grosswald, Contemp.\\ Math.~143, Amer.\\ Math.\\ Soc., 1993, 415--430.",
     "ligozat": "G.~Ligozat, \\emph{Courbes modulaires de genre~1}, M\\'em.\\ Soc.\\ Math.\\ France~43, 1975.",
     "serre-stark": "J.-P.~Serre and H.~M.~Stark, \\emph{Modular forms of weight~1/2}, in: Modular Functions of "
-    "One Variable~VI, Lecture Notes in Math.~627, Springer, 1977, 27--67.",
+    "One Variable~VI, LNM~627, Springer, 1977, 27--67.",
     "kaneko-zagier": "M.~Kaneko and D.~Zagier, \\emph{A generalized Jacobi theta function and quasimodular "
     'forms}, in: The Moduli Space of Curves, Progr.\\ Math.~129, Birkh\\"auser, 1995, 165--172.',
     "atkin-lehner": "A.~O.~L.~Atkin and J.~Lehner, \\emph{Hecke operators on $\\Gamma_0(m)$}, Math.\\ Ann.~185 "
     "(1970), 134--160.",
     "serre-padic": "J.-P.~Serre, \\emph{Formes modulaires et fonctions z\\^eta $p$-adiques}, in: Modular Functions "
-    "of One Variable~III, Lecture Notes in Math.~350, Springer, 1973, 191--268.",
+    "of One Variable~III, LNM~350, Springer, 1973, 191--268.",
     "swinnerton-dyer": "H.~P.~F.~Swinnerton-Dyer, \\emph{On $\\ell$-adic representations and congruences for "
-    "coefficients of modular forms}, in: Modular Functions of One Variable~III, Lecture Notes in Math.~350, "
+    "coefficients of modular forms}, in: Modular Functions of One Variable~III, LNM~350, "
     "Springer, 1973, 1--55.",
     "diamond-shurman": "F.~Diamond and J.~Shurman, \\emph{A First Course in Modular Forms}, Graduate Texts in "
     "Math.~228, Springer, 2005, Ch.~3.",
