@@ -12,6 +12,7 @@ from __future__ import annotations
 from typing import Any
 
 import pytest
+from tests import brute
 from verifier.api import check_text
 from verifier.parse import ast
 from verifier.parse.grammar import ParseFailure, parse_definitions, parse_row
@@ -19,21 +20,6 @@ from verifier.parse.grammar import ParseFailure, parse_definitions, parse_row
 N = 60  # coefficients of the brute-force series
 
 # -- an independent brute force ---------------------------------------------------------
-
-
-def eta_product(exps: dict[int, int], count: int = N) -> list[int]:
-    """prod_delta prod_{k >= 1} (1 - q^{delta k})^{r_delta} to ``count`` terms."""
-    c = [1] + [0] * (count - 1)
-    for delta, r in exps.items():
-        for j in range(delta, count, delta):
-            for _ in range(abs(r)):
-                if r > 0:
-                    for i in range(count - 1, j - 1, -1):
-                        c[i] -= c[i - j]
-                else:
-                    for i in range(j, count):
-                        c[i] += c[i - j]
-    return c
 
 
 def sigma(k: int, n: int) -> int:
@@ -66,6 +52,12 @@ def one(body: str, style: Any, md: bool, before: str = "") -> dict[str, Any]:
 
 
 # -- residue sets --------------------------------------------------------------------------
+
+
+def eta_product(exps: dict[int, int], count: int = N) -> list[int]:
+    """prod_delta prod_k (1 - q^{delta k})^{r_delta} to ``count`` terms (tests/brute.py)."""
+    return brute.eta_product(exps, count)
+
 
 P = eta_product({1: -1})  # sum p(n) q^n = 1 / prod (1 - q^n) (Euler)
 

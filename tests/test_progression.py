@@ -12,27 +12,12 @@ from fractions import Fraction
 from typing import Any
 
 import pytest
+from tests.brute import eta_product as brute
 from verifier.api import check_text
 from verifier.claims.products import Mono
 from verifier.claims.progression import Claim, decide
 
 # -- an independent brute force ---------------------------------------------------------
-
-
-def brute(exps: dict[int, int], count: int) -> list[int]:
-    """prod_delta prod_k (1 - q^{delta k})^{r_delta} to ``count`` terms, by repeated
-    multiplication and division by (1 - q^j) (school arithmetic on lists)."""
-    c = [1] + [0] * (count - 1)
-    for delta, r in exps.items():
-        for j in range(delta, count, delta):
-            for _ in range(abs(r)):
-                if r > 0:
-                    for i in range(count - 1, j - 1, -1):
-                        c[i] -= c[i - j]
-                else:
-                    for i in range(j, count):
-                        c[i] += c[i - j]
-    return c
 
 
 def brute_sum(terms: list[tuple[int, int, dict[int, int]]], count: int) -> list[int]:

@@ -6,6 +6,7 @@ q^1 from docs/method.md#delta-eta-j); what is tested is that the claim is read a
 
 from __future__ import annotations
 
+from tests.brute import eta_product
 from verifier import check_text
 
 
@@ -214,18 +215,8 @@ def test_kronecker_symbols_written_as_bracketed_fractions() -> None:
 
 
 def _partitions(n_max: int) -> list[int]:
-    """p(0..n_max) by Euler's recurrence with pentagonal numbers (Andrews, The Theory of Partitions, Cor. 1.8)."""
-    p = [1] + [0] * n_max
-    for n in range(1, n_max + 1):
-        k, total = 1, 0
-        while k * (3 * k - 1) // 2 <= n:
-            sign = 1 if k % 2 else -1
-            total += sign * p[n - k * (3 * k - 1) // 2]
-            if k * (3 * k + 1) // 2 <= n:
-                total += sign * p[n - k * (3 * k + 1) // 2]
-            k += 1
-        p[n] = total
-    return p
+    """p(0..n_max) from Euler's product 1/prod(1 - q^n) (Andrews, The Theory of Partitions, Thm 1.1)."""
+    return eta_product({1: -1}, n_max + 1)
 
 
 def test_the_authors_f_k_is_used_by_progression_claims() -> None:

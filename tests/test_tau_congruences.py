@@ -14,19 +14,11 @@ from fractions import Fraction
 
 import pytest
 from sympy import divisor_sigma
+from tests.brute import eta_product as brute_eta_product
+from tests.brute import tau_list
 from verifier.api import check_text
 
 N = 120
-
-
-def tau_list(count: int) -> list[int]:
-    """tau(0..count-1) from q prod (1 - q^n)^24, by naive multiplication."""
-    c = [1] + [0] * (count - 1)
-    for j in range(1, count):
-        for _ in range(24):
-            for i in range(count - 1, j - 1, -1):
-                c[i] -= c[i - j]
-    return [0, *c[: count - 1]]
 
 
 TAU = tau_list(N + 1)
@@ -109,27 +101,12 @@ def test_false_neighbours_are_refuted(a: int, b: int, modulus: int, sign: int) -
     assert (w["n"], int(w["left"]), int(w["right"])) == (n, TAU[n], rhs(a, b, n, sign))
 
 
-def products(deltas: dict[int, int], count: int) -> list[int]:
-    """Coefficients of q^0..q^(count-1) of prod_delta prod_n (1 - q^(delta n))^r, by naive multiplication."""
-    c = [1] + [0] * (count - 1)
-    for d, r in deltas.items():
-        for j in range(d, count, d):
-            for _ in range(abs(r)):
-                if r > 0:
-                    for i in range(count - 1, j - 1, -1):
-                        c[i] -= c[i - j]
-                else:  # divide by (1 - q^j)
-                    for i in range(j, count):
-                        c[i] += c[i - j]
-    return c
-
-
 def eta_product(deltas: dict[int, int], count: int) -> list[int]:
     """Coefficients of q^0..q^(count-1) of prod_delta eta(delta tau)^r (sum delta r divisible by 24)."""
     s = sum(d * r for d, r in deltas.items())
     assert s % 24 == 0
     shift = s // 24
-    return [0] * shift + products(deltas, count)[: count - shift]
+    return [0] * shift + brute_eta_product(deltas, count)[: count - shift]
 
 
 # (prime, the eta quotient F with tau(n) = a_F(n) mod prime, source).  Both rest on
@@ -201,7 +178,7 @@ def test_frobenius_lift_of_exponents() -> None:
     assert lift_eta(((nine, 1),), 3, 1) == ((one, 9),)
     assert lift_eta(((three, 3),), 3, 2) == ((one, 9),)
     for deltas, lifted, m in [({9: 1}, {1: 9}, 3), ({3: 3}, {1: 9}, 9), ({3: -2, 1: 30}, {1: 24}, 3)]:
-        a, b = products(deltas, 60), products(lifted, 60)
+        a, b = brute_eta_product(deltas, 60), brute_eta_product(lifted, 60)
         assert all((x - y) % m == 0 for x, y in zip(a, b, strict=True))
 
 

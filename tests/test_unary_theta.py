@@ -20,6 +20,7 @@ from fractions import Fraction
 
 import mpmath
 import pytest
+from tests.brute import eta_product
 from verifier.forms import registry
 from verifier.forms.unary_theta import KEY, character, level
 from verifier.numbers import QuadraticCharacter, kronecker
@@ -147,18 +148,8 @@ def zsum(w: object, e: object, lower: int | None = None) -> Series:
 
 def prod(exps: dict[int, int], shift: int = 0, factor: int = 1) -> Series:
     """factor * q^shift * prod_d prod_{n>=1} (1 - q^{dn})^{r_d}, multiplied out factor by factor."""
-    a = [Fraction(0)] * N
-    a[0] = Fraction(1)
-    for d, r in exps.items():
-        for m in range(d, N, d):
-            for _ in range(abs(r)):
-                if r > 0:
-                    for i in range(N - 1, m - 1, -1):
-                        a[i] -= a[i - m]
-                else:
-                    for i in range(m, N):
-                        a[i] += a[i - m]
-    return [Fraction(0)] * shift + [factor * x for x in a[: N - shift]]
+    a = eta_product(exps, N)
+    return [Fraction(0)] * shift + [Fraction(factor * x) for x in a[: N - shift]]
 
 
 def add(*parts: Series) -> Series:

@@ -53,6 +53,7 @@ from typing import Any
 import flint
 from flint import fmpz_mod_poly_ctx
 
+from verifier import numbers
 from verifier.forms.eisenstein import eisenstein_constant, eisenstein_series
 from verifier.numbers import QuadraticCharacter
 from verifier.prove.groups import group_name, sturm_bound
@@ -108,15 +109,7 @@ def _factor(m: int) -> list[tuple[int, int]]:
 
 def _valuation(x: Fraction, p: int) -> int:
     """The p-adic valuation of a nonzero rational."""
-    v = 0
-    num, den = x.numerator, x.denominator
-    while num % p == 0:
-        num //= p
-        v += 1
-    while den % p == 0:
-        den //= p
-        v -= 1
-    return v
+    return numbers.valuation(x.numerator, p) - numbers.valuation(x.denominator, p)
 
 
 def _frac_str(x: Fraction) -> str:
