@@ -127,3 +127,16 @@ def test_every_proved_claim_has_a_certificate() -> None:
     assert e8["left"]["expr"] == "(^ (E 4 1) 2)" and e8["right"]["expr"] == "(E 8 1)"
     assert e8["space"] == {"weight": "8", "level": 1, "character": 1, "proof_weight": "8", "cleared_weight": "0"}
     assert e8["coefficients"]["values"] == ["1"]
+
+
+def test_a_proof_on_a_class_of_n_says_so() -> None:
+    # tau(n) = 0 mod 23 when (n/23) = -1 (Serre, Bourbaki 355, 1969, from memory): the paragraph must
+    # not say the congruence holds for every n, only on the class, and cite the twisting it rests on.
+    text = "%@claim\n\\[ \\tau(n) \\equiv 0 \\pmod{23} \\quad \\text{for } \\left(\\frac{n}{23}\\right) = -1 \\]\n"
+    report = check_text(text, "c.tex")
+    assert [c.verdict for c in report.claims] == ["proved"]
+    tex = proof_tex.render(report)
+    assert "holds for every $n \\geq 1$ of that class" in tex
+    assert "holds for every $n$." not in tex
+    assert "twists by the quadratic characters modulo $23$" in tex and "\\bibitem{ono}" in tex
+    assert "Chinese remainder" not in tex  # one prime power

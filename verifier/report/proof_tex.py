@@ -41,6 +41,8 @@ REFERENCES: dict[str, str] = {
     "swinnerton-dyer": "H.~P.~F.~Swinnerton-Dyer, \\emph{On $\\ell$-adic representations and congruences for "
     "coefficients of modular forms}, in: Modular Functions of One Variable~III, LNM~350, "
     "Springer, 1973, 1--55.",
+    "ono": "K.~Ono, \\emph{The Web of Modularity}, CBMS Regional Conf.\\ Series in Math.~102, Amer.\\ Math.\\ Soc., "
+    "2004, \\S2.1 (twists).",
     "diamond-shurman": "F.~Diamond and J.~Shurman, \\emph{A First Course in Modular Forms}, Graduate Texts in "
     "Math.~228, Springer, 2005, Ch.~3.",
     "diamond-shurman-e2": "F.~Diamond and J.~Shurman, \\emph{A First Course in Modular Forms}, Graduate Texts in "
@@ -336,11 +338,29 @@ def _congruence_paragraph(claim: ClaimResult, cert: dict[str, Any], cite: _Cites
     ref = _ref(claim)
     level = int(cert.get("level", 1))
     weights = sorted({_weight(str(p["weight"])) for p in cert.get("pieces", [])}, key=Fraction)
+    several = len(cert["prime_powers"]) > 1
+    how = (
+        f"it is treated one prime power of the modulus ${cert['modulus']}$ at a time, and the Chinese remainder "
+        "theorem joins them"
+        if several
+        else f"it is treated modulo ${cert['modulus']}$"
+    )
+    n_class = cert.get("n_class") if isinstance(cert.get("n_class"), dict) else None
     parts = [
         f"The generating function of the difference of the two sides of {ref} is a sum of modular and "
-        f"quasimodular forms on ${_group(level)}$ (weights {', '.join(weights)}); it is treated one prime power of "
-        f"the modulus ${cert['modulus']}$ at a time, and the Chinese remainder theorem joins them."
+        f"quasimodular forms (weights {', '.join(weights)}); {how}."
     ]
+    if n_class is not None:
+        m = int(n_class["modulus"])
+        residues = ", ".join(str(r) for r in sorted(n_class["residues"]))
+        parts.append(
+            f"Only the $n$ with $n \\bmod {m} \\in \\{{{residues}\\}}$ are claimed. The difference restricted to "
+            f"them is a combination of its twists by the quadratic characters modulo ${m}$, a form of the same "
+            f"weight on ${_group(int(n_class.get('level', level)))}$ {cite('ono')}, and it is this form that is "
+            "shown to vanish."
+        )
+    else:
+        parts[0] = parts[0].replace(" (weights", f" on ${_group(level)}$ (weights", 1)
     for pp in cert["prime_powers"]:
         p = int(pp["prime"])
         modulus = f"{p}^{{{pp['exponent']}}}" if int(pp["exponent"]) > 1 else str(p)
@@ -403,7 +423,8 @@ def _congruence_paragraph(claim: ClaimResult, cert: dict[str, Any], cite: _Cites
                 f"${working}$ ({pp.get('coefficients_compared')} compared exactly)"
             )
         parts.append(f"Modulo ${modulus}$: " + "; ".join(steps) + ".")
-    parts.append(f"By Sturm's theorem modulo prime powers {cite('sturm')}, {ref} holds for every $n$.")
+    every = "every $n$" if n_class is None else "every $n \\geq 1$ of that class"
+    parts.append(f"By Sturm's theorem modulo prime powers {cite('sturm')}, {ref} holds for {every}.")
     return " ".join(parts)
 
 
