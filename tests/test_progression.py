@@ -774,3 +774,47 @@ def test_progressions_written_with_a_negative_residue() -> None:
     assert all("for all n >= 1" in c.outcome.message for c in report.claims[:2])
     witness = report.claims[2].outcome.first_difference
     assert witness is not None and witness["n"] == 1
+
+
+# -- a target space beyond the budget -----------------------------------------------------
+
+# Ramanujan's sum p(5n+4) q^n = 5 f_5^5/f_1^6 (Ramanujan 1919; Hardy, Ramanujan, Ch. VI), with
+# F multiplied by f_1995^2 f_1985^2 = g(q^5), g = f_399^2 f_397^2: U_5 takes g(q^5) out as g(q), so
+# sum a(5n+4) q^n = 5 f_5^5 f_399^2 f_397^2 / f_1^6 is true.  Its target level is beyond any budget.
+HUGE_F = {1: -1, 1995: 2, 1985: 2}
+HUGE_RHS = (Mono.make(Fraction(5), Fraction(0), {1: -6, 5: 5, 399: 2, 397: 2}),)
+
+
+def test_a_target_space_beyond_the_budget_is_set_aside_before_its_cusps() -> None:
+    # Regression: the cusps of a level near 10^12 were enumerated by a loop up to the level,
+    # so the claim ran into the time budget instead of saying why it is not proved.
+    out = decide(Claim("a(5n+4)", HUGE_F, 5, 4, HUGE_RHS))
+    assert out.verdict == "unproven"
+    assert "exceeds the budget" in out.message
+    # brute force: the first coefficients agree (the claim is true)
+    f = brute(HUGE_F, 5 * 40 + 5)
+    assert [f[5 * n + 4] for n in range(40)] == brute_sum([(5, 0, {1: -6, 5: 5, 399: 2, 397: 2})], 40)
+
+
+def test_an_unproven_identity_says_where_the_agreement_is_only_modulo_the_screening_prime() -> None:
+    # Beyond the exact span the search compares the sides modulo 2^61 - 1 only; the message
+    # must not call that range "holds", and terms_compared counts the exact values only.
+    out = decide(Claim("a(5n+4)", HUGE_F, 5, 4, HUGE_RHS))
+    message = out.message
+    assert "(exact values)" in message and "agrees modulo the prime 2^61 - 1" in message
+    assert "an agreement, not a proof" in message
+    exact = int(message.split("holds for 0 <= n < ")[1].split(" ")[0])
+    screened = int(message.split("for n < ")[1].split(" ")[0])
+    assert exact == (20_000 - 4) // 5 + 1 and screened > exact  # the exact span: 20,000 coefficients of F
+    assert out.terms_compared == exact
+
+
+def test_a_false_variant_beyond_the_budget_is_refuted_at_its_first_failure() -> None:
+    # The same true identity plus q^3000: the first failure is n = 3000, with the exact values.
+    rhs = (*HUGE_RHS, Mono.make(Fraction(1), Fraction(3000), {}))
+    out = decide(Claim("a(5n+4)", HUGE_F, 5, 4, rhs))
+    assert out.verdict == "refuted"
+    w = out.first_difference
+    assert w is not None
+    assert w["n"] == 3000
+    assert Fraction(w["right"]) - Fraction(w["left"]) == 1

@@ -32,13 +32,14 @@ from verifier.claims.kind import ParsedClaim, Reading, Unread, certified
 from verifier.claims.products import Mono
 from verifier.elaborate.elaborator import Problem
 from verifier.forms.eta import EtaQuotient
-from verifier.numbers import QuadraticCharacter, prime_factors
+from verifier.numbers import QuadraticCharacter, divisors, euler_phi, prime_factors
 from verifier.prove.groups import group_name, index_gamma0, sturm_bound
 from verifier.prove.outcome import Outcome, Witness, frac_str
 from verifier.prove.prover import Prover
 
 DIRECT = 200  # progression terms compared directly before any proof is attempted
 DIRECT_LIMIT = 200_000  # coefficients of F computed when looking for a counterexample
+EXACT_SPAN = 20_000  # coefficients of F an identity search computes exactly before screening modulo a prime
 MAX_BOUND = 60_000  # largest target bound attempted (the budget of one claim)
 _SMALL = range(-4, 5)  # exponents tried for eta(delta tau), delta > 1, in the multiplier
 _TWELFTHS = range(-1, 4)  # eta(tau)^(24 j) factors tried on top of the least exponent
@@ -88,10 +89,6 @@ class Plan:
         }
 
 
-def _divisors(n: int) -> list[int]:
-    return [d for d in range(1, n + 1) if n % d == 0]
-
-
 def raised_level(level: int, m: int) -> int:
     """The level of U_m f for f on Gamma_0(level): times each prime of m not dividing it."""
     return level * math.prod(p for p in prime_factors(m) if level % p)
@@ -107,7 +104,7 @@ def _multipliers(exps: dict[int, int], m: int, t: int) -> list[EtaQuotient]:
     """Candidate multipliers E with the right q-order of h (e integral, e = -t mod m)."""
     s = sum(d * r for d, r in exps.items())
     big_l = math.lcm(*exps) if exps else 1
-    deltas = [d for d in _divisors(big_l) if d > 1][:3]
+    deltas = [d for d in divisors(big_l) if d > 1][:3]
     out = []
     for small in itertools.product(_SMALL, repeat=len(deltas)):
         w_small = sum(d * u for d, u in zip(deltas, small, strict=True))
@@ -150,8 +147,13 @@ def plan(
     f_eta = EtaQuotient.of(exps)
     best: Plan | None = None
     reasons: list[str] = []
+    over: list[int] = []  # least bounds of the multipliers whose target space is beyond the budget
     for mult in _multipliers(exps, m, t):
-        p = _try(f_eta, mult, m, t, rhs, reasons)
+        try:
+            p = _try(f_eta, mult, m, t, rhs, reasons)
+        except _OverBudget as exc:
+            over.append(exc.least)
+            continue
         if p is not None and congruence and p.cusp_bounds:
             reasons.append("every multiplier leaves a term of the claimed side with a pole at a cusp")
             p = None
@@ -164,10 +166,31 @@ def plan(
                 f"no multiplier makes h a holomorphic form of integral weight, and a unit = 1 modulo {modulus} "
                 "is sought only for a prime power"
             )
+    if best is None and over:
+        return f"the target space's bound (at least {min(over)}) exceeds the budget ({MAX_BOUND})"
     if best is None:
         why = reasons[0] if reasons else "no multiplier makes h a holomorphic form of integral weight"
         return why
     return best
+
+
+def _within_budget(weight: int, target: int) -> None:
+    """Raise :class:`_OverBudget` when M_k(Gamma_0(target)) already has a bound beyond MAX_BOUND.
+
+    Checked before the cusps of the target level are enumerated (poles at cusps only raise
+    the bound), so that a level of 10^12 costs a factorisation, not a walk over its divisors.
+    """
+    least = weight * index_gamma0(target) // 12
+    if least > MAX_BOUND:
+        raise _OverBudget(least)
+
+
+class _OverBudget(Exception):
+    """A multiplier whose target space has a bound beyond MAX_BOUND, found before its cusps are enumerated."""
+
+    def __init__(self, least: int) -> None:
+        super().__init__(least)
+        self.least = least
 
 
 MAX_UNIT_POWER = 4  # j in U_d^j tried
@@ -189,7 +212,7 @@ def units(modulus: int, m: int, exps: dict[int, int]) -> list[EtaQuotient]:
     ell = primes[0]
     power = modulus // ell
     big_l = math.lcm(*exps) if exps else 1
-    ds = _divisors(m * big_l)[:MAX_UNIT_LEVELS]
+    ds = divisors(m * big_l)[:MAX_UNIT_LEVELS]
 
     def unit(d: int, j: int) -> EtaQuotient:
         return EtaQuotient.of({d: ell * j * power, d * ell: -j * power})
@@ -205,7 +228,10 @@ def _plan_with_unit(f_eta: EtaQuotient, exps: dict[int, int], m: int, t: int, mo
     candidates = _multipliers(exps, m, t)
     for unit in units(modulus, m, exps):
         for mult in candidates:
-            p = _try(f_eta, mult, m, t, None, [], unit)
+            try:
+                p = _try(f_eta, mult, m, t, None, [], unit)
+            except _OverBudget:
+                continue
             if p is not None and (best is None or p.bound < best.bound):
                 best = p
     return best
@@ -227,7 +253,10 @@ def _try(
     if h.is_half_integral or h.weight < 1 or h.s % 24:
         return None
     level = h.least_level()
-    if level is None or not h.is_holomorphic(level):
+    if level is None:
+        return None
+    _within_budget(int(h.weight), raised_level(level, m))
+    if not h.is_holomorphic(level):
         return None
     e = h.s // 24
     if (t + e) % m or e < 0:
@@ -257,6 +286,8 @@ def _try(
                 return None
             target = math.lcm(target, term_level)
             terms.append((mono.coeff, term))
+    _within_budget(k_weight, target)
+    if rhs:
         for _, term in terms:
             if term.level_failure(target) is not None:
                 return None
@@ -265,24 +296,20 @@ def _try(
                     f"a term of the claimed side has character {term.character(target).name}, not {character.name}"
                 )
                 return None
-        for d in _divisors(target):
+        for d in divisors(target):
             if d == target:
                 continue
             low = min([Fraction(0)] + [term.order_at_cusp(d, target) for _, term in terms])
             if low < 0:
                 cusp_bounds[d] = low
     pole_sum = sum(
-        (low * _euler_phi(math.gcd(d, target // d)) for d, low in cusp_bounds.items()),
+        (low * euler_phi(math.gcd(d, target // d)) for d, low in cusp_bounds.items()),
         Fraction(0),
     )
     bound = math.floor(Fraction(k_weight * index_gamma0(target), 12) - pole_sum)
     if not cusp_bounds:
         assert bound == sturm_bound(k_weight, target)
     return Plan(mult, h, k_weight, level, character, target, bound, e, (t + e) // m, tuple(terms), cusp_bounds, unit)
-
-
-def _euler_phi(n: int) -> int:
-    return sum(1 for a in range(1, n + 1) if math.gcd(a, n) == 1)
 
 
 # -- coefficients -------------------------------------------------------------------
@@ -300,25 +327,15 @@ def product_residues(exps: dict[int, int], count: int, modulus: int) -> list[int
     """The first ``count`` coefficients of ``prod f_delta^{r_delta}`` modulo ``modulus``.
 
     The numerator and denominator of :meth:`EtaQuotient.product_parts` (small integers) are
-    reduced modulo M, and the denominator is inverted in (Z/M)[q] by Newton's iteration
-    g <- g(2 - f g) (its constant term is 1, a unit modulo any M).
+    reduced modulo M, and the denominator is inverted in (Z/M)[q] by FLINT's Newton
+    iteration (its constant term is 1, a unit modulo any M, prime or not).
     """
     if count <= 0:
         return []
     top, bottom = (nmod_poly(part, modulus) for part in EtaQuotient.of(exps).product_parts(count))
-    result = top if bottom.is_one() else _inverse_mod(bottom, count, modulus).mul_low(top, count)
+    result = top if bottom.is_one() else bottom.inverse_series_trunc(count).mul_low(top, count)
     out = [int(c) for c in result.coeffs()[:count]]
     return out + [0] * (count - len(out))
-
-
-def _inverse_mod(f: nmod_poly, m: int, modulus: int) -> nmod_poly:
-    g = nmod_poly([1], modulus)
-    two = nmod_poly([2], modulus)
-    k = 1
-    while k < m:
-        k = min(2 * k, m)
-        g = g.mul_low(two - f.mul_low(g, k), k)
-    return g
 
 
 def _padded(poly: fmpz_poly, count: int) -> list[int]:
@@ -465,23 +482,48 @@ def sum_residues(terms: tuple[Mono, ...], count: int, modulus: int) -> list[int]
 def direct_search(
     prog: Progression, rhs: tuple[Mono, ...] | None, modulus: int | None, upto: int, exact: bool = False
 ) -> tuple[int, int, Fraction] | None:
-    """The first n < upto where the claim fails, by direct computation, or None.
+    """The first n < upto where the claim fails, by direct computation, or None (see :func:`search`)."""
+    return search(prog, rhs, modulus, upto, exact).found
+
+
+@dataclass(frozen=True)
+class Search:
+    """What a direct search found: the first failure ``(n, a, b)`` or None, and how far it is exact.
+
+    Without a failure, the claim holds (modulo M for a congruence) for every n < ``exact``,
+    and agrees modulo :data:`SCREEN_PRIME` for ``exact <= n < screened``.
+    """
+
+    found: tuple[int, int, Fraction] | None
+    exact: int
+    screened: int
+
+
+def search(
+    prog: Progression, rhs: tuple[Mono, ...] | None, modulus: int | None, upto: int, exact: bool = False
+) -> Search:
+    """The first n < upto where the claim fails, by direct computation.
 
     A congruence is scanned modulo M.  An identity is screened modulo a large prime first
     (unless ``exact``): a difference there is a real difference, and the exact values are then
-    computed only up to it, so the n returned is the first exact failure.  (A difference that
-    vanished modulo the prime could be missed by the screen: that only ever leaves a claim
-    unproven, since proofs never rest on this search.)
+    computed only up to it, so the n returned is the first exact failure.  A difference that
+    vanishes modulo the prime could be missed by the screen: that only ever leaves a claim
+    unproven, since proofs never rest on this search, and the result says how far the
+    agreement is exact (``Search.exact``) and how far only modulo the prime.
     """
     step = DIRECT
     done = 0
+    exact_done = 0
+    span = max(DIRECT, (EXACT_SPAN - prog.t) // prog.m + 1)  # n computed exactly before any screening
     while done < upto:
         count = min(upto, max(step, 2 * done))
+        if done < span < count:
+            count = span
         if rhs is None and modulus is not None:
             n = next((i for i, x in enumerate(prog.values(count, modulus)) if x), None)
             if n is not None:
-                return n, prog.exact(n), Fraction(0)
-            done = count
+                return Search((n, prog.exact(n), Fraction(0)), n, n)
+            done = exact_done = count
             continue
         if rhs is not None and modulus is not None:
             claimed = sum_residues(rhs, count, modulus)
@@ -489,10 +531,10 @@ def direct_search(
                 residues = prog.values(count, modulus)
                 n = next((i for i in range(count) if residues[i] != claimed[i]), None)
                 if n is not None:
-                    return n, prog.exact(n), Fraction(sum_coefficients(rhs, n + 1)[n])
-                done = count
+                    return Search((n, prog.exact(n), Fraction(sum_coefficients(rhs, n + 1)[n])), n, n)
+                done = exact_done = count
                 continue
-        if rhs is not None and modulus is None and not exact and count > DIRECT:
+        if rhs is not None and modulus is None and not exact and count > span:
             screened = sum_residues(rhs, count, SCREEN_PRIME)
             if screened is not None:
                 residues = prog.values(count, SCREEN_PRIME)
@@ -505,9 +547,9 @@ def direct_search(
         targets = sum_coefficients(rhs, count) if rhs is not None else None
         n = first_failure(values, targets, modulus)
         if n is not None:
-            return n, values[n], Fraction(targets[n]) if targets is not None else Fraction(0)
-        done = count
-    return None
+            return Search((n, values[n], Fraction(targets[n]) if targets is not None else Fraction(0)), n, n)
+        done = exact_done = count
+    return Search(None, exact_done, done)
 
 
 def search_limit(prog: Progression) -> int:
@@ -662,18 +704,26 @@ def _decide_relative(claim: Claim, prog: Progression) -> Outcome:
 
 
 def _unproven(claim: Claim, prog: Progression, reason: str) -> Outcome:
-    upto = search_limit(prog)
-    found = direct_search(prog, claim.rhs, claim.modulus, upto)
-    if found is not None:
-        n, a, b = found
+    result = search(prog, claim.rhs, claim.modulus, search_limit(prog))
+    if result.found is not None:
+        n, a, b = result.found
         return refuted(claim.kind, claim.what, n + claim.start, a, b, claim.modulus)
     mod = f" modulo {claim.modulus}" if claim.modulus is not None else ""
+    start = claim.start
+    held = f"holds{mod} for {start} <= n < {result.exact + start}"
+    if result.screened > result.exact:
+        held += (
+            f" (exact values), and agrees modulo the prime 2^61 - 1 for n < {result.screened + start} "
+            "(an agreement, not a proof)"
+        )
+    else:
+        held += " (computed directly)"
     return Outcome(
         "unproven",
         claim.kind,
-        f"holds{mod} for {claim.start} <= n < {upto + claim.start} (computed directly), but no proof applies: {reason}",
+        f"{held}, but no proof applies: {reason}",
         method="computation",
-        terms_compared=upto,
+        terms_compared=result.exact,
     )
 
 

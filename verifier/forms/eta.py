@@ -321,7 +321,7 @@ class EtaQuotient:
         There are ``phi(gcd(d, N/d))`` inequivalent cusps with denominator d (docs/method.md#cusps);
         all have the same order.
         """
-        return {d: self.order_at_cusp(d, level) for d in _divisors(level)}
+        return {d: self.order_at_cusp(d, level) for d in numbers.divisors(level)}
 
     def is_holomorphic(self, level: int) -> bool:
         """All cusp orders >= 0 on Gamma_0(level) (eta quotients have no zeros or poles in H)."""
@@ -337,11 +337,6 @@ class EtaQuotient:
 
 def _is_int(x: object) -> bool:
     return isinstance(x, int) and not isinstance(x, bool)
-
-
-def _divisors(n: int) -> list[int]:
-    small = [d for d in range(1, math.isqrt(n) + 1) if n % d == 0]
-    return sorted(set(small + [n // d for d in small]))
 
 
 def _unit_inverse(f: Any, m: int) -> Any:
