@@ -503,6 +503,12 @@ def _partition() -> None:
     add(st, "p32", Ser(lambda: poch(1, 1, +1) * f(2), lambda: S.lift(1), FALSE))
     add(st, "p33", Arith(pbar, lambda n: 0, "Corteel and Lovejoy, Overpartitions (2004)", range(1, PREC), 2))
     add(st, "p34", Arith(pbar, lambda n: 0, FALSE, range(1, PREC), 4))
+    frob = "common practice: (1 - x)^2 = 1 - x^2 (mod 2)"
+    add(st, "p35", Ser(lambda: f(1) ** 2, lambda: f(2), frob, mod=2))
+    add(st, "p36", Ser(lambda: f(1) ** 4, lambda: f(4), FALSE, mod=4))
+    on7 = range(5, 200, 7)
+    add(st, "p37", Arith(p, lambda n: 0, f"Ramanujan; {AND}, Ch. 10", on7, 7))
+    add(st, "p38", Arith(p, lambda n: 0, FALSE, range(3, 200, 5), 5))
 
 
 _partition()

@@ -268,9 +268,9 @@ def test_fail_on_chooses_the_failing_verdicts(tmp_path: Path, capsys: pytest.Cap
 
 
 def test_fail_on_unproven(tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
-    # p(n) = p(n) is trivially true (common practice), and p(n) alone has no modular
+    # mu(n) = mu(n) is trivially true (common practice), and the Moebius function has no modular
     # generating function, so qreferee leaves it unproven with the range checked.
-    paper = write(tmp_path, "paper.tex", "%@claim\n\\[ p(n) = p(n) \\]\n")
+    paper = write(tmp_path, "paper.tex", "%@claim\n\\[ \\mu(n) = \\mu(n) \\]\n")
     status, data = main_json([str(paper)], capsys)
     assert (status, data["claims"][0]["verdict"]) == (1, "unproven")
     assert cli.main(["check", str(paper), "--fail-on", "refuted,error"]) == 0

@@ -247,13 +247,11 @@ def _basic(e: t.A, var: str, values: Values) -> ir.Expr:
             form = e.form
             return ir.Atom(ir.Typ(form.weight), "Theta_Q", "theta", Fraction(d), (form.gram,))
         if e.name == "coef":
-            from verifier.elaborate.rescale import rescale_factor
-
+            # A form with fractional exponents (f_1^2 = q^{-1/12} eta^2) is returned as it is: the claim's
+            # two generating functions are rescaled together (verifier.claims.coefficients).
             form_expr: ir.Expr = e.form
             if form_expr.typ.printed:
                 raise Untranslatable("the defined form is a printed expansion")
-            if rescale_factor(ir.Side(form_expr, False)) != 1:
-                raise Untranslatable("the defined form has fractional exponents")
             return rescale_expr(form_expr, d) if d != 1 else form_expr
         raise Untranslatable(f"{e.text} has no modular generating function")
     if isinstance(e, t.Sum):

@@ -33,13 +33,15 @@ from verifier.arith.values import NotEvaluable, Values
 from verifier.claims.kind import ParsedClaim, Reading, Unread, certified
 from verifier.elaborate import ir
 from verifier.elaborate.elaborator import Problem
-from verifier.elaborate.rescale import rescale_factor
+from verifier.elaborate.rescale import rescale_expr, rescale_factor, rescale_side
+from verifier.elaborate.shift import classify, strip_side
 from verifier.numbers import prime_factors
 from verifier.parse.ast import NClass
 from verifier.prove import certificate
 from verifier.prove.evaluate import laurent_to
 from verifier.prove.outcome import Witness, differ_modulo
 from verifier.prove.prover import Outcome, Prover, _frac_str
+from verifier.series.qseries import QSeries
 
 KINDS = ("arithmetic",)
 CHECK = 60  # n checked directly before any proof is attempted
@@ -171,9 +173,18 @@ def values_for(prover: Prover) -> Values:
     """Exact values of arithmetic functions, with the coefficients of forms from the prover's table."""
 
     def series_of(form: ir.Expr, prec: int) -> Any:
-        if rescale_factor(ir.Side(form, False)) != 1:
+        factor = rescale_factor(ir.Side(form, False))
+        if factor == 1:
+            return laurent_to(form, prec, prover.table, prover.max_terms * 2)
+        # f_1^2 = q^{-1/12} eta(tau)^2 is a power series in q: evaluated as f(q^T), T the least factor
+        # making every exponent integral, and read back at the multiples of T (docs/method.md#eta-offset).
+        scaled = laurent_to(rescale_expr(form, factor), prec * factor, prover.table, prover.max_terms * 2)
+        lowest = min(scaled.valuation, 0)
+        if any(scaled[i] != 0 for i in range(lowest, prec * factor) if i % factor):
             raise NotEvaluable("the form has fractional exponents (q^{1/24}, ...); its a(n) is not defined")
-        return laurent_to(form, prec, prover.table, prover.max_terms * 2)
+        first = -(-lowest // factor)
+        kept = [scaled[factor * n] for n in range(first, prec)]
+        return QSeries.from_coefficients(kept, first, prec)
 
     return Values(series_of)
 
@@ -252,29 +263,42 @@ def _decide(prover: Prover, claim: ArithmeticClaim, values: Values, prove_modulo
             terms_compared=CHECK + 1,
             relation="!=",
         )
+    rescaled: Rescaled | None = None
     try:
         left = generating_function(claim.left, claim.var, values)
         right = generating_function(claim.right, claim.var, values)
         if fractional_shift(left) or fractional_shift(right):
-            # p(n) gives q^{1/24}/eta: a claim about coefficients is compared directly only.
-            raise Untranslatable("a generating function with a fractional power of q (such as that of p(n))")
+            rescaled = _rescaled(prover, claim, left, right)
     except Untranslatable as exc:
+        modulo = "" if claim.modulus is None else f" modulo {claim.modulus}"
         return Outcome(
             "unproven",
             kind,
-            f"the sides agree for {claim.span(claim.start + CHECK)} (computed directly), but no proof applies: {exc}",
+            f"the sides agree{modulo} for {claim.span(claim.start + CHECK)} (computed directly), "
+            f"but no proof applies: {exc}",
             method="computation",
             terms_compared=CHECK + 1,
         )
     lowest = 0 if claim.start <= 0 else 1
-    if lowest == 1:
-        left, right = _without_constant(prover, left), _without_constant(prover, right)
-    sides = (ir.Side(left, False), ir.Side(right, False))
+    if rescaled is not None:
+        # The constant terms were found equal (modulo M): the claim for n >= 0 is the same claim.
+        lowest = 0
+        sides = rescaled.sides
+    else:
+        if lowest == 1:
+            left, right = _without_constant(prover, left), _without_constant(prover, right)
+        sides = (ir.Side(left, False), ir.Side(right, False))
     if claim.modulus is not None:
         if prove_modulo is None:
             raise ValueError("a congruence needs the congruence kind's proof step")
-        return prove_modulo(prover, claim, sides, values, kind)
-    outcome = prover.decide(sides[0], sides[1], "=")
+        if rescaled is None:
+            return prove_modulo(prover, claim, sides, values, kind)
+        stripped = (strip_side(sides[0]), strip_side(sides[1]))
+        return rescaled.annotate(prove_modulo(prover, claim, stripped, values, kind))
+    if rescaled is not None:
+        outcome = rescaled.annotate(prover.decide(sides[0], sides[1], "=", unit=Fraction(rescaled.factor)))
+    else:
+        outcome = prover.decide(sides[0], sides[1], "=")
     if outcome.verdict == "proved":
         check = first_direct_difference(claim, values, lowest, max(lowest + CHECK, (outcome.bound or 0) + 2))
         if check is not None:
@@ -322,6 +346,61 @@ def _decide(prover: Prover, claim: ArithmeticClaim, values: Values, prove_modulo
         )
     outcome.kind = kind
     return outcome
+
+
+@dataclass(frozen=True)
+class Rescaled:
+    """The two generating functions after tau -> T tau, with the common power q^c in front of them.
+
+    A side f(q) with fractional exponents in its parts (f_1^2 = q^{-1/12} eta(tau)^2) is a power
+    series in q; f(q^T) = q^c F with F a quotient of forms on Gamma_0(N) (docs/method.md#eta-offset).
+    The coefficient of q^n in f is that of q^{Tn - c} in F, so the claim about every coefficient
+    of the two sides is the same claim about F_left and F_right.
+    """
+
+    sides: tuple[ir.Side, ir.Side]  # rescaled, the common q^c still in front
+    factor: int  # T
+    power: Fraction  # c
+
+    def note(self) -> str:
+        return f"read with tau -> {self.factor} tau, q^{{{_fmt(self.power)}}} in front of both sides divided out"
+
+    def annotate(self, outcome: Outcome) -> Outcome:
+        """The outcome of the rescaled claim, saying how it was rescaled (message and certificate)."""
+        if outcome.verdict == "proved":
+            outcome.message = f"{self.note()}: {outcome.message}"
+            if outcome.certificate is not None:
+                outcome.certificate["rescaled"] = {"tau_factor": self.factor, "q_power": _fmt(self.power)}
+        return outcome
+
+
+def _rescaled(prover: Prover, claim: ArithmeticClaim, left: ir.Expr, right: ir.Expr) -> Rescaled:
+    """Both generating functions rescaled to integral exponents, or Untranslatable with the reason."""
+    if claim.n_class is not None:
+        # The class restricts the author's n; after tau -> T tau the exponents are T n - c.
+        raise Untranslatable(f"a generating function with a fractional power of q, on the class {claim.n_class.text}")
+    pair = (ir.Side(left, False), ir.Side(right, False))
+    factor = rescale_factor(*pair)
+    try:
+        sides = (rescale_side(pair[0], factor), rescale_side(pair[1], factor))
+    except ValueError as exc:
+        raise Untranslatable(str(exc)) from exc
+    power = classify(*sides)
+    if power is None:
+        raise Untranslatable(
+            "a generating function with a fractional power of q whose terms carry different powers of q after rescaling"
+        )
+    if power.denominator != 1:
+        raise Untranslatable("a generating function with a fractional power of q that no rescaling removes")
+    if claim.start > 0:
+        # Only the claim for n >= 0 is rescaled: the constant terms must agree (modulo M) for it to be the same claim.
+        c = [laurent_to(strip_side(s).expr, 1 - int(power), prover.table, prover.max_terms)[-int(power)] for s in sides]
+        if _differs(c[0], c[1], claim.modulus):
+            raise Untranslatable(
+                f"a generating function with a fractional power of q, and constant terms {_fmt(c[0])} and "
+                f"{_fmt(c[1])} that differ; only the claim for n >= 0 is rescaled"
+            )
+    return Rescaled(sides, factor, power)
 
 
 def _without_constant(prover: Prover, g: ir.Expr) -> ir.Expr:

@@ -30,6 +30,7 @@ from verifier.claims.coefficients import (
 from verifier.claims.kind import ParsedClaim, Unread, certified
 from verifier.claims.value import at_a_value
 from verifier.elaborate import ir
+from verifier.elaborate.fold import fold_eta
 from verifier.parse.ast import NClass
 from verifier.prove import certificate, groups
 from verifier.prove.outcome import Outcome
@@ -147,7 +148,9 @@ def prove_modulo(
             decision = dataclasses.replace(decision, proved=False, reason=why, details=details)
         return decision, pieces, proof_level
 
-    left, right = sides
+    # 1/f_1^2 is eta(tau)^(-2): quotients and products of eta quotients are folded into one atom.
+    left, right = (dataclasses.replace(s, expr=fold_eta(s.expr)) for s in sides)
+    sides = (left, right)
     first = attempt(left, right, claim.modulus)
     if isinstance(first, Outcome):
         return first
@@ -283,11 +286,33 @@ def _frobenius(decision: Any, sides: tuple[ir.Side, ir.Side], attempt: Any, modu
         if detail.get("proved"):
             continue
         p, e = int(detail["prime"]), int(detail["exponent"])
+        # Lifted as power series first (a lift need not be a holomorphic form to equal the other side's).
+        series = [lift_side(s.expr, p, e, holomorphic=False) for s in sides]
+        if series[0] is not None and series[0] == series[1]:
+            lifted = [x for x in series if x is not None]
+            texts = [describe(x) for x in lifted]
+            # Both sides are congruent modulo p^e to one and the same form (ir equality ignores the
+            # spelling): nothing is left to compare, whatever the weight (f_1^3 = f_3 (mod 3)).
+            details[i] = {
+                "prime": p,
+                "exponent": e,
+                "modulus": p**e,
+                "proved": True,
+                "vanishing_pieces": [],
+                "bound": 0,
+                "coefficients_compared": 0,
+                "frobenius": {"left": texts[0], "right": texts[1], "level": None, "same": True},
+                "reason": f"both sides lifted by Frobenius to the same series {texts[0]} "
+                "(docs/method.md#congruence-frobenius)",
+            }
+            changed = True
+            continue
         maybe = [lift_side(s.expr, p, e) for s in sides]
         lifted = [x for x in maybe if x is not None]
         if len(lifted) != 2 or all(x == s.expr for x, s in zip(lifted, sides, strict=True)):
             continue
         new_sides = [dataclasses.replace(s, expr=x) for x, s in zip(lifted, sides, strict=True)]
+        texts = [describe(x) for x in lifted]
         try:
             result = attempt(new_sides[0], new_sides[1], p**e)
         except NotModular:  # a lifted side on no known space proves nothing
@@ -298,7 +323,6 @@ def _frobenius(decision: Any, sides: tuple[ir.Side, ir.Side], attempt: Any, modu
         if not sub.proved:
             continue
         (sub_detail,) = sub.details
-        texts = [describe(x) for x in lifted]
         details[i] = {
             **sub_detail,
             "frobenius": {"left": texts[0], "right": texts[1], "level": level},

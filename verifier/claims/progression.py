@@ -572,6 +572,17 @@ class Claim:
     rhs: tuple[Mono, ...] | None = None
     modulus: int | None = None
     start: int = 0  # the author's n is the n of a(mn + t) plus this (a claim for n >= start)
+    step: int = 1  # ... times this: the author's n is step * n + start (a claim on a class of n)
+
+    def author_n(self, n: int) -> int:
+        """The author's n for the n of a(mn + t)."""
+        return self.step * n + self.start
+
+    def range_text(self) -> str:
+        """The author's n this claim covers, as messages say it."""
+        if self.step == 1:
+            return f"for all n >= {self.start}"
+        return f"for all n = {self.start} + {self.step}n' (n' >= 0)"
 
     @property
     def kind(self) -> str:
@@ -587,6 +598,8 @@ def decide(claim: Claim | ProgressionReading, prover: Prover | None = None) -> O
     """
     if isinstance(claim, ProgressionReading):
         found = claim.found
+        if found.n_class is not None:
+            return decide_class(found.n_class, found.claims)
         if found.residues is not None:
             return decide_residues(found.residues[0], found.claims)
         if found.dissection is not None:
@@ -612,7 +625,7 @@ def _decide(claim: Claim) -> Outcome:
         return Outcome("unproven", kind, f"the claimed side is not a power series in q: {exc}", code="unsupported")
     if first is not None:
         n, a, b = first
-        return refuted(kind, claim.what, n + claim.start, a, b, modulus)
+        return refuted(kind, claim.what, claim.author_n(n), a, b, modulus)
     if claim.rhs is not None and modulus is not None:
         return _decide_relative(claim, prog)
     t_proof = t
@@ -652,7 +665,7 @@ def _decide(claim: Claim) -> Outcome:
     found = direct_search(prog, claim.rhs, modulus, search_limit(prog))
     if found is not None:
         n, a, b = found
-        return refuted(kind, claim.what, n + claim.start, a, b, modulus)
+        return refuted(kind, claim.what, claim.author_n(n), a, b, modulus)
     if t_proof != t:
         return _unproven(
             claim,
@@ -707,7 +720,7 @@ def _unproven(claim: Claim, prog: Progression, reason: str) -> Outcome:
     result = search(prog, claim.rhs, claim.modulus, search_limit(prog))
     if result.found is not None:
         n, a, b = result.found
-        return refuted(claim.kind, claim.what, n + claim.start, a, b, claim.modulus)
+        return refuted(claim.kind, claim.what, claim.author_n(n), a, b, claim.modulus)
     mod = f" modulo {claim.modulus}" if claim.modulus is not None else ""
     start = claim.start
     held = f"holds{mod} for {start} <= n < {result.exact + start}"
@@ -752,7 +765,7 @@ def _proved(claim: Claim, p: Plan, count: int, t_proof: int) -> Outcome:
             else ""
         )
         msg = (
-            f"for all n >= {claim.start}, {claim.what} = 0 modulo {claim.modulus}{stronger}: "
+            f"{claim.range_text()}, {claim.what} = 0 modulo {claim.modulus}{stronger}: "
             f"with E = {p.multiplier.label()}{unit}, "
             f"h = {p.h.label()} is in M_{p.weight}(Gamma0({p.level}), {p.character.name}); U_{m} h is in {target}, "
             f"and its coefficients of q^0..q^{p.bound} ({bound_kind}) are 0 modulo {claim.modulus}"
@@ -912,6 +925,55 @@ def decide_residues(var: str, claims: tuple[Claim, ...]) -> Outcome:
     )
 
 
+def decide_class(n_class: Any, claims: tuple[Claim, ...]) -> Outcome:
+    """``a(mn + t) = 0 (mod M)`` for the n of a class: one progression claim per residue.
+
+    Proved when every residue's progression is proved; refuted at the least n of the class
+    (the author's n) where a progression is refuted; otherwise unproven with the reasons.
+    """
+    outcomes = [decide(c) for c in claims]
+
+    def part(c: Claim) -> str:
+        return f"n = {c.start} + {c.step}n'"
+
+    refuted_ones = [o for o in outcomes if o.verdict == "refuted" and o.witness is not None]
+    if refuted_ones:
+        o = min(refuted_ones, key=lambda out: int(out.witness.n or 0) if out.witness is not None else 0)
+        assert o.witness is not None
+        return Outcome(
+            "refuted",
+            "congruence",
+            f"{o.message} (n in the class {n_class.text})",
+            method="computation",
+            first_difference=o.witness.to_dict(),
+            terms_compared=o.terms_compared,
+        )
+    for o in outcomes:
+        if o.verdict == "error":
+            return o
+    if all(o.verdict == "proved" for o in outcomes):
+        first = claims[0]
+        m0 = first.m // first.step
+        record = {
+            "n_class": {"modulus": n_class.modulus, "residues": sorted(n_class.residues)},
+            "argument": [m0, first.t - m0 * first.start],  # the author's a(m0 n + t0)
+            "starts": [c.start for c in claims],  # n0, the least n of each residue: n = n0 + k n'
+            "components": [o.progression for o in outcomes],
+        }
+        message = f"on the class {n_class.text}, one progression per residue: " + "; ".join(o.message for o in outcomes)
+        return _all_classes_proved("congruence", message, outcomes, record)
+    reasons = "; ".join(
+        f"{part(c)}: {o.message}" for c, o in zip(claims, outcomes, strict=True) if o.verdict != "proved"
+    )
+    return Outcome(
+        "unproven",
+        "congruence",
+        f"not every residue of the class {n_class.text} is proved ({reasons})",
+        method="computation",
+        terms_compared=min(o.terms_compared for o in outcomes),
+    )
+
+
 # The kind's three steps (verifier/claims/kind.py); decide is above.
 
 
@@ -950,6 +1012,7 @@ def read(claim: ParsedClaim, /) -> ProgressionReading | Unread | None:
         elaborator.author_forms(),
         dissection_ok,
         claim.residues,
+        claim.n_class,
     )
     if found is None:
         if claim.residues is not None:

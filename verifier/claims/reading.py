@@ -40,6 +40,7 @@ class Reading:
     left: Mono | None = None  # F, for a dissection
     right: ProductSum = ()  # the claimed sum, for a dissection
     residues: tuple[str, tuple[int, ...]] | None = None  # (t, listed values) of a residue set
+    n_class: ast.NClass | None = None  # the class of n the congruence is stated on (one claim per residue)
 
 
 def _linear(node: ast.Node, var: str, fixed: Mapping[str, int] | None = None) -> tuple[int, int] | None:
@@ -131,13 +132,29 @@ def read(
     forms: Mapping[str, Any],
     dissection_ok: Callable[[], bool],
     residues: tuple[str, tuple[int, ...]] | None = None,
+    n_class: ast.NClass | None = None,
 ) -> Reading | None:
     """The progression claims of ``left rel right``, or None when it is not one of the shapes.
 
     With ``residues = (t, values)`` only a congruence ``a(m n + t) \\equiv 0`` is read, as one
-    claim per listed value of t (in the listed order).
+    claim per listed value of t (in the listed order).  With a class of n written after the
+    claim (``(n \\equiv 4 \\pmod 5)``, ``(n \\text{ odd})``), only such a congruence is read, as
+    one claim per residue of the class (:func:`class_claims`).
     """
     reader = Reader(products, forms)
+    if n_class is not None:
+        if residues is not None or rel != "≡" or modulus is None or modulus <= 1:
+            return None
+        for a, b in ((left, right), (right, left)):
+            if not (isinstance(b, ast.Number) and b.value == 0):
+                continue
+            var = _variable(a)
+            term = _term(a, var, products, forms) if var == n_class.var else None
+            if term is None or not _usable(term[0]):
+                return None
+            gen, m, t, what = term
+            return Reading(class_claims(what, dict(gen.exps), m, t, modulus, start_n, n_class), n_class=n_class)
+        return None
     if rel == "≡" and modulus is not None and modulus > 1:
         if residues is None and not start_n:
             relative = _internal(left, right, modulus, products, forms)
@@ -190,6 +207,26 @@ def read(
     if found_dissection is None or not dissection_ok():
         return None
     return found_dissection
+
+
+def class_claims(
+    what: str, exps: dict[int, int], m: int, t: int, modulus: int, start_n: int | None, n_class: ast.NClass
+) -> tuple[Claim, ...]:
+    """``a(mn + t) = 0 (mod M)`` for the n >= s of a class, one progression claim per residue r.
+
+    The n of the class with n = r (mod k) and n >= s are n = n0 + k n' (n' >= 0), n0 the least
+    of them, and a(mn + t) = a(mk n' + m n0 + t).  A class is read on n >= 1 unless a range is
+    written (as for claims on classes elsewhere, docs/method.md#classes-of-n), and never below
+    the n where the argument mn + t becomes negative.
+    """
+    k = n_class.modulus
+    s = start_n if start_n is not None else 1
+    s = max(s, -(t // m))
+    out = []
+    for r in sorted(n_class.residues):
+        n0 = s + (r - s) % k
+        out.append(Claim(what, dict(exps), m * k, m * n0 + t, None, modulus, n0, k))
+    return tuple(out)
 
 
 def _internal(

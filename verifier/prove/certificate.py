@@ -379,7 +379,8 @@ def _with_lifted_sides(detail: dict[str, Any], left: ir.Side, right: ir.Side) ->
     if not isinstance(frob, dict):
         return detail
     p, e = int(detail["prime"]), int(detail["exponent"])
-    lifted = [lift_side(s.expr, p, e) for s in (left, right)]
+    # Sides that lift to the same series ("same") need not lift to holomorphic forms.
+    lifted = [lift_side(s.expr, p, e, holomorphic=not frob.get("same")) for s in (left, right)]
     if any(x is None for x in lifted):
         return detail
     spelled = {"left_expr": sexpr(lifted[0]), "right_expr": sexpr(lifted[1])}  # type: ignore[arg-type]

@@ -61,11 +61,13 @@ def _atom_integral(atom: ir.Atom, p: int) -> bool:
     return False
 
 
-def lift_side(expr: ir.Expr, p: int, e: int) -> ir.Expr | None:
+def lift_side(expr: ir.Expr, p: int, e: int, holomorphic: bool = True) -> ir.Expr | None:
     """``expr`` with every eta quotient lifted (:func:`lift_eta`), or None when the rewrite is not
     known to keep the side's coefficients modulo p^e (see the module docstring).
 
-    A lifted eta quotient must again be a holomorphic modular form on some Gamma_0(N); otherwise None.
+    With ``holomorphic`` (for a proof by Sturm's theorem), a lifted eta quotient must again be a
+    holomorphic modular form on some Gamma_0(N); otherwise None.  Without it the lift is only a
+    power series congruent to the side, which is all that comparing two lifts needs.
     """
     if isinstance(expr, ir.Const):
         return expr if _integral(expr.value, p) else None
@@ -81,6 +83,9 @@ def lift_side(expr: ir.Expr, p: int, e: int) -> ir.Expr | None:
             return ir.Const(ir.Typ(Fraction(0)), "1", Fraction(1))
         if any(d.denominator != 1 for d, _ in params):
             return None
+        if not holomorphic:
+            typ = dataclasses.replace(expr.typ, weight=Fraction(sum(r for _, r in params), 2))
+            return dataclasses.replace(expr, typ=typ, text=registry.eta_quotient(params).label(), params=params)
         eq = registry.eta_quotient(params)
         level = eq.least_level()
         if level is None or not eq.is_holomorphic(level):
@@ -90,23 +95,23 @@ def lift_side(expr: ir.Expr, p: int, e: int) -> ir.Expr | None:
         return dataclasses.replace(expr, typ=typ, text=eq.label(), params=params)
     if isinstance(expr, ir.Sum | ir.Product):
         assert expr.left is not None and expr.right is not None
-        left, right = lift_side(expr.left, p, e), lift_side(expr.right, p, e)
+        left, right = lift_side(expr.left, p, e, holomorphic), lift_side(expr.right, p, e, holomorphic)
         if left is None or right is None:
             return None
         return dataclasses.replace(expr, left=left, right=right)
     if isinstance(expr, ir.Power):
         assert expr.base is not None
-        base = lift_side(expr.base, p, e)
+        base = lift_side(expr.base, p, e, holomorphic)
         if base is None or expr.exponent < 0:
             return None
         return dataclasses.replace(expr, base=base)
     if isinstance(expr, ir.Shift):
         assert expr.base is not None
-        base = lift_side(expr.base, p, e)
+        base = lift_side(expr.base, p, e, holomorphic)
         return None if base is None else dataclasses.replace(expr, base=base)
     if isinstance(expr, ir.Deriv):
         assert expr.base is not None
-        base = lift_side(expr.base, p, e)
+        base = lift_side(expr.base, p, e, holomorphic)
         return None if base is None else dataclasses.replace(expr, base=base)
     return None
 

@@ -144,6 +144,13 @@ def recheck_lift(claim: Any, p: int, e: int, detail: dict[str, Any], reasons: li
         if eta_mod(before, stop, q) != eta_mod(after, stop, q):
             reasons.append(f"mod {q}: an eta quotient and its lift differ mod {q} through q^{stop - 1}")
             return 0
+    if frob.get("same"):
+        # Both sides lift to one form: the lifted difference is 0 and there is nothing to compare.
+        if lifted[0] != lifted[1]:
+            reasons.append(f"mod {q}: the certificate says both sides lift to the same form, but they differ")
+            return 0
+        notes.append(f"mod {q}: both sides lift by Frobenius to the same series, checked move by move")
+        return 0
     new_claim = _Claim(trees=lifted)
     if int(frob.get("level", -1)) != new_claim.level:
         reasons.append(f"mod {q}: level after the lift: certificate {frob.get('level')}, recomputed {new_claim.level}")

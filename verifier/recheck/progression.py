@@ -138,12 +138,38 @@ def recheck_progression(cert: dict[str, Any], reasons: list[str], notes: list[st
             ts = sorted(int(c["claimed_t"]) for c in comps)
             if ts != list(range(p)) or any(int(c["m"]) != p for c in comps):
                 reasons.append(f"the classes {ts} (moduli {[c['m'] for c in comps]}) are not every t mod {p} once")
+        if "n_class" in rec:
+            _class_covered(rec, comps, reasons)
         if "residues" in rec:
             mine = [int(c["claimed_t"]) - int(c["m"]) * int(c["start"]) for c in comps]
             if [int(x) for x in rec["residues"]] != mine:
                 reasons.append(f"the listed residues {rec['residues']} are not those of the classes {mine}")
     if cert.get("bound") is not None and int(cert["bound"]) != bound:
         reasons.append(f"bound: certificate {cert['bound']}, recomputed {bound}")
+
+
+def _class_covered(rec: dict[str, Any], comps: list[dict[str, Any]], reasons: list[str]) -> None:
+    """The classes proved are the author's a(m0 n + t0) on the class of n, each residue once.
+
+    For the residue r of the class (modulo k), n = n0 + k n' with n0 = r (mod k), so the
+    argument is m0 k n' + (m0 n0 + t0): the component must have m = m0 k and that t.  The n0
+    must lie within k of one another (each the least n of its residue from a common start).
+    """
+    k = int(rec["n_class"]["modulus"])
+    residues = sorted(int(r) for r in rec["n_class"]["residues"])
+    m0, t0 = (int(x) for x in rec["argument"])
+    starts = [int(x) for x in rec["starts"]]
+    if len(starts) != len(comps) or sorted(n0 % k for n0 in starts) != residues:
+        reasons.append(f"the starts {starts} do not give each residue {residues} mod {k} once")
+        return
+    if max(starts) - min(starts) >= k:
+        reasons.append(f"the starts {starts} are not the least n of their residues from one start")
+    for n0, c in zip(starts, comps, strict=True):
+        if int(c["m"]) != m0 * k or int(c["claimed_t"]) != m0 * n0 + t0:
+            reasons.append(
+                f"the class n = {n0} mod {k} of a({m0}n + {t0}) is a({m0 * k}n' + {m0 * n0 + t0}), "
+                f"not the proved a({c['m']}n' + {c['claimed_t']})"
+            )
 
 
 def _one(rec: dict[str, Any], reasons: list[str], notes: list[str], where: str) -> int:
