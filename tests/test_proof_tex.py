@@ -89,6 +89,38 @@ def test_paragraphs_for_progressions_congruences_membership_and_dimension() -> N
         assert f"\\bibitem{{{key}}}" in tex
 
 
+GROUPED = r"""
+%@claim
+\[ p(5n+t) \equiv 0 \pmod 5 \quad (t \in \{4, 9\}) \]
+
+%@claim
+\[ p(n) \equiv 0 \pmod 7 \quad (n \equiv 5 \pmod 7) \]
+
+%@claim
+\[ \frac{f_2^5}{f_1^2f_4^2} = \frac{f_8^5}{f_4^2f_{16}^2} + 2q\frac{f_{16}^2}{f_8} \]
+
+%@define f_k = (q^k;q^k)_\infty
+%@claim
+\[ f_1^2 \equiv f_2 \pmod 2 \]
+"""
+# Ramanujan's congruences (Hardy, Ramanujan, Ch. VI); phi(q) = phi(q^4) + 2q psi(q^8) (Hirschhorn, The
+# Power of q, Ch. 1, from memory); f_1^2 = f_2 (mod 2) as (1 - x)^2 = 1 - x^2 (mod 2) (common practice).
+
+
+def test_paragraphs_for_grouped_progressions_and_products_modulo_p() -> None:
+    # Regression: a residue set or a dissection (a record of components) crashed --proof-tex.
+    report = check_text(GROUPED, "g.tex")
+    assert [c.verdict for c in report.claims] == ["proved"] * 4, [c.outcome.message for c in report.claims]
+    tex = proof_tex.render(report)
+    assert "the claim is one congruence for each listed class" in tex.replace("The claim", "the claim")
+    assert "which is the class $a(5n+4)$" in tex and "which is the class $a(5n+9)$" in tex
+    assert "$n_0 + 7n$ with $n \\ge 0$ and $n_0 \\in \\{5\\}$, so the claim is about $a(7n+5)$" in tex
+    assert "one for each class" in tex
+    assert "with $\\tau \\mapsto 12\\tau$ and $q^{-1}$ divided out of both" in tex
+    assert "the coefficient of $q^n$ of each side is that of $q^{12n+1}$" in tex
+    assert "the two sides are congruent modulo $2$ to one and the same series" in tex
+
+
 def test_escaping() -> None:
     assert proof_tex.escape("a_b & 50% #1 {x} ~ \\ ≥") == ("a\\_b \\& 50\\% \\#1 \\{x\\} $\\sim$ $\\backslash$ $\\geq$")
 
@@ -96,7 +128,7 @@ def test_escaping() -> None:
 @pytest.mark.skipif(shutil.which("pdflatex") is None, reason="pdflatex is not installed (CI installs it)")
 def test_the_file_compiles_with_pdflatex(tmp_path: Path) -> None:
     src = tmp_path / "m.tex"
-    src.write_text(MANUSCRIPT + MORE_KINDS)
+    src.write_text(MANUSCRIPT + MORE_KINDS + GROUPED)
     out = tmp_path / "proofs.tex"
     run = subprocess.run(
         [sys.executable, "-m", "verifier", "check", str(src), "--proof-tex", str(out)], capture_output=True, text=True

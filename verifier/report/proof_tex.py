@@ -287,8 +287,12 @@ def _chi_tex(name: str) -> str:
     return "" if m is None else f", \\left(\\frac{{{m.group(1)}}}{{\\cdot}}\\right)"
 
 
-def _progression_paragraph(claim: ClaimResult, prog: dict[str, Any], cite: _Cites) -> str:
-    ref = _ref(claim)
+def _progression_paragraph(claim: ClaimResult, prog: dict[str, Any], cite: _Cites, part: str | None = None) -> str:
+    """The U_m proof of one progression; a record with ``components`` (a dissection, a residue set, a
+    class of n) gets one such proof per component, after a sentence saying how they make the claim."""
+    if "components" in prog:
+        return _components_paragraph(claim, prog, cite)
+    ref = part or _ref(claim)
     m, t = int(prog["m"]), int(prog["t"])
     form, target = prog["form"], prog["target"]
     bound = int(target["sturm_bound"])
@@ -314,6 +318,42 @@ def _progression_paragraph(claim: ClaimResult, prog: dict[str, Any], cite: _Cite
             f"(computed exactly), so the two forms are equal by Sturm's theorem {cite('sturm')}, which is {ref}."
         )
     return text
+
+
+def _components_paragraph(claim: ClaimResult, prog: dict[str, Any], cite: _Cites) -> str:
+    ref = _ref(claim)
+    comps = [c for c in prog["components"] if isinstance(c, dict)]
+    if "dissection" in prog:
+        p = int(prog["dissection"])
+        head = (
+            f"Collecting the terms $q^{{t}}G_t(q^{{{p}}})$ of each class $t \\bmod {p}$, {ref} is the {len(comps)} "
+            f"identities $\\sum_{{n\\ge0}} a({p}n+t)q^n = G_t(q)$ of the generating function $\\sum a(n)q^n$ "
+            "of its left side, one for each class."
+        )
+    elif "n_class" in prog:
+        k = int(prog["n_class"]["modulus"])
+        m0, t0 = (int(x) for x in prog.get("argument", [1, 0]))
+        starts = [int(x) for x in prog.get("starts", [])]
+        progressions = ", ".join(f"$a({_linear(m0 * k, m0 * n0 + t0)})$" for n0 in starts)
+        head = (
+            f"The $n$ of the class are the $n_0 + {k}n$ with $n \\ge 0$ and $n_0 \\in \\{{"
+            f"{', '.join(map(str, starts))}\\}}$, so {ref} is about {progressions}, each proved as follows."
+        )
+    else:
+        head = f"{ref[:1].upper()}{ref[1:]} is one congruence for each listed class."
+    parts = []
+    for c in comps:
+        argument = _linear(int(c["m"]), int(c.get("claimed_t", c["t"])))
+        parts.append(_progression_paragraph(claim, c, cite, f"the class $a({argument})$"))
+    return " ".join([head, *parts])
+
+
+def _linear(m: int, t: int | None) -> str:
+    """``mn + t`` as an argument: ``n``, ``5n``, ``5n+4``, ``5n-1`` (``t`` None: ``mn`` with nothing after)."""
+    head = "n" if m == 1 else f"{m}n"
+    if not t:
+        return head
+    return f"{head}+{t}" if t > 0 else f"{head}-{-t}"
 
 
 def _side_tex(text: str) -> str:
@@ -361,6 +401,18 @@ def _congruence_paragraph(claim: ClaimResult, cert: dict[str, Any], cite: _Cites
         )
     else:
         parts[0] = parts[0].replace(" (weights", f" on ${_group(level)}$ (weights", 1)
+    rescaled = cert.get("rescaled") if isinstance(cert.get("rescaled"), dict) else None
+    if rescaled is not None:
+        factor, power = rescaled.get("tau_factor"), rescaled.get("q_power")
+        parts[0] = (
+            f"The two sides of {ref} are power series in $q$ whose factors carry fractional powers of $q$; with "
+            f"$\\tau \\mapsto {factor}\\tau$ and $q^{{{power}}}$ divided out of both, they become sums of "
+            f"modular forms (weights {', '.join(weights)}), and the coefficient of $q^n$ of each side is that of "
+            f"$q^{{{_linear(int(factor), -int(Fraction(str(power))))}}}$; {how}."
+        )
+    same_everywhere = all(
+        isinstance(pp.get("frobenius"), dict) and pp["frobenius"].get("same") for pp in cert["prime_powers"]
+    )
     for pp in cert["prime_powers"]:
         p = int(pp["prime"])
         modulus = f"{p}^{{{pp['exponent']}}}" if int(pp["exponent"]) > 1 else str(p)
@@ -368,6 +420,16 @@ def _congruence_paragraph(claim: ClaimResult, cert: dict[str, Any], cite: _Cites
         working = modulus if scale == 1 else f"{p}^{{{int(pp['exponent']) + _exponent(scale, p)}}}"
         steps = []
         lift = pp.get("frobenius")
+        if isinstance(lift, dict) and lift.get("same"):
+            steps.append(
+                "the eta quotients of both sides are replaced by the ones congruent to them modulo "
+                f"${modulus}$ coefficientwise, $\\eta({p}\\delta\\tau)^{{{p}^{{e-1}}u}} \\equiv "
+                f"\\eta(\\delta\\tau)^{{{p}^e u}}$ (as $(1-x)^{{{p}}} \\equiv 1-x^{{{p}}}$ modulo ${p}$), and both "
+                f"become ${_side_tex(str(lift.get('left', '')))}$ {cite('swinnerton-dyer')}: the two sides are "
+                f"congruent modulo ${modulus}$ to one and the same series"
+            )
+            parts.append(f"Modulo ${modulus}$: " + "; ".join(steps) + ".")
+            continue
         if isinstance(lift, dict):
             steps.append(
                 "the eta quotients of both sides are first replaced by the ones congruent to them modulo "
@@ -424,7 +486,10 @@ def _congruence_paragraph(claim: ClaimResult, cert: dict[str, Any], cite: _Cites
             )
         parts.append(f"Modulo ${modulus}$: " + "; ".join(steps) + ".")
     every = "every $n$" if n_class is None else "every $n \\geq 1$ of that class"
-    parts.append(f"By Sturm's theorem modulo prime powers {cite('sturm')}, {ref} holds for {every}.")
+    if same_everywhere:
+        parts.append(f"Hence {ref} holds for {every}.")
+    else:
+        parts.append(f"By Sturm's theorem modulo prime powers {cite('sturm')}, {ref} holds for {every}.")
     return " ".join(parts)
 
 
