@@ -343,7 +343,7 @@ def _components_paragraph(claim: ClaimResult, prog: dict[str, Any], cite: _Cites
         head = f"{ref[:1].upper()}{ref[1:]} is one congruence for each listed class."
     parts = []
     for c in comps:
-        argument = _linear(int(c["m"]), int(c.get("claimed_t", c["t"])))
+        argument = _linear(int(c["m"]), int(c["claimed_t"] if "claimed_t" in c else c["t"]))
         parts.append(_progression_paragraph(claim, c, cite, f"the class $a({argument})$"))
     return " ".join([head, *parts])
 
