@@ -126,6 +126,8 @@ def describe(expr: ir.Expr) -> str:
             return str(registry.eta_quotient(expr.params).label())
         return expr.text.lstrip("\\") if expr.key == "Delta" else expr.text
     if isinstance(expr, ir.Sum) and expr.left is not None and expr.right is not None:
+        if isinstance(expr.left, ir.Const) and isinstance(expr.right, ir.Const):
+            return str(expr.left.value + expr.sign * expr.right.value)  # 1 - 1 (a lifted constant term) is 0
         return f"{describe(expr.left)} {'+' if expr.sign > 0 else '-'} ({describe(expr.right)})"
     if isinstance(expr, ir.Product) and expr.left is not None and expr.right is not None:
         return f"({describe(expr.left)}) ({describe(expr.right)})"
