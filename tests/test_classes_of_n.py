@@ -234,3 +234,39 @@ def test_a_symbol_equal_to_zero_is_the_class_of_multiples() -> None:
     (claim,) = check_text(text).claims
     assert claim.verdict == "refuted"
     assert claim.outcome.first_difference is not None and claim.outcome.first_difference["n"] == 23
+
+
+@pytest.mark.parametrize(
+    ("qualifier", "cls", "start"),
+    [
+        (r"\quad (n \equiv 4 \pmod{5}, \ n \ge 10)", lambda n: n % 5 == 4, 10),
+        (r"\quad (n \ge 3, n \text{ odd})", ODD, 3),
+        (r"\quad (n \equiv 1 \pmod 8,\quad n \geq 5)", mod8(1), 5),
+        (r"\quad ((n, 5) = 1, \ n \ge 2)", lambda n: math.gcd(n, 5) == 1, 2),
+    ],
+)
+def test_a_class_and_a_range_in_one_pair_of_parentheses(qualifier: str, cls: Pred, start: int) -> None:
+    # Regression: a class and a range written together were a syntax error.
+    parsed = parse_row(r"a(n) \equiv 0 \pmod 2 " + qualifier)
+    assert not hasattr(parsed, "code"), parsed
+    (statement,) = parsed.statements  # type: ignore[union-attr]
+    assert statement.n_class is not None and statement.start is not None
+    assert statement.start[1] == start
+    assert {n for n in range(1, 200) if n in statement.n_class} == {n for n in range(1, 200) if cls(n)}
+
+
+def test_partition_congruences_with_a_class_and_a_range() -> None:
+    # p(n) = 0 mod 5 for n = 4 mod 5 (Ramanujan 1919; Hardy, Ramanujan, Ch. VI); its neighbour on
+    # n = 3 mod 5 first fails at n = 13 >= 10 (p(13) = 101, sympy), not at n = 3 or 8 below the range.
+    from sympy import partition
+
+    first = next(n for n in range(10, N) if n % 5 == 3 and int(partition(n)) % 5)
+    assert first == 13
+    doc = (
+        "%@claim\n\\[ p(n) \\equiv 0 \\pmod{5} \\quad (n \\equiv 4 \\pmod{5}, \\ n \\ge 10) \\]\n"
+        "%@claim\n\\[ p(n) \\equiv 0 \\pmod{5} \\quad (n \\equiv 3 \\pmod{5}, \\ n \\ge 10) \\]\n"
+    )
+    true, false = check_text(doc, "c.tex").to_dict()["claims"]
+    assert true["verdict"] == "proved", true["message"]
+    assert false["verdict"] == "refuted" and false["first_difference"]["n"] == first
+    assert false["first_difference"]["left"] == str(partition(first))

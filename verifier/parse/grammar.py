@@ -522,6 +522,14 @@ class _ToAst:
     def q_class(self, meta: Any, items: list[Any]) -> tuple[str, ast.NClass]:
         return ("class", _class_of(str(items[0]), meta.start_pos))
 
+    def q_class_range(self, meta: Any, items: list[Any]) -> tuple[str, tuple[ast.NClass, tuple[str, int]]]:
+        # (n \equiv 1 \pmod 8, \ n \ge 5): the class and the range, split by _grouped_row.
+        text = str(items[0])
+        found = _RANGE_INSIDE.search(text)
+        assert found is not None, text
+        rest = text[: found.start()] + text[found.end() :]
+        return ("class+start", (_class_of(rest, meta.start_pos), (found.group(1), int(found.group(2)))))
+
     def residue_values(self, meta: Any, items: list[Any]) -> tuple[int, ...]:
         # In the author's order, without repeats.
         return tuple(dict.fromkeys(_literal(str(t), t.start_pos) for t in items))
@@ -961,6 +969,7 @@ def _class_of(text: str, offset: int) -> ast.NClass:
 
 
 _RANGE_PARTS = re.compile(r"([a-z])\s*(?:\\geq?|>=|\\geqslant)\s*(-?\d+)\s*\)$")
+_RANGE_INSIDE = re.compile(r"([a-z])\s*(?:\\geq?|>=|\\geqslant)(?![A-Za-z])\s*(-?\d+)")
 
 
 _PAREN_FRAC = re.compile(r"^\(\s*\\[dt]?frac\s*\{\s*([^{}]*?)\s*\}\s*\{\s*([^{}]*?)\s*\}\s*\)$")
@@ -1044,6 +1053,9 @@ def _group_row(span: ast.Span, items: list[Any]) -> ast.Row:
                 iff[-2] = True
         else:
             key, payload = value
+            if key == "class+start":  # a class and a range in one pair of parentheses
+                payload, quals[-1]["start"] = payload
+                key = "class"
             if key == "class" and "class" in quals[-1]:
                 payload = quals[-1]["class"].meet(payload)  # two classes: n in both
             quals[-1][key] = payload
