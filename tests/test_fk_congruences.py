@@ -102,7 +102,7 @@ def test_a_sum_with_a_constant_is_compared_but_not_rescaled() -> None:
     assert first_failure({1: 2}, {2: 1}, 2) is None
     c = claim("f_1^2 - 1 \\equiv f_2 - 1 \\pmod 2")
     assert c["verdict"] == "unproven"
-    assert "agree modulo 2 for 1 <= n <= 401" in c["message"] and "different powers of q" in c["message"]
+    assert "agree modulo 2 for 0 <= n <= 400" in c["message"] and "different powers of q" in c["message"]
     # Its false neighbour is refuted at the first n where f_1^2 and f_4 differ modulo 2.
     wrong = claim("f_1^2 - 1 \\equiv f_4 - 1 \\pmod 2")
     assert wrong["verdict"] == "refuted" and wrong["first_difference"]["n"] == first_failure({1: 2}, {4: 1}, 2)

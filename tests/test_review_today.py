@@ -81,11 +81,6 @@ def first_failure(a: list[int], b: list[int], modulus: int, start: int) -> int |
 # -- (a) regressions: wrong or unusable answers found in the review ------------------------------
 
 
-@pytest.mark.xfail(
-    strict=True,
-    reason="a congruence between series is read for n >= 1: the reported first difference skips q^0 "
-    "(f_1^8 = 3 f_2^4 (mod 4) differs first at n = 0, 1 vs 3; reported n = 8)",
-)
 def test_first_difference_of_a_series_congruence_includes_the_constant_term() -> None:
     left, right = [(1, 0, {1: 8})], [(3, 0, {2: 4})]
     a, b = series(left), series(right)
@@ -96,9 +91,10 @@ def test_first_difference_of_a_series_congruence_includes_the_constant_term() ->
     assert c["first_difference"]["n"] == n
 
 
-# True by FROB (the two sides are congruent term by term), proved, but the re-checker cannot
-# evaluate the certificate: a constant other than 1 (or a power of q) in front of an eta quotient
-# with negative exponents, proved by the "same series" shortcut.
+# True by FROB (the two sides are congruent term by term) and proved by the "same series" shortcut.
+# Regression: the re-checker could not evaluate these certificates (a constant factor cut the precision
+# of an eta quotient with a pole at infinity, and an eta quotient whose order exceeded the precision
+# came back with too little of it).
 RECHECK_FAILS = [
     ([(-1, 0, {2: -1})], [(-1, 0, {1: -2})], 2),
     ([(3, 2, {1: -4})], [(3, 2, {2: -2})], 2),
@@ -107,9 +103,6 @@ RECHECK_FAILS = [
 ]
 
 
-@pytest.mark.xfail(
-    strict=True, reason="recheck-failed: 'the coefficient of q^k is not known' on a proved same-series certificate"
-)
 @pytest.mark.parametrize(("left", "right", "modulus"), RECHECK_FAILS)
 def test_same_series_certificates_with_a_factor_in_front_are_rechecked(
     left: list[Term], right: list[Term], modulus: int
@@ -142,7 +135,7 @@ def test_a_true_sum_of_products_of_different_weights_is_no_error(
 
 # -- (b) adversarial claims answered correctly --------------------------------------------------
 
-# (left, right, modulus, range start or None, source); a series congruence is read for n >= 1.
+# (left, right, modulus, range start or None, source); a series congruence is read for n >= 0.
 SERIES = [
     ([(1, 0, {5: 2})], [(1, 0, {1: 10})], 5, None, FROB),
     ([(-1, 0, {2: 1, 7: 1})], [(-1, 0, {1: 7, 2: 1})], 7, None, FROB),

@@ -60,6 +60,11 @@ class ArithmeticClaim:
     modulus: int | None = None
     n_class: NClass | None = None  # stated only on this class of n (docs/method.md#classes-of-n)
 
+    @property
+    def of_forms(self) -> bool:
+        """Whether both sides are forms (their coefficients), so n = 0 is a coefficient like any other."""
+        return all(isinstance(s, t.Fun) and s.name == "coef" for s in (self.left, self.right))
+
     def covers(self, n: int) -> bool:
         """Whether the claim speaks about n (its range, and its class of n when it has one)."""
         return n >= self.start and (self.n_class is None or n in self.n_class)
@@ -140,7 +145,9 @@ def _read_sequences(claim: ParsedClaim) -> SequenceReading | Unread | None:
     var = next(iter(free)) if free else None
     if var is None and any(isinstance(s, t.Fun) and s.name == "coef" and isinstance(s.arg, t.Var) for s in sides):
         var = "n"
-    start = claim.start_n if claim.start_n is not None else (0 if rel == "≡" and not free else 1)
+    # A congruence between forms is one between power series: their constant terms are part of it.
+    forms_only = all(isinstance(s, t.Fun) and s.name == "coef" for s in sides)
+    start = claim.start_n if claim.start_n is not None else (0 if rel == "≡" and (not free or forms_only) else 1)
     n_class = claim.n_class
     if n_class is not None:
         if var is None or n_class.var != var:

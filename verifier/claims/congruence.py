@@ -159,7 +159,8 @@ def prove_modulo(
     if not decision.proved and decision.witness is None and decision.undefined is None and claim.n_class is None:
         decision = _frobenius(decision, sides, attempt, claim.modulus)
     if decision.proved:
-        check = first_direct_difference(claim, values, max(claim.start, 1), claim.start + CHECK)
+        low = claim.start if claim.of_forms else max(claim.start, 1)
+        check = first_direct_difference(claim, values, low, claim.start + CHECK)
         if check is not None:
             return Outcome(
                 "error", kind, "internal inconsistency in a congruence proof; please report this claim", code="internal"
@@ -167,7 +168,7 @@ def prove_modulo(
         return Outcome(
             "proved",
             kind,
-            f"for all n >= {max(claim.start, 1)}{_on(claim)}, modulo {claim.modulus}: {decision.reason}",
+            f"for all n >= {low}{_on(claim)}, modulo {claim.modulus}: {decision.reason}",
             method="sturm-congruence",
             bound=decision.bound,
             components=decision.details,

@@ -121,7 +121,10 @@ def eta_quotient(pairs: list[tuple[int, int]], prec: int) -> Series:
         raise TooLarge("the eta quotient has a fractional power of q in front")
     shift = total // 24
     rel = prec - shift
-    out = Series.constant(Fraction(1), max(rel, 0))
+    if rel <= 0:
+        # Every coefficient below q^shift is 0: nothing of the product is needed below prec.
+        return Series(shift, [], shift)
+    out = Series.constant(Fraction(1), rel)
     for d, r in pairs:
         base = euler(-(-rel // d)) if r > 0 else partitions(-(-rel // d))
         out = out * base.inflate(d).truncate(rel).power(abs(r))

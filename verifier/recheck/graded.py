@@ -406,6 +406,12 @@ class Evaluator:
                 return g_add(na, nb, sign), None
             return g_add(_times(na, db), _times(nb, da), sign), _times(da, db)
         if head == "*":
+            for c, other in ((args[0], args[1]), (args[1], args[0])):
+                if isinstance(c, Fraction):
+                    # A constant factor scales: multiplying by the constant series would cut the
+                    # precision of a factor with a pole at infinity (c q^-1 + ...) by its order.
+                    n, d = self.side(other)
+                    return {key: s.scale(c) for key, s in n.items()}, d
             (na, da), (nb, db) = self.side(args[0]), self.side(args[1])
             return g_mul(na, nb), _opt_mul(da, db)
         if head == "/":
