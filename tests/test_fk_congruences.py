@@ -181,3 +181,30 @@ def test_a_class_certificate_that_does_not_cover_the_class_fails_the_recheck() -
         {**record, "n_class": {"modulus": 5, "residues": [3]}},
     ):
         assert recheck({**cert, "progression": bad}).status != CONFIRMED
+
+
+def test_an_integral_power_of_q_in_front_is_divided_out() -> None:
+    # Regression: f_1^24 = q^-1 eta(tau)^24 needs no rescaling, and the congruence proof met the power
+    # of q and answered "no proof applies: Shift".  f_1^24 = f_2^12 (mod 8) follows from f_1^2 = f_2
+    # (mod 2) by squaring three times (common practice); not modulo 16.
+    assert first_failure({1: 24}, {2: 12}, 8) is None and first_failure({1: 24}, {2: 12}, 16) is not None
+    c = claim("f_1^{24} \\equiv f_2^{12} \\pmod 8")
+    assert c["verdict"] == "proved", c["message"]
+    assert c["message"].startswith("q^{-1} in front of both sides divided out")
+    assert recheck(c["certificate"]).status == CONFIRMED
+    wrong = claim("f_1^{24} \\equiv f_2^{12} \\pmod{16}")
+    assert wrong["verdict"] == "refuted" and wrong["first_difference"]["n"] == first_failure({1: 24}, {2: 12}, 16)
+
+
+def test_an_unproven_class_says_which_n_were_computed() -> None:
+    # p(7n+5) = 0 (mod 49) for n = 2 (mod 7), i.e. p(49n' + 19) = 0 (mod 49): true, from Ramanujan's
+    # sum p(7n+5) q^n = 7 f_7^3/f_1^4 + 49 q f_7^7/f_1^8 (Hardy, Ramanujan, Ch. VI) and Jacobi's f_1^3,
+    # whose coefficients vanish mod 7 off the triangular numbers 0, 1, 3 mod 7 (from memory; checked
+    # here with sympy).  U_49 cannot reach the class 19 mod 49, so it stays unproven, and the message
+    # counts the author's n, not n'.
+    from sympy import partition
+
+    assert all(int(partition(49 * k + 19)) % 49 == 0 for k in range(30))
+    c = claim("p(7n+5) \\equiv 0 \\pmod{49} \\quad (n \\equiv 2 \\pmod 7)", "")
+    assert c["verdict"] == "unproven", c["message"]
+    assert "for the n = 2 + 7n' below" in c["message"]

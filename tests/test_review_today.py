@@ -113,6 +113,7 @@ def test_same_series_certificates_with_a_factor_in_front_are_rechecked(
     assert recheck(c["certificate"]).status == CONFIRMED
 
 
+# Regression: these were an 'error' (a sum of different weights); in a congruence a side is a power series.
 # True by CRT: f_1^6 = f_2^3 (mod 2) and f_1^6 = f_3^2 (mod 3), so f_1^6 = 3 f_2^3 - 2 f_3^2 (mod 6);
 # likewise f_1^12 = 9 f_2^6 + 4 f_3^4 (mod 12) (f_1^12 = f_2^6 mod 4, = f_3^4 mod 3).
 CRT_ERRORS = [
@@ -122,9 +123,6 @@ CRT_ERRORS = [
 ]
 
 
-@pytest.mark.xfail(
-    strict=True, reason="verdict 'error' ('this sum adds weight 3/2 and weight 1') on a true sum of products of f_k"
-)
 @pytest.mark.parametrize(("left", "right", "modulus"), CRT_ERRORS)
 def test_a_true_sum_of_products_of_different_weights_is_no_error(
     left: list[Term], right: list[Term], modulus: int

@@ -34,7 +34,7 @@ from verifier.claims.kind import ParsedClaim, Reading, Unread, certified
 from verifier.elaborate import ir
 from verifier.elaborate.elaborator import Problem
 from verifier.elaborate.rescale import rescale_expr, rescale_factor, rescale_side
-from verifier.elaborate.shift import classify, strip_side
+from verifier.elaborate.shift import classify, has_shift, strip_side
 from verifier.numbers import prime_factors
 from verifier.parse.ast import NClass
 from verifier.prove import certificate
@@ -122,8 +122,13 @@ def _read_sequences(claim: ParsedClaim) -> SequenceReading | Unread | None:
     sides: list[Any] = []
     for node in (left_node, right_node):
         if not uses_arithmetic(node, forms, matrices) and by_coefficients:
-            # A form in a congruence stands for its sequence of coefficients.
-            side = elaborator.side(node, text.text)
+            # A form in a congruence stands for its sequence of coefficients: a sum of forms of
+            # different weights is a power series like any other, compared weight by weight.
+            elaborator.allow_mixed = True
+            try:
+                side = elaborator.side(node, text.text)
+            finally:
+                elaborator.allow_mixed = False
             if isinstance(side, Problem):
                 return Unread(kind, side.code, side.message, side.hint, at=side.span[0])
             if side.printed:
@@ -274,7 +279,9 @@ def _decide(prover: Prover, claim: ArithmeticClaim, values: Values, prove_modulo
     try:
         left = generating_function(claim.left, claim.var, values)
         right = generating_function(claim.right, claim.var, values)
-        if fractional_shift(left) or fractional_shift(right):
+        # The congruence proof needs forms: an integral power of q in front is divided out too.
+        shifted = claim.modulus is not None and (has_shift(left) or has_shift(right))
+        if fractional_shift(left) or fractional_shift(right) or shifted:
             rescaled = _rescaled(prover, claim, left, right)
     except Untranslatable as exc:
         modulo = "" if claim.modulus is None else f" modulo {claim.modulus}"
@@ -370,7 +377,8 @@ class Rescaled:
     power: Fraction  # c
 
     def note(self) -> str:
-        return f"read with tau -> {self.factor} tau, q^{{{_fmt(self.power)}}} in front of both sides divided out"
+        divided = f"q^{{{_fmt(self.power)}}} in front of both sides divided out"
+        return divided if self.factor == 1 else f"read with tau -> {self.factor} tau, {divided}"
 
     def annotate(self, outcome: Outcome) -> Outcome:
         """The outcome of the rescaled claim, saying how it was rescaled (message and certificate)."""
@@ -395,7 +403,7 @@ def _rescaled(prover: Prover, claim: ArithmeticClaim, left: ir.Expr, right: ir.E
     power = classify(*sides)
     if power is None:
         raise Untranslatable(
-            "a generating function with a fractional power of q whose terms carry different powers of q after rescaling"
+            "the terms of the generating functions carry different powers of q (after rescaling to integral exponents)"
         )
     if power.denominator != 1:
         raise Untranslatable("a generating function with a fractional power of q that no rescaling removes")

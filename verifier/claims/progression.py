@@ -723,10 +723,13 @@ def _unproven(claim: Claim, prog: Progression, reason: str) -> Outcome:
         return refuted(claim.kind, claim.what, claim.author_n(n), a, b, claim.modulus)
     mod = f" modulo {claim.modulus}" if claim.modulus is not None else ""
     start = claim.start
-    held = f"holds{mod} for {start} <= n < {result.exact + start}"
+    if claim.step == 1:
+        held = f"holds{mod} for {start} <= n < {claim.author_n(result.exact)}"
+    else:  # the n of a class: n = start + step n'
+        held = f"holds{mod} for the n = {start} + {claim.step}n' below {claim.author_n(result.exact)}"
     if result.screened > result.exact:
         held += (
-            f" (exact values), and agrees modulo the prime 2^61 - 1 for n < {result.screened + start} "
+            f" (exact values), and agrees modulo the prime 2^61 - 1 for n < {claim.author_n(result.screened)} "
             "(an agreement, not a proof)"
         )
     else:
