@@ -514,11 +514,8 @@ def search(
     step = DIRECT
     done = 0
     exact_done = 0
-    span = max(DIRECT, (EXACT_SPAN - prog.t) // prog.m + 1)  # n computed exactly before any screening
     while done < upto:
         count = min(upto, max(step, 2 * done))
-        if done < span < count:
-            count = span
         if rhs is None and modulus is not None:
             n = next((i for i, x in enumerate(prog.values(count, modulus)) if x), None)
             if n is not None:
@@ -534,7 +531,7 @@ def search(
                     return Search((n, prog.exact(n), Fraction(sum_coefficients(rhs, n + 1)[n])), n, n)
                 done = exact_done = count
                 continue
-        if rhs is not None and modulus is None and not exact and count > span:
+        if rhs is not None and modulus is None and not exact and count > DIRECT:
             screened = sum_residues(rhs, count, SCREEN_PRIME)
             if screened is not None:
                 residues = prog.values(count, SCREEN_PRIME)
@@ -549,6 +546,18 @@ def search(
         if n is not None:
             return Search((n, values[n], Fraction(targets[n]) if targets is not None else Fraction(0)), n, n)
         done = exact_done = count
+    # No failure: the agreement beyond the first terms was screened modulo a prime only.  The
+    # values are compared exactly through EXACT_SPAN coefficients of F once, so that the answer
+    # can say how far the sides agree exactly (a refutation never needs this: its exact values
+    # are computed up to the failure).
+    span = min(done, max(DIRECT, (EXACT_SPAN - prog.t) // prog.m + 1))
+    if rhs is not None and exact_done < span:
+        values = prog.values(span)
+        targets = sum_coefficients(rhs, span)
+        n = first_failure(values, targets, modulus)
+        if n is not None:
+            return Search((n, values[n], Fraction(targets[n])), n, n)
+        exact_done = span
     return Search(None, exact_done, done)
 
 
