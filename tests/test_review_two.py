@@ -96,6 +96,11 @@ def deriv(a: Series) -> Series:
     return [n * x for n, x in enumerate(a)]
 
 
+def V2(a: Series) -> Series:
+    """a(q^2)."""
+    return [a[n // 2] if n % 2 == 0 else Fraction(0) for n in range(COUNT)]
+
+
 def shifted(a: Series, s: int) -> Series:
     return [Fraction(0)] * s + a[: COUNT - s]
 
@@ -203,6 +208,15 @@ RECHECK_CRASH = [
         2,
         FROB,
     ),
+    # E_2 -> 1 modulo 8 leaves a constant piece even where none is written.
+    ("\\theta^{4} - E_2 \\equiv 0 \\pmod{8}", add(TH4, sc(-1, E2)), const(0), 8, JAC),
+    (
+        "\\Delta(2\\tau) + E_6 \\equiv \\Delta^{2} + 1 \\pmod{2}",
+        add(V2(DELTA), E6),
+        add(mul(DELTA, DELTA), const(1)),
+        2,
+        FROB,
+    ),
 ]
 
 
@@ -231,7 +245,16 @@ CASES: list[Case] = [
     ("E_6 \\equiv 1 \\pmod{504}", E6, const(1), 504, 0, None, True, EIS),
     ("E_4 + E_6 \\equiv 2 \\pmod{24}", add(E4, E6), const(2), 24, 0, None, True, EIS),
     ("E_4 + E_6 \\equiv 2 \\pmod{48}", add(E4, E6), const(2), 48, 0, None, False, "false"),
-    ("E_4 + E_6 + \\Delta \\equiv 2 + \\Delta \\pmod{24}", add(E4, E6, DELTA), add(const(2), DELTA), 24, 0, None, True, EIS),
+    (
+        "E_4 + E_6 + \\Delta \\equiv 2 + \\Delta \\pmod{24}",
+        add(E4, E6, DELTA),
+        add(const(2), DELTA),
+        24,
+        0,
+        None,
+        True,
+        EIS,
+    ),
     ("E_4 + E_6 + E_{8} \\equiv 3 \\pmod{48}", add(E4, E6, E8), const(3), 48, 0, None, False, "false"),
     ("E_2 \\equiv 1 \\pmod{24}", E2, const(1), 24, 0, None, True, EIS),
     ("E_2 \\equiv E_4 \\pmod{48}", E2, E4, 48, 0, None, False, "false"),
@@ -251,12 +274,30 @@ CASES: list[Case] = [
     ("\\theta^2 \\equiv 1 + 4\\Delta \\pmod 4", mul(TH, TH), add(const(1), sc(4, DELTA)), 4, 0, None, True, JAC),
     ("\\theta + E_4 \\equiv \\theta + 2 \\pmod{240}", add(TH, E4), add(TH, const(2)), 240, 0, None, False, "false"),
     ("\\theta + E_2 \\equiv \\theta + 1 \\pmod{8}", add(TH, E2), add(TH, const(1)), 8, 0, None, False, EIS),
-    ("\\theta^3 + E_6 \\equiv \\theta^3 + 1 \\pmod{1008}", add(mul(TH, TH, TH), E6), add(mul(TH, TH, TH), const(1)), 1008, 0, None, False, "false"),
+    (
+        "\\theta^3 + E_6 \\equiv \\theta^3 + 1 \\pmod{1008}",
+        add(mul(TH, TH, TH), E6),
+        add(mul(TH, TH, TH), const(1)),
+        1008,
+        0,
+        None,
+        False,
+        "false",
+    ),
     ("\\Delta \\equiv \\theta(\\tau) \\pmod 2", DELTA, TH, 2, 0, None, False, "false at q^0"),
     ("\\Delta \\equiv 0 \\pmod{2} \\quad (n \\text{ even})", DELTA, const(0), 2, 1, EVEN, True, TAU),
     ("\\Delta \\equiv 1 \\pmod{2} \\quad (n \\text{ odd})", DELTA, const(1), 2, 1, ODD, False, "false"),
     ("E_4 \\equiv E_6 \\pmod{2} \\quad (n \\ge 0)", E4, E6, 2, 0, None, True, EIS),
-    ("\\tau(n) \\equiv \\sigma_{11}(n) \\pmod{691}", DELTA, [Fraction(0)] + [Fraction(int(divisor_sigma(n, 11))) for n in range(1, COUNT)], 691, 1, None, True, TAU),
+    (
+        "\\tau(n) \\equiv \\sigma_{11}(n) \\pmod{691}",
+        DELTA,
+        [Fraction(0)] + [Fraction(int(divisor_sigma(n, 11))) for n in range(1, COUNT)],
+        691,
+        1,
+        None,
+        True,
+        TAU,
+    ),
 ]
 
 
@@ -295,12 +336,57 @@ SHIFTS: list[Case] = [
     ("q^2 f_4^{6} \\equiv q^2 f_8^{3} \\pmod 4", eta({4: 6}, 2), eta({8: 3}, 2), 4, 0, None, False, "false"),
     ("q^{-1} \\Delta \\equiv f_5^{4} f_1^{4} \\pmod 5", eta({1: 24}), eta({1: 4, 5: 4}), 5, 0, None, True, FROB),
     ("q^{-1} \\Delta \\equiv f_5^{4} f_1^{4} \\pmod{25}", eta({1: 24}), eta({1: 4, 5: 4}), 25, 0, None, False, "false"),
-    ("\\frac{q^{2}}{f_1^{24}} \\equiv \\frac{q^{2}}{f_2^{12}} \\pmod{8}", eta({1: -24}, 2), eta({2: -12}, 2), 8, 0, None, True, FROB),
-    ("q^{2} f_1^{24} \\equiv q \\Delta(\\tau) + q^2 f_3^8 \\pmod{3}", eta({1: 24}, 2), add(shifted(DELTA, 1), eta({3: 8}, 2)), 3, 0, None, False, "false"),
+    (
+        "\\frac{q^{2}}{f_1^{24}} \\equiv \\frac{q^{2}}{f_2^{12}} \\pmod{8}",
+        eta({1: -24}, 2),
+        eta({2: -12}, 2),
+        8,
+        0,
+        None,
+        True,
+        FROB,
+    ),
+    (
+        "q^{2} f_1^{24} \\equiv q \\Delta(\\tau) + q^2 f_3^8 \\pmod{3}",
+        eta({1: 24}, 2),
+        add(shifted(DELTA, 1), eta({3: 8}, 2)),
+        3,
+        0,
+        None,
+        False,
+        "false",
+    ),
     ("q^2 E_4 \\equiv q^2 E_6 \\pmod{24} \\quad (n \\ge 3)", shifted(E4, 2), shifted(E6, 2), 24, 3, None, True, EIS),
-    ("q^2 E_4 \\equiv 2q^2 E_6 \\pmod{240} \\quad (n \\ge 3)", shifted(E4, 2), shifted(sc(2, E6), 2), 240, 3, None, False, "false"),
-    ("E_4 + \\eta(4\\tau)^{6} \\equiv 1 + \\eta(\\tau)^{24} \\pmod{2}", add(E4, eta({4: 6}, 1)), add(const(1), DELTA), 2, 0, None, True, FROB),
-    ("E_6 + \\eta(4\\tau)^{6} \\equiv 1 + \\eta(8\\tau)^{3} \\pmod{4}", add(E6, eta({4: 6}, 1)), add(const(1), eta({8: 3}, 1)), 4, 0, None, False, "false"),
+    (
+        "q^2 E_4 \\equiv 2q^2 E_6 \\pmod{240} \\quad (n \\ge 3)",
+        shifted(E4, 2),
+        shifted(sc(2, E6), 2),
+        240,
+        3,
+        None,
+        False,
+        "false",
+    ),
+    (
+        "E_4 + \\eta(4\\tau)^{6} \\equiv 1 + \\eta(\\tau)^{24} \\pmod{2}",
+        add(E4, eta({4: 6}, 1)),
+        add(const(1), DELTA),
+        2,
+        0,
+        None,
+        True,
+        FROB,
+    ),
+    (
+        "E_6 + \\eta(4\\tau)^{6} \\equiv 1 + \\eta(8\\tau)^{3} \\pmod{4}",
+        add(E6, eta({4: 6}, 1)),
+        add(const(1), eta({8: 3}, 1)),
+        4,
+        0,
+        None,
+        False,
+        "false",
+    ),
 ]
 
 
