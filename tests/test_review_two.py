@@ -135,11 +135,8 @@ EVEN: Callable[[int], bool] = lambda n: n % 2 == 0  # noqa: E731
 DEFINES = "%@define F = E_4\n%@define T = \\theta^4\n%@define H = 240\\Delta\n"
 
 
-@pytest.mark.xfail(
-    strict=True,
-    reason="a_F(n) = a_H(n) (mod 240) is read from n = 0 (both sides are forms) and refuted at n = 0, while the "
-    "same claim written a_F(n) - a_H(n) = 0 (mod 240) is read from n = 1 and proved",
-)
+# Regression (these three): a claim written with n (a_F(n), r_4(n)) is about a sequence and starts at
+# n = 1; only a congruence written between forms, with no n, speaks of q^0.
 def test_a_rearranged_coefficient_congruence_gets_the_same_verdict() -> None:
     # F = E_4, H = 240 Delta: a_F(n) - a_H(n) = 240 (sigma_3(n) - tau(n)) for n >= 1 (EIS), 1 at n = 0.
     diff = add(E4, sc(-240, DELTA))
@@ -149,11 +146,6 @@ def test_a_rearranged_coefficient_congruence_gets_the_same_verdict() -> None:
     assert one["verdict"] == other["verdict"], (one["message"], other["message"])
 
 
-@pytest.mark.xfail(
-    strict=True,
-    reason="a_F(n) = 0 (mod 240) with F = E_4 is refuted at n = 0 (it was proved for n >= 1), while "
-    "a_F(n) = 0 sigma_3(n) (mod 240), the same sequence claim, is proved for n >= 1",
-)
 def test_a_coefficient_congruence_with_zero_reads_like_one_with_an_arithmetic_zero() -> None:
     assert first_failure(E4, const(0), 240, 1) is None  # EIS
     one = run("a_F(n) \\equiv 0 \\pmod{240}", DEFINES)
@@ -161,11 +153,6 @@ def test_a_coefficient_congruence_with_zero_reads_like_one_with_an_arithmetic_ze
     assert one["verdict"] == other["verdict"], (one["message"], other["message"])
 
 
-@pytest.mark.xfail(
-    strict=True,
-    reason="r_4(n) and a_T(n) (T = theta^4) are the same sequence, r_4(0) = a_T(0) = 1 (docs/method.md "
-    "arithmetic functions); r_4(n) = 0 (mod 8) is proved for n >= 1, a_T(n) = 0 (mod 8) refuted at n = 0",
-)
 def test_r4_and_the_coefficients_of_theta4_get_the_same_verdict() -> None:
     assert first_failure(TH4, const(0), 8, 1) is None  # JAC: r_4(n) = 8 sigma(n) - 32 sigma(n/4)
     one = run("r_4(n) \\equiv 0 \\pmod 8", DEFINES)
@@ -173,8 +160,10 @@ def test_r4_and_the_coefficients_of_theta4_get_the_same_verdict() -> None:
     assert one["verdict"] == other["verdict"], (one["message"], other["message"])
 
 
-# A class of n that contains 0, on a congruence between forms whose constant terms differ: the forms are
-# compared from q^0 without a class (refuted at n = 0), but the class is read on n >= 1 and the claim proved.
+# A class of n that contains 0, on a congruence between forms whose constant terms differ.  Decision:
+# a class of n is read on n >= 1 (docs/method.md#classes-of-n), because the twists that restrict a
+# form to a class do not see q^0; the message says so.  Without a class the same forms are compared
+# from q^0 and the claim is refuted at n = 0.
 CLASS_AT_ZERO = [
     ("E_4 \\equiv 0 \\pmod{240} \\quad (n \\text{ even})", E4, const(0), 240),
     ("E_4 \\equiv 0 \\pmod{240} \\quad (n \\equiv 0 \\pmod 2)", E4, const(0), 240),
@@ -182,19 +171,19 @@ CLASS_AT_ZERO = [
 ]
 
 
-@pytest.mark.xfail(
-    strict=True,
-    reason="a class of n is read on n >= 1 (docs/method.md#classes-of-n) although a congruence between "
-    "forms speaks of q^0: a narrower claim than the refuted E_4 = 0 (mod 240) is proved",
-)
 @pytest.mark.parametrize(("body", "left", "right", "modulus"), CLASS_AT_ZERO)
-def test_a_class_containing_zero_keeps_the_constant_term(body: str, left: Series, right: Series, modulus: int) -> None:
-    assert first_failure(left, right, modulus, 0, EVEN) == 0
-    assert run(body)["verdict"] != "proved"
+def test_a_class_containing_zero_is_read_from_n_1_and_says_so(
+    body: str, left: Series, right: Series, modulus: int
+) -> None:
+    assert first_failure(left, right, modulus, 0, EVEN) == 0 and first_failure(left, right, modulus, 1, EVEN) is None
+    c = run(body)
+    assert c["verdict"] == "proved" and c["message"].startswith("for all n >= 1 with n ")
+    bare = run(body.split("\\quad")[0])
+    assert bare["verdict"] == "refuted" and bare["first_difference"]["n"] == 0
 
 
-# True claims, proved, whose certificates (a weight-0 constant piece and a joint Sturm bound B >= 1)
-# make the re-checker raise IndexError instead of answering.
+# True claims, proved, whose certificates have a weight-0 constant piece and a joint Sturm bound B >= 1.
+# Regression: the re-checker raised IndexError on them (a constant series stores one coefficient).
 RECHECK_CRASH = [
     ("\\theta^4 \\equiv 1 \\pmod 8", TH4, const(1), 8, JAC),
     ("E_4 + E_6 + E_{8} \\equiv 3 \\pmod{24}", add(E4, E6, E8), const(3), 24, EIS),
@@ -220,7 +209,6 @@ RECHECK_CRASH = [
 ]
 
 
-@pytest.mark.xfail(strict=True, reason="re-checker: IndexError on a constant piece when the Sturm bound is >= 1")
 @pytest.mark.parametrize(("body", "left", "right", "modulus", "source"), RECHECK_CRASH)
 def test_certificates_with_a_constant_piece_are_rechecked(
     body: str, left: Series, right: Series, modulus: int, source: str

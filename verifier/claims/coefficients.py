@@ -59,11 +59,7 @@ class ArithmeticClaim:
     start: int
     modulus: int | None = None
     n_class: NClass | None = None  # stated only on this class of n (docs/method.md#classes-of-n)
-
-    @property
-    def of_forms(self) -> bool:
-        """Whether both sides are forms (their coefficients), so n = 0 is a coefficient like any other."""
-        return all(isinstance(s, t.Fun) and s.name == "coef" for s in (self.left, self.right))
+    of_forms: bool = False  # written between forms, with no n: a claim about power series, from q^0
 
     def covers(self, n: int) -> bool:
         """Whether the claim speaks about n (its range, and its class of n when it has one)."""
@@ -150,9 +146,10 @@ def _read_sequences(claim: ParsedClaim) -> SequenceReading | Unread | None:
     var = next(iter(free)) if free else None
     if var is None and any(isinstance(s, t.Fun) and s.name == "coef" and isinstance(s.arg, t.Var) for s in sides):
         var = "n"
-    # A congruence between forms is one between power series: their constant terms are part of it.
-    forms_only = all(isinstance(s, t.Fun) and s.name == "coef" for s in sides)
-    start = claim.start_n if claim.start_n is not None else (0 if rel == "≡" and (not free or forms_only) else 1)
+    # A congruence written between forms (E_4 \equiv 1 \pmod{240}) is one between power series: their
+    # constant terms are part of it.  One written with n (a_F(n), r_4(n), sigma_3(n)) is about a
+    # sequence of n and starts at n = 1, like every claim for all n (docs/method.md#claim-congruence).
+    start = claim.start_n if claim.start_n is not None else (0 if rel == "≡" and (not free or not arithmetic) else 1)
     n_class = claim.n_class
     if n_class is not None:
         if var is None or n_class.var != var:
@@ -170,7 +167,7 @@ def _read_sequences(claim: ParsedClaim) -> SequenceReading | Unread | None:
                 "check the class of n",
             )
         start = max(start, 1)  # a class of n is read on n >= 1 (docs/method.md#classes-of-n)
-    found = ArithmeticClaim(sides[0], sides[1], rel, var, start, claim.modulus, n_class)
+    found = ArithmeticClaim(sides[0], sides[1], rel, var, start, claim.modulus, n_class, of_forms=not arithmetic)
     if claim.modulus is None and var is None:
         kind = "value"
     return SequenceReading(found, kind=kind)
@@ -393,7 +390,10 @@ def _rescaled(prover: Prover, claim: ArithmeticClaim, left: ir.Expr, right: ir.E
     """Both generating functions rescaled to integral exponents, or Untranslatable with the reason."""
     if claim.n_class is not None:
         # The class restricts the author's n; after tau -> T tau the exponents are T n - c.
-        raise Untranslatable(f"a generating function with a fractional power of q, on the class {claim.n_class.text}")
+        raise Untranslatable(
+            f"a generating function with a power of q in front of its forms, on the class {claim.n_class.text} "
+            "(the class would have to follow the rescaling)"
+        )
     pair = (ir.Side(left, False), ir.Side(right, False))
     factor = rescale_factor(*pair)
     try:

@@ -173,8 +173,10 @@ def read(
                 if term is None or not _usable(term[0]):
                     return None
                 gen, m, t, what = term
-                # With no range written, the claim starts where the argument m n + t is >= 0.
-                start = start_n if start_n is not None else max(0, -(t // m))
+                # With no range written, the claim starts where the argument m n + t is >= 0, and
+                # at n = 1 when t = 0: a(mn) at n = 0 is the constant term, which a claim for all n
+                # leaves out (as a(n), r_4(n) and sigma(n) claims do, docs/method.md#claim-arithmetic).
+                start = start_n if start_n is not None else (1 if t == 0 else max(0, -(t // m)))
                 if start < 0 or (m == 1 and start > 0 and residues is None):
                     # a(n) = 0 mod M for n >= s > 0 is no progression: the congruence of the
                     # generating function (constant terms removed) decides it.

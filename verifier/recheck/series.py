@@ -43,7 +43,9 @@ class Series:
             raise Unknown(f"the coefficient of q^{n} is not known (precision {self.prec})")
         if n < self.lo:
             return Fraction(0)
-        return self.coeffs[n - self.lo]
+        i = n - self.lo
+        # Stored coefficients may stop before the precision (a constant, a monomial): the rest are 0.
+        return self.coeffs[i] if i < len(self.coeffs) else Fraction(0)
 
     def is_zero(self) -> bool:
         """Whether every known coefficient is 0."""
