@@ -208,3 +208,14 @@ def test_an_unproven_class_says_which_n_were_computed() -> None:
     c = claim("p(7n+5) \\equiv 0 \\pmod{49} \\quad (n \\equiv 2 \\pmod 7)", "")
     assert c["verdict"] == "unproven", c["message"]
     assert "for the n = 2 + 7n' below" in c["message"]
+
+
+def test_a_power_of_q_inside_a_fraction_gets_a_hint() -> None:
+    # q^2 / f_1^4 = q^2 (1/f_1^4), but a power of q that multiplies no form is read as a printed
+    # expansion: the error must say so and show the spelling that is read.  (True claim: 1/f_1^4 =
+    # 1/f_2^2 (mod 2), common practice.)
+    assert first_failure({1: -4}, {2: -2}, 2) is None
+    c = claim("\\frac{-3q^2}{f_1^4} \\equiv \\frac{-3q^2}{f_2^2} \\pmod 2")
+    assert c["verdict"] == "error" and "read as a printed expansion" in c["message"]
+    assert "q^2 \\frac{1}{f_1^4}" in c["hint"]
+    assert claim("-3q^2\\frac{1}{f_1^4} \\equiv -3q^2\\frac{1}{f_2^2} \\pmod 2")["verdict"] == "proved"

@@ -128,7 +128,13 @@ def _read_sequences(claim: ParsedClaim) -> SequenceReading | Unread | None:
             if isinstance(side, Problem):
                 return Unread(kind, side.code, side.message, side.hint, at=side.span[0])
             if side.printed:
-                return Unread(kind, "unsupported", "congruences with printed expansions are not supported")
+                return Unread(
+                    kind,
+                    "unsupported",
+                    "congruences with printed expansions are not supported (a side with a power of q that "
+                    "multiplies no form, such as q^2 or \\frac{3q^2}{f_1^4}, is read as a printed expansion)",
+                    "write the power of q as a factor in front of a form, as in q^2 \\frac{1}{f_1^4} or q^2 E_4",
+                )
             sides.append(coefficients_of(side.expr))
             continue
         try:
