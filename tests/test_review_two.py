@@ -300,9 +300,22 @@ def test_forms_from_q0_and_sums_of_weights(
     confirm: bool,
     source: str,
 ) -> None:
+    _judge(run(body), left, right, modulus, start, member, confirm, source)
+
+
+def _judge(
+    c: dict[str, Any],
+    left: Series,
+    right: Series,
+    modulus: int,
+    start: int,
+    member: Callable[[int], bool] | None,
+    confirm: bool,
+    source: str,
+) -> None:
+    """The verdict on one case against the brute force: proved (and re-checked) or refuted at its first n."""
     n = first_failure(left, right, modulus, start, member or (lambda k: True))
     assert (n is None) == (not source.startswith("false")), "the source and the brute force disagree"
-    c = run(body)
     if n is None:
         assert c["verdict"] == "proved", c["message"]
         if confirm:
@@ -389,17 +402,7 @@ def test_a_power_of_q_in_front(
     confirm: bool,
     source: str,
 ) -> None:
-    n = first_failure(left, right, modulus, start, member or (lambda k: True))
-    assert (n is None) == (not source.startswith("false")), "the source and the brute force disagree"
-    c = run(body, F_K)
-    if n is None:
-        assert c["verdict"] == "proved", c["message"]
-        if confirm:
-            assert recheck(c["certificate"]).status == CONFIRMED
-    else:
-        assert c["verdict"] == "refuted", c["message"]
-        w = c["first_difference"]
-        assert w["n"] == n and (Fraction(w["left"]), Fraction(w["right"])) == (left[n], right[n])
+    _judge(run(body, F_K), left, right, modulus, start, member, confirm, source)
 
 
 # -- (c) altered certificates -----------------------------------------------------------------

@@ -312,10 +312,9 @@ def _decide(prover: Prover, claim: ArithmeticClaim, values: Values, prove_modulo
             return prove_modulo(prover, claim, sides, values, kind)
         stripped = (strip_side(sides[0]), strip_side(sides[1]))
         return rescaled.annotate(prove_modulo(prover, claim, stripped, values, kind))
+    outcome = prover.decide(sides[0], sides[1], "=", unit=Fraction(1 if rescaled is None else rescaled.factor))
     if rescaled is not None:
-        outcome = rescaled.annotate(prover.decide(sides[0], sides[1], "=", unit=Fraction(rescaled.factor)))
-    else:
-        outcome = prover.decide(sides[0], sides[1], "=")
+        outcome = rescaled.annotate(outcome)
     if outcome.verdict == "proved":
         check = first_direct_difference(claim, values, lowest, max(lowest + CHECK, (outcome.bound or 0) + 2))
         if check is not None:
@@ -418,7 +417,7 @@ def _rescaled(prover: Prover, claim: ArithmeticClaim, left: ir.Expr, right: ir.E
         c = [laurent_to(strip_side(s).expr, 1 - int(power), prover.table, prover.max_terms)[-int(power)] for s in sides]
         if _differs(c[0], c[1], claim.modulus):
             raise Untranslatable(
-                f"a generating function with a fractional power of q, and constant terms {_fmt(c[0])} and "
+                f"a generating function with a power of q in front of its forms, and constant terms {_fmt(c[0])} and "
                 f"{_fmt(c[1])} that differ; only the claim for n >= 0 is rescaled"
             )
     return Rescaled(sides, factor, power)

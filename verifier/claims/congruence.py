@@ -290,8 +290,7 @@ def _frobenius(decision: Any, sides: tuple[ir.Side, ir.Side], attempt: Any, modu
         # Lifted as power series first (a lift need not be a holomorphic form to equal the other side's).
         series = [lift_side(s.expr, p, e, holomorphic=False) for s in sides]
         if series[0] is not None and series[0] == series[1]:
-            lifted = [x for x in series if x is not None]
-            texts = [describe(x) for x in lifted]
+            text = describe(series[0])
             # Both sides are congruent modulo p^e to one and the same form (ir equality ignores the
             # spelling): nothing is left to compare, whatever the weight (f_1^3 = f_3 (mod 3)).
             details[i] = {
@@ -302,8 +301,8 @@ def _frobenius(decision: Any, sides: tuple[ir.Side, ir.Side], attempt: Any, modu
                 "vanishing_pieces": [],
                 "bound": 0,
                 "coefficients_compared": 0,
-                "frobenius": {"left": texts[0], "right": texts[1], "level": None, "same": True},
-                "reason": f"both sides lifted by Frobenius to the same series {texts[0]} "
+                "frobenius": {"left": text, "right": text, "level": None, "same": True},
+                "reason": f"both sides lifted by Frobenius to the same series {text} "
                 "(docs/method.md#congruence-frobenius)",
             }
             changed = True
@@ -313,7 +312,6 @@ def _frobenius(decision: Any, sides: tuple[ir.Side, ir.Side], attempt: Any, modu
         if len(lifted) != 2 or all(x == s.expr for x, s in zip(lifted, sides, strict=True)):
             continue
         new_sides = [dataclasses.replace(s, expr=x) for x, s in zip(lifted, sides, strict=True)]
-        texts = [describe(x) for x in lifted]
         try:
             result = attempt(new_sides[0], new_sides[1], p**e)
         except NotModular:  # a lifted side on no known space proves nothing
@@ -324,6 +322,7 @@ def _frobenius(decision: Any, sides: tuple[ir.Side, ir.Side], attempt: Any, modu
         if not sub.proved:
             continue
         (sub_detail,) = sub.details
+        texts = [describe(x) for x in lifted]
         details[i] = {
             **sub_detail,
             "frobenius": {"left": texts[0], "right": texts[1], "level": level},

@@ -33,13 +33,14 @@ from verifier.claims.products import Mono
 from verifier.elaborate.elaborator import Problem
 from verifier.forms.eta import EtaQuotient
 from verifier.numbers import QuadraticCharacter, divisors, euler_phi, prime_factors
+from verifier.parse.ast import NClass
 from verifier.prove.groups import group_name, index_gamma0, sturm_bound
 from verifier.prove.outcome import Outcome, Witness, frac_str
 from verifier.prove.prover import Prover
 
 DIRECT = 200  # progression terms compared directly before any proof is attempted
 DIRECT_LIMIT = 200_000  # coefficients of F computed when looking for a counterexample
-EXACT_SPAN = 20_000  # coefficients of F an identity search computes exactly before screening modulo a prime
+EXACT_SPAN = 20_000  # coefficients of F an identity search compares exactly when the screen finds no failure
 MAX_BOUND = 60_000  # largest target bound attempted (the budget of one claim)
 _SMALL = range(-4, 5)  # exponents tried for eta(delta tau), delta > 1, in the multiplier
 _TWELFTHS = range(-1, 4)  # eta(tau)^(24 j) factors tried on top of the least exponent
@@ -900,87 +901,70 @@ def decide_residues(var: str, claims: tuple[Claim, ...]) -> Outcome:
     otherwise unproven (or an internal error), with the reasons of the classes not proved.
     """
     outcomes = [decide(c) for c in claims]
-    for c, o in zip(claims, outcomes, strict=True):
-        if o.verdict == "refuted":
-            w = o.witness
-            assert w is not None
-            return Outcome(
-                "refuted",
-                "congruence",
-                f"{var} = {c.t - c.m * c.start}: {o.message}",
-                method="computation",
-                first_difference=w.to_dict(),
-                terms_compared=o.terms_compared,
-            )
-    for o in outcomes:
-        if o.verdict == "error":
-            return o
     labels = [f"{var} = {c.t - c.m * c.start}" for c in claims]
-    if all(o.verdict == "proved" for o in outcomes):
-        record = {"residues": [c.t - c.m * c.start for c in claims], "components": [o.progression for o in outcomes]}
-        message = (
-            "every listed class is proved by U_m ("
-            + "; ".join(f"{label}: bound {o.bound}" for label, o in zip(labels, outcomes, strict=True))
-            + ")"
-        )
-        return _all_classes_proved("congruence", message, outcomes, record)
-    reasons = "; ".join(
-        f"{label}: {o.message}" for label, o in zip(labels, outcomes, strict=True) if o.verdict != "proved"
+    for label, o in zip(labels, outcomes, strict=True):
+        if o.verdict == "refuted":
+            return _component_refuted(o, f"{label}: {o.message}")
+    record = {"residues": [c.t - c.m * c.start for c in claims], "components": [o.progression for o in outcomes]}
+    message = (
+        "every listed class is proved by U_m ("
+        + "; ".join(f"{label}: bound {o.bound}" for label, o in zip(labels, outcomes, strict=True))
+        + ")"
     )
-    compared = min(o.terms_compared for o in outcomes)
-    return Outcome(
-        "unproven",
-        "congruence",
-        f"not every listed class is proved ({reasons})",
-        method="computation",
-        terms_compared=compared,
-    )
+    return _joined(outcomes, labels, message, record, "not every listed class is proved")
 
 
-def decide_class(n_class: Any, claims: tuple[Claim, ...]) -> Outcome:
+def decide_class(n_class: NClass, claims: tuple[Claim, ...]) -> Outcome:
     """``a(mn + t) = 0 (mod M)`` for the n of a class: one progression claim per residue.
 
     Proved when every residue's progression is proved; refuted at the least n of the class
     (the author's n) where a progression is refuted; otherwise unproven with the reasons.
     """
     outcomes = [decide(c) for c in claims]
-
-    def part(c: Claim) -> str:
-        return f"n = {c.start} + {c.step}n'"
-
-    refuted_ones = [o for o in outcomes if o.verdict == "refuted" and o.witness is not None]
+    refuted_ones = [(o.witness.n, o) for o in outcomes if o.verdict == "refuted" and o.witness is not None]
     if refuted_ones:
-        o = min(refuted_ones, key=lambda out: int(out.witness.n or 0) if out.witness is not None else 0)
-        assert o.witness is not None
-        return Outcome(
-            "refuted",
-            "congruence",
-            f"{o.message} (n in the class {n_class.text})",
-            method="computation",
-            first_difference=o.witness.to_dict(),
-            terms_compared=o.terms_compared,
-        )
+        _, o = min(refuted_ones, key=lambda pair: int(pair[0] or 0))
+        return _component_refuted(o, f"{o.message} (n in the class {n_class.text})")
+    first = claims[0]
+    m0 = first.m // first.step
+    record = {
+        "n_class": {"modulus": n_class.modulus, "residues": sorted(n_class.residues)},
+        "argument": [m0, first.t - m0 * first.start],  # the author's a(m0 n + t0)
+        "starts": [c.start for c in claims],  # n0, the least n of each residue: n = n0 + k n'
+        "components": [o.progression for o in outcomes],
+    }
+    message = f"on the class {n_class.text}, one progression per residue: " + "; ".join(o.message for o in outcomes)
+    labels = [f"n = {c.start} + {c.step}n'" for c in claims]
+    return _joined(outcomes, labels, message, record, f"not every residue of the class {n_class.text} is proved")
+
+
+def _component_refuted(o: Outcome, message: str) -> Outcome:
+    """A claim of several classes refuted by one of them, with that class's witness."""
+    assert o.witness is not None
+    return Outcome(
+        "refuted",
+        "congruence",
+        message,
+        method="computation",
+        first_difference=o.witness.to_dict(),
+        terms_compared=o.terms_compared,
+    )
+
+
+def _joined(outcomes: list[Outcome], labels: list[str], message: str, record: dict[str, Any], unproven: str) -> Outcome:
+    """A claim of several classes none of which is refuted: an error of one, proved when all are, else unproven."""
     for o in outcomes:
         if o.verdict == "error":
             return o
     if all(o.verdict == "proved" for o in outcomes):
-        first = claims[0]
-        m0 = first.m // first.step
-        record = {
-            "n_class": {"modulus": n_class.modulus, "residues": sorted(n_class.residues)},
-            "argument": [m0, first.t - m0 * first.start],  # the author's a(m0 n + t0)
-            "starts": [c.start for c in claims],  # n0, the least n of each residue: n = n0 + k n'
-            "components": [o.progression for o in outcomes],
-        }
-        message = f"on the class {n_class.text}, one progression per residue: " + "; ".join(o.message for o in outcomes)
         return _all_classes_proved("congruence", message, outcomes, record)
     reasons = "; ".join(
-        f"{part(c)}: {o.message}" for c, o in zip(claims, outcomes, strict=True) if o.verdict != "proved"
+        f"{label}: {o.message}" for label, o in zip(labels, outcomes, strict=True) if o.verdict != "proved"
     )
     return Outcome(
         "unproven",
         "congruence",
-        f"not every residue of the class {n_class.text} is proved ({reasons})",
+        f"{unproven} ({reasons})",
         method="computation",
         terms_compared=min(o.terms_compared for o in outcomes),
     )

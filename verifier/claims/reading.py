@@ -142,21 +142,10 @@ def read(
     one claim per residue of the class (:func:`class_claims`).
     """
     reader = Reader(products, forms)
-    if n_class is not None:
-        if residues is not None or rel != "≡" or modulus is None or modulus <= 1:
-            return None
-        for a, b in ((left, right), (right, left)):
-            if not (isinstance(b, ast.Number) and b.value == 0):
-                continue
-            var = _variable(a)
-            term = _term(a, var, products, forms) if var == n_class.var else None
-            if term is None or not _usable(term[0]):
-                return None
-            gen, m, t, what = term
-            return Reading(class_claims(what, dict(gen.exps), m, t, modulus, start_n, n_class), n_class=n_class)
-        return None
     if rel == "≡" and modulus is not None and modulus > 1:
-        if residues is None and not start_n:
+        if residues is not None and n_class is not None:
+            return None
+        if residues is None and not start_n and n_class is None:
             relative = _internal(left, right, modulus, products, forms)
             if relative is not None:
                 return relative
@@ -166,6 +155,12 @@ def read(
             var = _variable(a, residues[0] if residues else None)
             if var is None:
                 continue
+            if n_class is not None:
+                term = _term(a, var, products, forms) if var == n_class.var else None
+                if term is None or not _usable(term[0]):
+                    return None
+                gen, m, t, what = term
+                return Reading(class_claims(what, dict(gen.exps), m, t, modulus, start_n, n_class), n_class=n_class)
             claims = []
             for value in residues[1] if residues else (None,):
                 fixed = {residues[0]: value} if residues and value is not None else None
@@ -185,7 +180,7 @@ def read(
                 claims.append(Claim(what, dict(gen.exps), m, t + m * start, None, modulus, start))
             return Reading(tuple(claims), residues=residues)
         return None
-    if residues is not None:
+    if residues is not None or n_class is not None:
         return None
     if rel != "=" or modulus is not None:
         return None

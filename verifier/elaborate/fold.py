@@ -28,10 +28,11 @@ def _merged(a: ir.Atom, b: ir.Atom, sign: int, text: str) -> ir.Expr:
     exps: dict[Fraction, int] = dict(a.params)
     for d, r in b.params:
         exps[d] = exps.get(d, 0) + sign * r
-    return _atom(a, registry.eta_params(exps), text)
+    return eta_atom(a, registry.eta_params(exps), text)
 
 
-def _atom(model: ir.Atom, params: tuple[tuple[Fraction, int], ...], text: str) -> ir.Expr:
+def eta_atom(model: ir.Atom, params: tuple[tuple[Fraction, int], ...], text: str) -> ir.Expr:
+    """The eta quotient with these exponents, typed like ``model`` with its weight; 1 when none is left."""
     if not params:
         return ir.Const(ir.Typ(Fraction(0)), "1", Fraction(1))
     weight = Fraction(sum(r for _, r in params), 2)
@@ -56,9 +57,9 @@ def fold_eta(expr: ir.Expr) -> ir.Expr:
             return _merged(left, right, sign, expr.text)
         if right is not None and isinstance(expr.left, ir.Const) and expr.left.value == 1:
             inverse = registry.eta_params({d: sign * r for d, r in right.params})
-            return _atom(right, inverse, expr.text)
+            return eta_atom(right, inverse, expr.text)
     if isinstance(expr, ir.Power):
         base = _eta(expr.base)
         if base is not None:
-            return _atom(base, registry.eta_params({d: expr.exponent * r for d, r in base.params}), expr.text)
+            return eta_atom(base, registry.eta_params({d: expr.exponent * r for d, r in base.params}), expr.text)
     return expr

@@ -24,6 +24,7 @@ import dataclasses
 from fractions import Fraction
 
 from verifier.elaborate import ir
+from verifier.elaborate.fold import eta_atom
 from verifier.forms import registry
 from verifier.forms.eisenstein import eisenstein_constant
 
@@ -83,16 +84,14 @@ def lift_side(expr: ir.Expr, p: int, e: int, holomorphic: bool = True) -> ir.Exp
             return ir.Const(ir.Typ(Fraction(0)), "1", Fraction(1))
         if any(d.denominator != 1 for d, _ in params):
             return None
-        if not holomorphic:
-            typ = dataclasses.replace(expr.typ, weight=Fraction(sum(r for _, r in params), 2))
-            return dataclasses.replace(expr, typ=typ, text=registry.eta_quotient(params).label(), params=params)
         eq = registry.eta_quotient(params)
+        lifted = eta_atom(expr, params, eq.label())
+        if not holomorphic:
+            return lifted
         level = eq.least_level()
         if level is None or not eq.is_holomorphic(level):
             return None
-        weight = Fraction(sum(r for _, r in params), 2)
-        typ = dataclasses.replace(expr.typ, weight=weight, level=level)
-        return dataclasses.replace(expr, typ=typ, text=eq.label(), params=params)
+        return dataclasses.replace(lifted, typ=dataclasses.replace(lifted.typ, level=level))
     if isinstance(expr, ir.Sum | ir.Product):
         assert expr.left is not None and expr.right is not None
         left, right = lift_side(expr.left, p, e, holomorphic), lift_side(expr.right, p, e, holomorphic)

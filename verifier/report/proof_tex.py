@@ -348,8 +348,8 @@ def _components_paragraph(claim: ClaimResult, prog: dict[str, Any], cite: _Cites
     return " ".join([head, *parts])
 
 
-def _linear(m: int, t: int | None) -> str:
-    """``mn + t`` as an argument: ``n``, ``5n``, ``5n+4``, ``5n-1`` (``t`` None: ``mn`` with nothing after)."""
+def _linear(m: int, t: int) -> str:
+    """``mn + t`` as an argument: ``n``, ``5n``, ``5n+4``, ``5n-1``."""
     head = "n" if m == 1 else f"{m}n"
     if not t:
         return head
@@ -404,9 +404,14 @@ def _congruence_paragraph(claim: ClaimResult, cert: dict[str, Any], cite: _Cites
     rescaled = cert.get("rescaled") if isinstance(cert.get("rescaled"), dict) else None
     if rescaled is not None:
         factor, power = rescaled.get("tau_factor"), rescaled.get("q_power")
+        how_read = (
+            f"; with $q^{{{power}}}$ divided out of both"
+            if int(factor) == 1
+            else f" whose factors carry fractional powers of $q$; with $\\tau \\mapsto {factor}\\tau$ and "
+            f"$q^{{{power}}}$ divided out of both"
+        )
         parts[0] = (
-            f"The two sides of {ref} are power series in $q$ whose factors carry fractional powers of $q$; with "
-            f"$\\tau \\mapsto {factor}\\tau$ and $q^{{{power}}}$ divided out of both, they become sums of "
+            f"The two sides of {ref} are power series in $q${how_read}, they become sums of "
             f"modular forms (weights {', '.join(weights)}), and the coefficient of $q^n$ of each side is that of "
             f"$q^{{{_linear(int(factor), -int(Fraction(str(power))))}}}$; {how}."
         )
@@ -420,23 +425,22 @@ def _congruence_paragraph(claim: ClaimResult, cert: dict[str, Any], cite: _Cites
         working = modulus if scale == 1 else f"{p}^{{{int(pp['exponent']) + _exponent(scale, p)}}}"
         steps = []
         lift = pp.get("frobenius")
-        if isinstance(lift, dict) and lift.get("same"):
-            steps.append(
-                "the eta quotients of both sides are replaced by the ones congruent to them modulo "
-                f"${modulus}$ coefficientwise, $\\eta({p}\\delta\\tau)^{{{p}^{{e-1}}u}} \\equiv "
-                f"\\eta(\\delta\\tau)^{{{p}^e u}}$ (as $(1-x)^{{{p}}} \\equiv 1-x^{{{p}}}$ modulo ${p}$), and both "
-                f"become ${_side_tex(str(lift.get('left', '')))}$ {cite('swinnerton-dyer')}: the two sides are "
-                f"congruent modulo ${modulus}$ to one and the same series"
-            )
-            parts.append(f"Modulo ${modulus}$: " + "; ".join(steps) + ".")
-            continue
         if isinstance(lift, dict):
-            steps.append(
-                "the eta quotients of both sides are first replaced by the ones congruent to them modulo "
+            moved = (
                 f"${modulus}$ coefficientwise, $\\eta({p}\\delta\\tau)^{{{p}^{{e-1}}u}} \\equiv "
-                f"\\eta(\\delta\\tau)^{{{p}^e u}}$ (as $(1-x)^{{{p}}} \\equiv 1-x^{{{p}}}$ modulo ${p}$), giving "
-                f"${_side_tex(str(lift.get('left', '')))}$ and ${_side_tex(str(lift.get('right', '')))}$ "
-                f"{cite('swinnerton-dyer')}"
+                f"\\eta(\\delta\\tau)^{{{p}^e u}}$ (as $(1-x)^{{{p}}} \\equiv 1-x^{{{p}}}$ modulo ${p}$)"
+            )
+            left_tex = _side_tex(str(lift.get("left", "")))
+            if lift.get("same"):
+                parts.append(
+                    f"Modulo ${modulus}$: the eta quotients of both sides are replaced by the ones congruent to them "
+                    f"modulo {moved}, and both become ${left_tex}$ {cite('swinnerton-dyer')}: the two sides are "
+                    f"congruent modulo ${modulus}$ to one and the same series."
+                )
+                continue
+            steps.append(
+                f"the eta quotients of both sides are first replaced by the ones congruent to them modulo {moved}, "
+                f"giving ${left_tex}$ and ${_side_tex(str(lift.get('right', '')))}$ {cite('swinnerton-dyer')}"
             )
         if scale > 1:
             steps.append(
